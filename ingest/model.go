@@ -1,0 +1,314 @@
+// Package ingest turns the files of a measurement archive into typed values.
+//
+// It knows file formats (Touchstone, trace CSV, the YAML run descriptions),
+// paths and line numbers, and nothing else: no physics beyond unit
+// conversion, no rendering. Every refusal is a *Problem that names the file
+// and line. Input never causes a panic, and a bad file never stops the
+// reading of the files that do not depend on it.
+package ingest
+
+import (
+	"fmt"
+	"time"
+)
+
+// Problem is a refusal or a warning about one input file, with the position
+// that caused it. Line is 0 when the problem concerns the file as a whole.
+type Problem struct {
+	File    string `json:"file"`
+	Line    int    `json:"line"`
+	Message string `json:"message"`
+}
+
+func (p *Problem) Error() string {
+	if p.Line > 0 {
+		return fmt.Sprintf("%s:%d: %s", p.File, p.Line, p.Message)
+	}
+	if p.File != "" {
+		return fmt.Sprintf("%s: %s", p.File, p.Message)
+	}
+	return p.Message
+}
+
+// Problemf builds a *Problem.
+func Problemf(file string, line int, format string, args ...any) *Problem {
+	return &Problem{File: file, Line: line, Message: fmt.Sprintf(format, args...)}
+}
+
+// Network is the content of one Touchstone file, always as S-parameters.
+type Network struct {
+	Ports       int
+	FrequencyHz []float64
+	// Z0 is the reference impedance of each port in ohms.
+	Z0 []float64
+	// S holds one Ports x Ports matrix per frequency, row-major:
+	// S[(k*Ports+i)*Ports+j] is S_(i+1)(j+1) at FrequencyHz[k].
+	S []complex128
+	// Noise holds the two-port noise parameters, when the file has them.
+	Noise []NoisePoint
+	// Version is the Touchstone version of the file: 1 or 2.
+	Version int
+	// Parameter is what the file stored (S, Y, Z, H or G) before conversion.
+	Parameter string
+	// Format is the number format of the file: DB, MA or RI.
+	Format string
+}
+
+// At returns S_(i+1)(j+1) at frequency index k (i, j zero-based).
+func (n *Network) At(k, i, j int) complex128 {
+	return n.S[(k*n.Ports+i)*n.Ports+j]
+}
+
+// Param returns S_ij over frequency, with i and j one-based port numbers.
+func (n *Network) Param(i, j int) []complex128 {
+	out := make([]complex128, len(n.FrequencyHz))
+	for k := range out {
+		out[k] = n.At(k, i-1, j-1)
+	}
+	return out
+}
+
+// NoisePoint is one line of a two-port noise-parameter block.
+type NoisePoint struct {
+	FrequencyHz      float64
+	MinNoiseFigureDB float64
+	// GammaOpt is the optimum source reflection coefficient.
+	GammaOpt complex128
+	// EffectiveNoiseResistanceOhm is Rn in ohms (version 1 files store it
+	// normalised to the reference resistance; it is scaled back here).
+	EffectiveNoiseResistanceOhm float64
+}
+
+// Trace is a two-column CSV trace: a frequency and one value in dB (or
+// dBm/Hz for noise density).
+type Trace struct {
+	File        string
+	FrequencyHz []float64
+	Values      []float64
+	// Column is the header name of the value column.
+	Column string
+}
+
+// Transmission is what a transmission file (Touchstone or CSV) yields for
+// one path of the range: the chosen parameter in dB and, where the file has
+// it, the magnitude of the reflection coefficient at the antenna's port.
+type Transmission struct {
+	File        string
+	FrequencyHz []float64
+	// ParameterDB is 20*log10|S_ij| of the chosen parameter (S21 unless the
+	// run says otherwise).
+	ParameterDB []float64
+	// AntennaMatch is |Gamma| at the antenna's port (S22 of a 2-port file
+	// measured with the antenna on port 2); nil when the file does not have
+	// it (CSV, 1-port).
+	AntennaMatch []float64
+}
+
+// UncertaintyTerm is one declared term of a station's budget.
+type UncertaintyTerm struct {
+	Name      string   `yaml:"name" json:"name"`
+	AppliesTo []string `yaml:"applies_to" json:"applies_to"`
+	ValueDB   float64  `yaml:"value_db" json:"value_db"`
+	// Distribution is normal, rectangular, u-shaped or triangular.
+	Distribution string `yaml:"distribution" json:"distribution"`
+	// CoverageK is the coverage factor of ValueDB for a normal term.
+	CoverageK float64 `yaml:"coverage_k" json:"coverage_k,omitempty"`
+	Line      int     `yaml:"-" json:"-"`
+}
+
+// Station is a test range and the uncertainty terms it adds to every run.
+type Station struct {
+	File              string            `yaml:"-" json:"-"`
+	Schema            int               `yaml:"schema"`
+	ID                string            `yaml:"id"`
+	Description       string            `yaml:"description"`
+	ReceiverMatch     float64           `yaml:"receiver_match"`
+	DriftToleranceDB  float64           `yaml:"drift_tolerance_db"`
+	MethodToleranceDB float64           `yaml:"method_tolerance_db"`
+	Uncertainty       []UncertaintyTerm `yaml:"uncertainty"`
+}
+
+// ReferencePoint is one row of a reference antenna's calibration table.
+type ReferencePoint struct {
+	FrequencyHz           float64
+	GainDBi               float64
+	ExpandedUncertaintyDB float64
+	Line                  int
+}
+
+// Reference is a reference antenna's calibration.
+type Reference struct {
+	File        string
+	Schema      int
+	ID          string
+	Description string
+	// GainKind is "realized" or "gain" (then the measured mismatch loss is
+	// applied by reduce).
+	GainKind    string
+	Calibrated  time.Time
+	Due         time.Time
+	Certificate string
+	CoverageK   float64
+	// TableFile is the CSV the table came from, relative to the archive
+	// root, or "" for an inline table.
+	TableFile string
+	Table     []ReferencePoint
+}
+
+// BeamSelector chooses the beams a limit applies to: by id, or by scan
+// angle range (inclusive). Nil bounds are open.
+type BeamSelector struct {
+	IDs         []string
+	MinThetaDeg *float64
+	MaxThetaDeg *float64
+}
+
+// LimitPoint is one vertex of a piecewise-linear lower limit.
+type LimitPoint struct {
+	FrequencyHz float64
+	Value       float64
+}
+
+// Limit is one acceptance limit of a spec.
+type Limit struct {
+	Name string
+	// Quantity is "gt" (dB/K) or "gain" (dBi).
+	Quantity string
+	Beams    BeamSelector
+	// BandHz is the band [low, high] the limit judges.
+	BandHz [2]float64
+	// Statistic is "min" or "mean".
+	Statistic string
+	Points    []LimitPoint
+	// ScanExponent, when set, makes the limit follow
+	// limit(f) + 10*n*log10(cos theta).
+	ScanExponent *float64
+	Line         int
+}
+
+// Spec is the acceptance specification of a product.
+type Spec struct {
+	File   string
+	Schema int
+	// Product is the product code runs refer to.
+	Product      string
+	Title        string
+	DecisionRule string // simple | guarded
+	Limits       []Limit
+	// OperatingAntennaK is the antenna temperature the projected G/T is
+	// stated at (optional).
+	OperatingAntennaK *float64
+	// ElementPhaseRMSToleranceDeg flags a unit whose residual element phase
+	// rms exceeds it (optional).
+	ElementPhaseRMSToleranceDeg *float64
+}
+
+// NoiseInput names one noise trace of a beam.
+type NoiseInput struct {
+	File string
+	// Quantity is noise-density-dbm-hz, noise-relative-kt0-db or
+	// system-noise-figure-db.
+	Quantity         string
+	NoiseBandwidthHz *float64
+	IntegrationS     *float64
+	Line             int
+}
+
+// Beam is one beam state of a run.
+type Beam struct {
+	ID             string
+	ThetaDeg       float64
+	PhiDeg         float64
+	Polarization   string
+	Transmission   string
+	Noise          []NoiseInput
+	PassiveGainDBi *float64
+	Line           int
+}
+
+// Run is one run.yaml: one test run of one unit.
+type Run struct {
+	// File is the run.yaml path relative to the archive root, with '/'.
+	File string
+	// Dir is the run's folder relative to the archive root, with '/'.
+	Dir       string
+	Schema    int
+	Serial    string
+	Product   string
+	Station   string
+	Reference string
+	Started   time.Time
+	Operator  string
+	AmbientC  float64
+	Firmware  string
+	// RangePre and RangePost are the reference measurement files, relative
+	// to the archive root; RangePost may be "".
+	RangePre       string
+	RangePost      string
+	RangeParameter string // S21 unless stated
+	Beams          []Beam
+	// Elements and Notes are relative to the archive root, or "".
+	Elements string
+	Notes    string
+}
+
+// Element is one row of elements.csv.
+type Element struct {
+	Row, Col    int
+	AmplitudeDB float64
+	PhaseDeg    float64
+}
+
+// InputFile is one file an output depends on.
+type InputFile struct {
+	Path   string `json:"path"`
+	Size   int64  `json:"size"`
+	SHA256 string `json:"sha256"`
+}
+
+// BeamData is the measured data of one beam.
+type BeamData struct {
+	// Transmission is nil when the file was refused.
+	Transmission *Transmission
+	// Noise has one entry per NoiseInput of the beam; an entry is nil when
+	// its file was refused.
+	Noise []*Trace
+}
+
+// RunData is everything a run's files hold, read and checked.
+type RunData struct {
+	RangePre  *Transmission
+	RangePost *Transmission
+	Beams     []BeamData // parallel to Run.Beams
+	Elements  []Element
+	Notes     string
+	// Inputs lists every file the run used, the run.yaml, station,
+	// reference and spec included, sorted by path.
+	Inputs []InputFile
+}
+
+// Unit is one serial number and its runs, oldest first: the last run is the
+// acceptance run, the others are its history.
+type Unit struct {
+	Serial string
+	Runs   []*Run
+}
+
+// Acceptance returns the run with the latest start.
+func (u *Unit) Acceptance() *Run { return u.Runs[len(u.Runs)-1] }
+
+// Archive is what discovery found: the shared documents, every run grouped
+// by unit, and every problem met on the way. Data files of the runs are not
+// read until Load is called, so that a large archive is never held in
+// memory whole.
+type Archive struct {
+	// Root is the archive folder as given.
+	Root       string
+	Stations   map[string]*Station   // by id
+	References map[string]*Reference // by id
+	Specs      map[string]*Spec      // by product
+	Units      []*Unit               // sorted by serial
+	// Problems lists what discovery refused: broken YAML, escaping paths,
+	// duplicate runs. A run whose run.yaml was refused is not in Units.
+	Problems []*Problem
+}

@@ -1,0 +1,95 @@
+package reduce
+
+// FleetSchema is the version of the fleet.json layout.
+const FleetSchema = 1
+
+// UnitSummary is the part of a unit's result the fleet statistics need. It
+// is small, so that the fleet of a large archive can be computed without
+// holding every unit's result in memory.
+type UnitSummary struct {
+	Serial  string        `json:"serial"`
+	Product string        `json:"product"`
+	Started string        `json:"started"`
+	Verdict string        `json:"verdict"`
+	Limits  []LimitResult `json:"limits"`
+	// Boresight is the G/T of the beam closest to boresight, for the
+	// fleet's per-frequency band; nil when the unit has none.
+	Boresight *BoresightTrace `json:"boresight,omitempty"`
+}
+
+// BoresightTrace is one unit's G/T against frequency at boresight.
+type BoresightTrace struct {
+	Beam        string    `json:"beam"`
+	FrequencyHz []float64 `json:"frequency_hz"`
+	GTdBPerK    []float64 `json:"gt_db_per_k"`
+}
+
+// Fleet is what fleet.json holds: statistics per product over the
+// acceptance runs.
+type Fleet struct {
+	Schema   int            `json:"schema"`
+	Units    []UnitSummary  `json:"units"` // sorted by serial, without Boresight
+	Products []ProductFleet `json:"products"`
+}
+
+// ProductFleet is the statistics of one product.
+type ProductFleet struct {
+	Product       string         `json:"product"`
+	Units         int            `json:"units"`
+	VerdictCounts map[string]int `json:"verdict_counts"`
+	Limits        []LimitStats   `json:"limits"`
+	Band          *GoldenBand    `json:"band,omitempty"`
+	Watch         []WatchEntry   `json:"watch"`
+}
+
+// LimitStats is the fleet's view of one limit: per unit its worst margin
+// over the beams the limit applies to.
+type LimitStats struct {
+	Name         string  `json:"name"`
+	Units        int     `json:"units"`
+	Passed       int     `json:"passed"`
+	Yield        float64 `json:"yield"`
+	MeanMarginDB float64 `json:"mean_margin_db"`
+	StdMarginDB  float64 `json:"std_margin_db"`
+	// Cpk is (mean - 0)/(3*sigma) on margins; 0 with fewer than two units.
+	Cpk      float64      `json:"cpk"`
+	Chart    ControlChart `json:"control_chart"`
+	Outliers []Outlier    `json:"outliers"`
+}
+
+// ControlChart is an individuals chart of worst margins in test order.
+type ControlChart struct {
+	Serials         []string  `json:"serials"`
+	Started         []string  `json:"started"`
+	ValuesDB        []float64 `json:"values_db"`
+	CentreDB        float64   `json:"centre_db"`
+	UpperDB         float64   `json:"upper_db"`
+	LowerDB         float64   `json:"lower_db"`
+	MeanMovingRange float64   `json:"mean_moving_range_db"`
+	// Beyond lists the indexes of points outside the limits.
+	Beyond []int `json:"beyond"`
+}
+
+// Outlier is a unit whose worst margin has a modified z-score above 3.5.
+type Outlier struct {
+	Serial    string  `json:"serial"`
+	MarginDB  float64 `json:"margin_db"`
+	ModifiedZ float64 `json:"modified_z"`
+}
+
+// GoldenBand is the per-frequency median and spread of boresight G/T
+// across the units of a product.
+type GoldenBand struct {
+	FrequencyHz []float64 `json:"frequency_hz"`
+	MedianDB    []float64 `json:"median_db_per_k"`
+	// LowDB and HighDB are median -/+ 3 * 1.4826 * MAD.
+	LowDB  []float64 `json:"low_db_per_k"`
+	HighDB []float64 `json:"high_db_per_k"`
+	Units  int       `json:"units"`
+}
+
+// WatchEntry is a passing unit whose boresight G/T leaves the band.
+type WatchEntry struct {
+	Serial        string    `json:"serial"`
+	FrequenciesHz []float64 `json:"frequencies_hz"`
+}
