@@ -202,6 +202,16 @@ type Scan struct {
 	ExponentN     []float64  `json:"exponent_n"`
 	MeanExponentN float64    `json:"mean_exponent_n"`
 	Beams         []ScanBeam `json:"beams"`
+	// Polarization and BoresightBeam say which group of beams was compared
+	// (beams are compared within one polarization only).
+	Polarization  string `json:"polarization,omitempty"`
+	BoresightBeam string `json:"boresight_beam"`
+	// GainExponentN is the same fit on gain instead of G/T, per frequency,
+	// nil when a beam has no gain; MeanGainExponentN its band mean.
+	GainExponentN     []float64 `json:"gain_exponent_n,omitempty"`
+	MeanGainExponentN float64   `json:"mean_gain_exponent_n,omitempty"`
+	// LawExponentN is n_spec of the spec's scan law, when it has one.
+	LawExponentN *float64 `json:"law_exponent_n,omitempty"`
 }
 
 // ScanBeam is one scanned beam's loss against boresight.
@@ -210,6 +220,8 @@ type ScanBeam struct {
 	ThetaDeg float64 `json:"theta_deg"`
 	// ScanLossDB is G/T(theta) - G/T(0) per frequency.
 	ScanLossDB []float64 `json:"scan_loss_db"`
+	// GainLossDB is G(theta) - G(0) per frequency, nil without gain.
+	GainLossDB []float64 `json:"gain_loss_db,omitempty"`
 	// LawLossDB is 10*n_spec*log10(cos theta), when the spec has a scan law.
 	LawLossDB *float64 `json:"law_loss_db,omitempty"`
 }
