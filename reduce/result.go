@@ -106,6 +106,22 @@ type Beam struct {
 	GTBudget   Budget `json:"gt_budget"`
 
 	Projection *Projection `json:"projection,omitempty"`
+
+	// LimitCurves are the limits that apply to this beam, each on the part
+	// of the grid inside its band, for the workbook's per-frequency limit
+	// and margin columns; nil when not filled.
+	LimitCurves []LimitCurve `json:"limit_curves,omitempty"`
+}
+
+// LimitCurve is one limit's lower limit L(f) on a beam's grid (the scan
+// law included): LimitDB[i] is the limit at FrequencyHz[Start+i], for the
+// grid points inside the limit's band. Units are dB/K for quantity "gt" and
+// dBi for "gain".
+type LimitCurve struct {
+	Name     string    `json:"name"`
+	Quantity string    `json:"quantity"`
+	Start    int       `json:"start"`
+	LimitDB  []float64 `json:"limit_db"`
 }
 
 // OtherForm is the second G/T form of a beam that has both noise forms.
@@ -161,6 +177,10 @@ type Projection struct {
 	ReceiverNoiseK    []float64 `json:"receiver_noise_k"`
 	OperatingGTdBPerK []float64 `json:"operating_gt_db_per_k"`
 	Assumptions       string    `json:"assumptions"`
+	// NegativeReceiverNoiseHz lists the frequencies where T_e came out
+	// negative (declared passive gain too low); then OperatingGTdBPerK is
+	// nil. See Usable.
+	NegativeReceiverNoiseHz []float64 `json:"negative_receiver_noise_hz,omitempty"`
 }
 
 // LimitResult is the verdict of one limit on one beam.
@@ -239,6 +259,15 @@ type ElementState struct {
 	Worst            []ElementOutlier `json:"worst"`
 	ToleranceDeg     *float64         `json:"tolerance_deg,omitempty"`
 	Flagged          bool             `json:"flagged"`
+	// Elements is how many elements were analysed; FirstRow and FirstCol
+	// are the row and column numbers of heat-map index [0][0].
+	Elements int `json:"elements"`
+	FirstRow int `json:"first_row"`
+	FirstCol int `json:"first_col"`
+	// RowSlopeDeg and ColSlopeDeg are the fitted plane's phase step per
+	// row and per column (the steering gradient), wrapped to (-180, 180].
+	RowSlopeDeg float64 `json:"row_slope_deg"`
+	ColSlopeDeg float64 `json:"col_slope_deg"`
 }
 
 // ElementOutlier is an element far from the fitted plane.
