@@ -1,8 +1,8 @@
 package reduce
 
 import (
-	"math/cmplx"
 	"math"
+	"math/cmplx"
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
