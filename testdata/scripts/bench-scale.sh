@@ -1,0 +1,48 @@
+#!/usr/bin/env bash
+# Scale benchmark: a synthetic archive of N units (16 beams of 801 points
+# each), then a full build, a no-change rebuild and a one-unit-changed
+# rebuild. Prints units per second, input MB/s, peak memory (resident set,
+# from /usr/bin/time -v) and the floor: reading and parsing every input
+# byte with no reduction or rendering.
+#
+#   testdata/scripts/bench-scale.sh [N] [WORKDIR]
+set -euo pipefail
+cd "$(dirname "$0")/../.."
+N=${1:-1000}
+work=${2:-/tmp/gtpack-bench}
+mkdir -p "$work"
+go build -o "$work/gtpack" ./cmd/gtpack
+go build -o "$work/floor" ./testdata/scripts/floor
+archive="$work/archive-$N"
+if [ ! -d "$archive" ]; then
+  echo "writing a demo archive of $N units..."
+  "$work/gtpack" demo "$archive" --units "$N" >/dev/null
+fi
+mb=$(du -sb "$archive" | awk '{printf "%.1f", $1/1e6}')
+echo "archive: $N units, $mb MB"
+
+# measure LABEL CMD...: wall time and peak RSS of one command.
+measure() {
+  local label=$1; shift
+  local log="$work/time-$label.log"
+  /usr/bin/time -v "$@" >/dev/null 2>"$log" || true
+  local wall rss
+  wall=$(awk -F': ' '/Elapsed \(wall clock\)/ {n=split($2,a,":"); s=0; for(i=1;i<=n;i++) s=s*60+a[i]; print s}' "$log")
+  rss=$(awk -F': ' '/Maximum resident set size/ {printf "%.0f", $2/1024}' "$log")
+  printf '%-22s %8.2f s  %8.1f units/s  %8.1f MB/s  peak RSS %5d MB\n' "$label" "$wall" \
+    "$(awk -v n="$N" -v w="$wall" 'BEGIN{print n/w}')" "$(awk -v m="$mb" -v w="$wall" 'BEGIN{print m/w}')" "$rss"
+  echo "$wall" > "$work/wall-$label"
+}
+
+site="$work/site-$N"
+rm -rf "$site"
+sync
+measure floor "$work/floor" "$archive"
+measure full-build "$work/gtpack" build "$archive" -o "$site" --quiet
+measure no-change "$work/gtpack" build "$archive" -o "$site" --quiet
+first=$(find "$archive" -name run.yaml | sort | head -1)
+echo "# touched by the benchmark" >> "$first"
+measure one-changed "$work/gtpack" build "$archive" -o "$site" --quiet
+sed -i '$ d' "$first"
+awk -v f="$(cat "$work/wall-floor")" -v b="$(cat "$work/wall-full-build")" \
+  'BEGIN{printf "full build / floor: %.2f\n", b/f}'
