@@ -250,6 +250,13 @@ type Run struct {
 	// Elements and Notes are relative to the archive root, or "".
 	Elements string
 	Notes    string
+	// KeyLines gives the run.yaml line of each key's value by key path
+	// ("station", "reference", "product", "started", "range_reference.pre",
+	// "range_reference.post", "beams[0].transmission",
+	// "beams[0].noise[1].file", "elements", "notes"), so that a problem
+	// found later (a missing file, an unknown station) points at the line
+	// that names it.
+	KeyLines map[string]int
 }
 
 // Element is one row of elements.csv.

@@ -1,0 +1,397 @@
+package ingest
+
+import (
+	"bufio"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+)
+
+// The CSV files of the archive (traces, elements.csv, reference tables) are
+// deliberately simpler than RFC 4180: comma-separated, no quoting, `#`
+// starts a comment line, blank lines are ignored, CRLF or LF, an optional
+// UTF-8 byte-order mark. Anything else is refused with the line it is on.
+
+// maxLineBytes bounds one CSV line, so that a binary file given by mistake
+// is refused instead of being held in memory whole.
+const maxLineBytes = 1 << 20
+
+// csvLines yields the non-comment, non-blank lines of a CSV file, split
+// into trimmed fields, with their 1-based line numbers.
+type csvLines struct {
+	sc   *bufio.Scanner
+	name string
+	line int
+}
+
+func newCSVLines(r io.Reader, name string) *csvLines {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 0, 64*1024), maxLineBytes)
+	return &csvLines{sc: sc, name: name}
+}
+
+// next returns the fields of the next data line, or io.EOF.
+func (c *csvLines) next() ([]string, int, error) {
+	for c.sc.Scan() {
+		c.line++
+		text := c.sc.Text()
+		if c.line == 1 {
+			text = strings.TrimPrefix(text, "\ufeff")
+		}
+		text = strings.TrimSuffix(text, "\r")
+		t := strings.TrimSpace(text)
+		if t == "" || strings.HasPrefix(t, "#") {
+			continue
+		}
+		if !utf8.ValidString(t) {
+			return nil, c.line, Problemf(c.name, c.line, "line is not UTF-8 text; expected a comma-separated text line")
+		}
+		fields := strings.Split(t, ",")
+		for i := range fields {
+			fields[i] = strings.TrimSpace(fields[i])
+		}
+		return fields, c.line, nil
+	}
+	if err := c.sc.Err(); err != nil {
+		if errors.Is(err, bufio.ErrTooLong) {
+			return nil, c.line + 1, Problemf(c.name, c.line+1, "line longer than %d bytes; expected a comma-separated text line", maxLineBytes)
+		}
+		return nil, c.line, Problemf(c.name, 0, "read error: %v", err)
+	}
+	return nil, c.line, io.EOF
+}
+
+// frequencyUnits maps the header names of the frequency column to the power
+// of ten that turns them into hertz.
+var frequencyUnits = map[string]int{
+	"frequency_hz":  0,
+	"frequency_khz": 3,
+	"frequency_mhz": 6,
+	"frequency_ghz": 9,
+}
+
+// ReadTrace reads a trace CSV of the archive contract: a header
+// `frequency_<hz|khz|mhz|ghz>,<value column>`, then one frequency and one
+// value per line, frequencies positive and strictly increasing. It stops at
+// the first mistake and returns it as a *Problem naming name and the line.
+func ReadTrace(r io.Reader, name string) (*Trace, error) {
+	lines := newCSVLines(r, name)
+	header, hl, err := lines.next()
+	if err == io.EOF {
+		return nil, Problemf(name, 0, "file is empty; expected a header frequency_<hz|khz|mhz|ghz>,<value column> and data lines")
+	}
+	if err != nil {
+		return nil, err
+	}
+	if len(header) != 2 {
+		return nil, Problemf(name, hl, "header %q has %d fields; expected 2: frequency_<hz|khz|mhz|ghz>,<value column>", strings.Join(header, ","), len(header))
+	}
+	exp, ok := frequencyUnits[strings.ToLower(header[0])]
+	if !ok {
+		return nil, Problemf(name, hl, "first header field %q is not a frequency column; expected frequency_hz, frequency_khz, frequency_mhz or frequency_ghz", header[0])
+	}
+	if header[1] == "" {
+		return nil, Problemf(name, hl, "second header field is empty; expected the name of the value column")
+	}
+	t := &Trace{File: name, Column: header[1]}
+	var prevText string
+	for {
+		fields, ln, err := lines.next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		if len(fields) != 2 {
+			return nil, Problemf(name, ln, "%d fields in %q; expected 2: frequency, %s", len(fields), strings.Join(fields, ","), t.Column)
+		}
+		f, err := parseScaled(fields[0], exp)
+		if err != nil {
+			return nil, Problemf(name, ln, "frequency %q: %v", fields[0], err)
+		}
+		if f <= 0 {
+			return nil, Problemf(name, ln, "frequency %s is not positive; expected a frequency above 0", fields[0])
+		}
+		if n := len(t.FrequencyHz); n > 0 && f <= t.FrequencyHz[n-1] {
+			return nil, Problemf(name, ln, "frequency %s is not above the previous %s; expected strictly increasing frequencies", fields[0], prevText)
+		}
+		v, err := parseDecimal(fields[1])
+		if err != nil {
+			return nil, Problemf(name, ln, "%s %q: %v", t.Column, fields[1], err)
+		}
+		t.FrequencyHz = append(t.FrequencyHz, f)
+		t.Values = append(t.Values, v)
+		prevText = fields[0]
+	}
+	if len(t.FrequencyHz) == 0 {
+		return nil, Problemf(name, hl, "header but no data lines; expected at least one frequency, value line")
+	}
+	return t, nil
+}
+
+// WriteTrace writes t as a trace CSV with the frequency column in
+// frequencyUnit (hz, khz, mhz or ghz, case-insensitive, with or without
+// the `frequency_` prefix). Numbers are written with the fewest digits that
+// read back to the same float64, and the unit change is done on the decimal
+// text, so ReadTrace(WriteTrace(t)) returns t exactly.
+func WriteTrace(w io.Writer, t *Trace, frequencyUnit string) error {
+	u := strings.ToLower(frequencyUnit)
+	if !strings.HasPrefix(u, "frequency_") {
+		u = "frequency_" + u
+	}
+	exp, ok := frequencyUnits[u]
+	if !ok {
+		return fmt.Errorf("frequency unit %q: expected hz, khz, mhz or ghz", frequencyUnit)
+	}
+	if len(t.FrequencyHz) != len(t.Values) {
+		return fmt.Errorf("trace %s: %d frequencies but %d values", t.File, len(t.FrequencyHz), len(t.Values))
+	}
+	if t.Column == "" || strings.ContainsAny(t.Column, ",\r\n") || strings.HasPrefix(strings.TrimSpace(t.Column), "#") {
+		return fmt.Errorf("trace %s: column name %q cannot stand in a CSV header", t.File, t.Column)
+	}
+	bw := bufio.NewWriter(w)
+	fmt.Fprintf(bw, "%s,%s\n", u, t.Column)
+	for i, f := range t.FrequencyHz {
+		v := t.Values[i]
+		if math.IsNaN(f) || math.IsInf(f, 0) || math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("trace %s: point %d is not finite", t.File, i)
+		}
+		bw.WriteString(formatScaled(f, -exp))
+		bw.WriteByte(',')
+		bw.WriteString(strconv.FormatFloat(v, 'g', -1, 64))
+		bw.WriteByte('\n')
+	}
+	return bw.Flush()
+}
+
+// isDecimal reports whether s is a plain decimal number: an optional sign,
+// digits with an optional point, an optional exponent. strconv.ParseFloat
+// alone also takes "inf", "nan", hex floats and underscores, none of which
+// a measurement file should hold.
+func isDecimal(s string) bool {
+	i := 0
+	if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	digits := 0
+	for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+		i++
+		digits++
+	}
+	if i < len(s) && s[i] == '.' {
+		i++
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+			digits++
+		}
+	}
+	if digits == 0 {
+		return false
+	}
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		ed := 0
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+			ed++
+		}
+		if ed == 0 {
+			return false
+		}
+	}
+	return i == len(s)
+}
+
+// parseDecimal parses a finite decimal number.
+func parseDecimal(s string) (float64, error) {
+	return parseScaled(s, 0)
+}
+
+// parseScaled parses the decimal s times 10^exp, rounding once: the
+// exponent is added to the text, so "10.7" in GHz is exactly the float64
+// nearest 10.7e9.
+func parseScaled(s string, exp int) (float64, error) {
+	if s == "" {
+		return 0, errors.New("empty; expected a number")
+	}
+	if !isDecimal(s) {
+		return 0, errors.New("is not a number; expected a decimal number such as 11.7 or 1.17e10")
+	}
+	mant, e := s, 0
+	if i := strings.IndexAny(s, "eE"); i >= 0 {
+		mant = s[:i]
+		x, err := strconv.Atoi(s[i+1:])
+		if err != nil || x > 100000 || x < -100000 {
+			return 0, errors.New("exponent out of range; expected a finite number")
+		}
+		e = x
+	}
+	v, err := strconv.ParseFloat(mant+"e"+strconv.Itoa(e+exp), 64)
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+		return 0, errors.New("out of range; expected a finite number")
+	}
+	return v, nil
+}
+
+// formatScaled writes v times 10^exp as decimal text with the shortest
+// digits that round-trip v through parseScaled(text, -exp).
+func formatScaled(v float64, exp int) string {
+	if v == 0 || exp == 0 {
+		return strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	s := strconv.FormatFloat(v, 'e', -1, 64) // [-]d[.ddd]e±XX
+	i := strings.IndexByte(s, 'e')
+	x, _ := strconv.Atoi(s[i+1:])
+	x += exp
+	mant := s[:i]
+	sign := ""
+	if mant[0] == '-' {
+		sign, mant = "-", mant[1:]
+	}
+	digits := strings.Replace(mant, ".", "", 1)
+	// digits is d1 d2 ... with the point after d1, times 10^x.
+	point := 1 + x
+	switch {
+	case point <= -5 || point > 21:
+		return sign + mant + "e" + strconv.Itoa(x)
+	case point <= 0:
+		return sign + "0." + strings.Repeat("0", -point) + digits
+	case point >= len(digits):
+		return sign + digits + strings.Repeat("0", point-len(digits))
+	default:
+		return sign + digits[:point] + "." + digits[point:]
+	}
+}
+
+// ReadElements reads elements.csv: a header `row,col,amplitude_db,phase_deg`
+// then one element per line, row and column non-negative integers, each
+// (row, col) at most once.
+func ReadElements(r io.Reader, name string) ([]Element, error) {
+	lines := newCSVLines(r, name)
+	header, hl, err := lines.next()
+	if err == io.EOF {
+		return nil, Problemf(name, 0, "file is empty; expected a header row,col,amplitude_db,phase_deg and one line per element")
+	}
+	if err != nil {
+		return nil, err
+	}
+	want := []string{"row", "col", "amplitude_db", "phase_deg"}
+	if !sameFields(header, want) {
+		return nil, Problemf(name, hl, "header %q; expected row,col,amplitude_db,phase_deg", strings.Join(header, ","))
+	}
+	var out []Element
+	seen := map[[2]int]int{}
+	for {
+		fields, ln, err := lines.next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		if len(fields) != 4 {
+			return nil, Problemf(name, ln, "%d fields in %q; expected 4: row,col,amplitude_db,phase_deg", len(fields), strings.Join(fields, ","))
+		}
+		var e Element
+		for i, p := range []*int{&e.Row, &e.Col} {
+			n, err := strconv.Atoi(fields[i])
+			if err != nil || n < 0 || n > 1<<20 {
+				return nil, Problemf(name, ln, "%s %q is not a non-negative integer; expected an element index such as 0 or 15", want[i], fields[i])
+			}
+			*p = n
+		}
+		if e.AmplitudeDB, err = parseDecimal(fields[2]); err != nil {
+			return nil, Problemf(name, ln, "amplitude_db %q: %v", fields[2], err)
+		}
+		if e.PhaseDeg, err = parseDecimal(fields[3]); err != nil {
+			return nil, Problemf(name, ln, "phase_deg %q: %v", fields[3], err)
+		}
+		key := [2]int{e.Row, e.Col}
+		if first, dup := seen[key]; dup {
+			return nil, Problemf(name, ln, "element row %d col %d is already on line %d; expected each element once", e.Row, e.Col, first)
+		}
+		seen[key] = ln
+		out = append(out, e)
+	}
+	if len(out) == 0 {
+		return nil, Problemf(name, hl, "header but no elements; expected at least one row,col,amplitude_db,phase_deg line")
+	}
+	return out, nil
+}
+
+func sameFields(got, want []string) bool {
+	if len(got) != len(want) {
+		return false
+	}
+	for i := range got {
+		if !strings.EqualFold(got[i], want[i]) {
+			return false
+		}
+	}
+	return true
+}
+
+// readReferenceTable reads a reference antenna's table_file: header
+// `frequency_ghz,gain_dbi,uncertainty_db`, frequencies strictly increasing,
+// uncertainties not negative.
+func readReferenceTable(r io.Reader, name string) ([]ReferencePoint, error) {
+	lines := newCSVLines(r, name)
+	header, hl, err := lines.next()
+	if err == io.EOF {
+		return nil, Problemf(name, 0, "file is empty; expected a header frequency_ghz,gain_dbi,uncertainty_db and data lines")
+	}
+	if err != nil {
+		return nil, err
+	}
+	if !sameFields(header, []string{"frequency_ghz", "gain_dbi", "uncertainty_db"}) {
+		return nil, Problemf(name, hl, "header %q; expected frequency_ghz,gain_dbi,uncertainty_db", strings.Join(header, ","))
+	}
+	var out []ReferencePoint
+	var prevText string
+	for {
+		fields, ln, err := lines.next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		if len(fields) != 3 {
+			return nil, Problemf(name, ln, "%d fields in %q; expected 3: frequency_ghz,gain_dbi,uncertainty_db", len(fields), strings.Join(fields, ","))
+		}
+		var p ReferencePoint
+		p.Line = ln
+		if p.FrequencyHz, err = parseScaled(fields[0], 9); err != nil {
+			return nil, Problemf(name, ln, "frequency_ghz %q: %v", fields[0], err)
+		}
+		if p.FrequencyHz <= 0 {
+			return nil, Problemf(name, ln, "frequency_ghz %s is not positive; expected a frequency above 0", fields[0])
+		}
+		if n := len(out); n > 0 && p.FrequencyHz <= out[n-1].FrequencyHz {
+			return nil, Problemf(name, ln, "frequency %s GHz is not above the previous %s GHz; expected strictly increasing frequencies", fields[0], prevText)
+		}
+		if p.GainDBi, err = parseDecimal(fields[1]); err != nil {
+			return nil, Problemf(name, ln, "gain_dbi %q: %v", fields[1], err)
+		}
+		if p.ExpandedUncertaintyDB, err = parseDecimal(fields[2]); err != nil {
+			return nil, Problemf(name, ln, "uncertainty_db %q: %v", fields[2], err)
+		}
+		if p.ExpandedUncertaintyDB < 0 {
+			return nil, Problemf(name, ln, "uncertainty_db %s is negative; expected an expanded uncertainty >= 0 dB", fields[2])
+		}
+		out = append(out, p)
+		prevText = fields[0]
+	}
+	if len(out) == 0 {
+		return nil, Problemf(name, hl, "header but no data lines; expected at least one frequency_ghz,gain_dbi,uncertainty_db line")
+	}
+	return out, nil
+}
