@@ -41,6 +41,10 @@ type Network struct {
 	FrequencyHz []float64
 	// Z0 is the reference impedance of each port in ohms.
 	Z0 []float64
+	// Z0Complex is set only when a port's reference impedance is complex
+	// (an option line such as "R (50+50j)"); Z0 then holds the real parts.
+	// Such files are read for S-parameters only.
+	Z0Complex []complex128
 	// S holds one Ports x Ports matrix per frequency, row-major:
 	// S[(k*Ports+i)*Ports+j] is S_(i+1)(j+1) at FrequencyHz[k].
 	S []complex128

@@ -1,8 +1,20 @@
 package ingest
 
-import "io"
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"strconv"
+	"strings"
+)
 
 // TouchstoneFormat says how WriteTouchstone writes.
+//
+// Empty fields take these defaults: Version 1, Parameter S, Format RI,
+// FrequencyUnit GHz, R 50 (or the ports' reference impedance when they all
+// share one).
 type TouchstoneFormat struct {
 	Version       int     // 1 or 2
 	Parameter     string  // S, Y, Z (H, G for 2 ports): converted from the Network's S
@@ -12,7 +24,307 @@ type TouchstoneFormat struct {
 	Comments      []string
 }
 
-// WriteTouchstone writes n in Touchstone form as f says.
+// tsZeroDB is what DB format writes for an exact zero: 10^(-7000/20)
+// underflows to exactly 0 in float64, so the zero reads back as zero.
+const tsZeroDB = -7000
+
+// WriteTouchstone writes n as a Touchstone file in the form f describes.
+// Numbers are written with the shortest representation that reads back to
+// the same float64 (strconv 'g', -1), so RI data round-trips exactly and DB,
+// MA and Y/Z/H/G data to within the rounding of the conversions.
+//
+// A version-1 file has one reference resistance: every port's Z0 must
+// equal R. Version 2 writes [Reference] when the ports differ from R.
+// Complex reference impedances are not written.
 func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
-	return errUnfinished
+	if err := tsCheckNetwork(n); err != nil {
+		return err
+	}
+	if f.Version == 0 {
+		f.Version = 1
+	}
+	if f.Version != 1 && f.Version != 2 {
+		return fmt.Errorf("touchstone: version %d: expected 1 or 2", f.Version)
+	}
+	param := strings.ToUpper(f.Parameter)
+	if param == "" {
+		param = "S"
+	}
+	switch param {
+	case "S", "Y", "Z":
+	case "H", "G":
+		if n.Ports != 2 {
+			return fmt.Errorf("touchstone: %s-parameters need 2 ports, the network has %d", param, n.Ports)
+		}
+	default:
+		return fmt.Errorf("touchstone: parameter %q: expected S, Y, Z, H or G", f.Parameter)
+	}
+	format := strings.ToUpper(f.Format)
+	if format == "" {
+		format = "RI"
+	}
+	if format != "RI" && format != "MA" && format != "DB" {
+		return fmt.Errorf("touchstone: format %q: expected DB, MA or RI", f.Format)
+	}
+	unitName, unit := "GHz", 1e9
+	if f.FrequencyUnit != "" {
+		var ok bool
+		unitName = f.FrequencyUnit
+		unit, ok = map[string]float64{"hz": 1, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}[strings.ToLower(unitName)]
+		if !ok {
+			return fmt.Errorf("touchstone: frequency unit %q: expected Hz, kHz, MHz or GHz", f.FrequencyUnit)
+		}
+	}
+	N := n.Ports
+	R := f.R
+	if R == 0 {
+		R = 50
+		if tsAllEqual(n.Z0) {
+			R = n.Z0[0]
+		}
+	}
+	if !(R > 0) || math.IsInf(R, 0) {
+		return fmt.Errorf("touchstone: reference resistance %v is not positive", f.R)
+	}
+	sameAsR := true
+	for _, z := range n.Z0 {
+		if math.Abs(z-R) > 1e-12*R {
+			sameAsR = false
+		}
+	}
+	if f.Version == 1 && !sameAsR {
+		return fmt.Errorf("touchstone: the ports' reference impedances %v differ from R %v: a version-1 file has one reference resistance (write version 2)", n.Z0, R)
+	}
+	if f.Version == 1 && len(n.Noise) > 0 && n.Noise[0].FrequencyHz > n.FrequencyHz[len(n.FrequencyHz)-1] {
+		return fmt.Errorf("touchstone: a version-1 noise block must start at or below the last network frequency (write version 2)")
+	}
+
+	bw := bufio.NewWriter(w)
+	for _, c := range f.Comments {
+		for _, l := range strings.Split(strings.ReplaceAll(c, "\r\n", "\n"), "\n") {
+			bw.WriteString("! " + strings.TrimRight(l, " \t\r") + "\n")
+		}
+	}
+	if f.Version == 2 {
+		bw.WriteString("[Version] 2.0\n")
+	}
+	fmt.Fprintf(bw, "# %s %s %s R %s\n", unitName, param, format, tsFmtNum(R))
+	if f.Version == 2 {
+		fmt.Fprintf(bw, "[Number of Ports] %d\n", N)
+		if N == 2 {
+			bw.WriteString("[Two-Port Data Order] 12_21\n")
+		}
+		fmt.Fprintf(bw, "[Number of Frequencies] %d\n", len(n.FrequencyHz))
+		if len(n.Noise) > 0 {
+			fmt.Fprintf(bw, "[Number of Noise Frequencies] %d\n", len(n.Noise))
+		}
+		if !sameAsR {
+			bw.WriteString("[Reference]")
+			for _, z := range n.Z0 {
+				bw.WriteString(" " + tsFmtNum(z))
+			}
+			bw.WriteString("\n")
+		}
+		bw.WriteString("[Network Data]\n")
+	}
+
+	m := make([]complex128, N*N)
+	order := tsWriteOrder(N, f.Version)
+	var ws []complex128
+	num := make([]byte, 0, 64)
+	for k, fHz := range n.FrequencyHz {
+		copy(m, n.S[k*N*N:(k+1)*N*N])
+		if param != "S" {
+			if err := tsFromS(m, param, n.Z0, f.Version, R, &ws); err != nil {
+				return fmt.Errorf("touchstone: %s-parameters at %v Hz: %v", param, fHz, err)
+			}
+		}
+		num = strconv.AppendFloat(num[:0], fHz/unit, 'g', -1, 64)
+		bw.Write(num)
+		// 1- and 2-port points on one line; larger matrices one row per
+		// line, at most four pairs a line (the version-1 layout).
+		for p, idx := range order {
+			if N > 2 && p > 0 && (p%N == 0 || (p%N)%4 == 0) {
+				bw.WriteString("\n")
+			}
+			a, b := tsPair(m[idx], format)
+			bw.WriteByte(' ')
+			bw.Write(strconv.AppendFloat(num[:0], a, 'g', -1, 64))
+			bw.WriteByte(' ')
+			bw.Write(strconv.AppendFloat(num[:0], b, 'g', -1, 64))
+		}
+		bw.WriteString("\n")
+	}
+	if len(n.Noise) > 0 {
+		if f.Version == 2 {
+			bw.WriteString("[Noise Data]\n")
+		}
+		for _, p := range n.Noise {
+			rn := p.EffectiveNoiseResistanceOhm
+			if f.Version == 1 {
+				rn /= R
+			}
+			mag, ang := cmplx.Abs(p.GammaOpt), cmplx.Phase(p.GammaOpt)*180/math.Pi
+			fmt.Fprintf(bw, "%s %s %s %s %s\n", tsFmtNum(p.FrequencyHz/unit), tsFmtNum(p.MinNoiseFigureDB),
+				tsFmtNum(mag), tsFmtNum(ang), tsFmtNum(rn))
+		}
+	}
+	if f.Version == 2 {
+		bw.WriteString("[End]\n")
+	}
+	return bw.Flush()
+}
+
+// tsWriteOrder lists the row-major matrix indices in the order the file
+// holds them: 11 21 12 22 for a version-1 2-port, row-major otherwise
+// (version 2 declares 12_21 for 2 ports).
+func tsWriteOrder(N, version int) []int {
+	if N == 2 && version == 1 {
+		return []int{0, 2, 1, 3}
+	}
+	o := make([]int, N*N)
+	for i := range o {
+		o[i] = i
+	}
+	return o
+}
+
+func tsPair(c complex128, format string) (float64, float64) {
+	switch format {
+	case "RI":
+		return real(c), imag(c)
+	case "MA":
+		return cmplx.Abs(c), cmplx.Phase(c) * 180 / math.Pi
+	}
+	mag := cmplx.Abs(c)
+	if mag == 0 {
+		return tsZeroDB, 0
+	}
+	return 20 * math.Log10(mag), cmplx.Phase(c) * 180 / math.Pi
+}
+
+func tsAllEqual(v []float64) bool {
+	for _, x := range v {
+		if x != v[0] {
+			return false
+		}
+	}
+	return len(v) > 0
+}
+
+func tsCheckNetwork(n *Network) error {
+	if n == nil || n.Ports < 1 {
+		return fmt.Errorf("touchstone: the network has no ports")
+	}
+	N := n.Ports
+	if len(n.FrequencyHz) == 0 {
+		return fmt.Errorf("touchstone: the network has no frequency points")
+	}
+	if len(n.S) != len(n.FrequencyHz)*N*N {
+		return fmt.Errorf("touchstone: %d S values for %d frequencies of a %d-port network: expected %d", len(n.S), len(n.FrequencyHz), N, len(n.FrequencyHz)*N*N)
+	}
+	if len(n.Z0) != N {
+		return fmt.Errorf("touchstone: %d reference impedances for %d ports", len(n.Z0), N)
+	}
+	if n.Z0Complex != nil {
+		return fmt.Errorf("touchstone: complex reference impedances are not written")
+	}
+	for _, z := range n.Z0 {
+		if !(z > 0) || math.IsInf(z, 0) {
+			return fmt.Errorf("touchstone: reference impedance %v is not positive", z)
+		}
+	}
+	for k, f := range n.FrequencyHz {
+		if math.IsNaN(f) || math.IsInf(f, 0) || f < 0 || (k > 0 && f <= n.FrequencyHz[k-1]) {
+			return fmt.Errorf("touchstone: frequency %v at index %d is not above the previous one, or not a finite non-negative number", f, k)
+		}
+	}
+	for _, s := range n.S {
+		if cmplx.IsNaN(s) || cmplx.IsInf(s) {
+			return fmt.Errorf("touchstone: an S value is not finite")
+		}
+	}
+	return nil
+}
+
+// tsFromS converts one S matrix in place to param, with per-port real
+// reference impedances z0; version 1 normalises to R.
+func tsFromS(m []complex128, param string, z0 []float64, version int, R float64, ws *[]complex128) error {
+	N := len(z0)
+	a, b := tsScratch(ws, N)
+	switch param {
+	case "Z", "H", "G":
+		// zn = (I - S)^-1 (I + S); Z = D^-1 zn D^-1.
+		for i := range m {
+			a[i], b[i] = -m[i], m[i]
+		}
+		for i := 0; i < N; i++ {
+			a[i*N+i]++
+			b[i*N+i]++
+		}
+		if !tsSolve(a, b, N) {
+			return tsErrSingular
+		}
+		for i := 0; i < N; i++ {
+			for j := 0; j < N; j++ {
+				m[i*N+j] = b[i*N+j] * complex(math.Sqrt(z0[i]*z0[j]), 0)
+			}
+		}
+	case "Y":
+		// yn = (I + S)^-1 (I - S); Y = D yn D.
+		for i := range m {
+			a[i], b[i] = m[i], -m[i]
+		}
+		for i := 0; i < N; i++ {
+			a[i*N+i]++
+			b[i*N+i]++
+		}
+		if !tsSolve(a, b, N) {
+			return tsErrSingular
+		}
+		for i := 0; i < N; i++ {
+			for j := 0; j < N; j++ {
+				m[i*N+j] = b[i*N+j] / complex(math.Sqrt(z0[i]*z0[j]), 0)
+			}
+		}
+	}
+	switch param {
+	case "H":
+		z11, z12, z21, z22 := m[0], m[1], m[2], m[3]
+		if z22 == 0 {
+			return tsErrSingular
+		}
+		m[0], m[1], m[2], m[3] = (z11*z22-z12*z21)/z22, z12/z22, -z21/z22, 1/z22
+	case "G":
+		z11, z12, z21, z22 := m[0], m[1], m[2], m[3]
+		if z11 == 0 {
+			return tsErrSingular
+		}
+		m[0], m[1], m[2], m[3] = 1/z11, -z12/z11, z21/z11, (z11*z22-z12*z21)/z11
+	}
+	if version == 1 {
+		r := complex(R, 0)
+		switch param {
+		case "Z":
+			for i := range m {
+				m[i] /= r
+			}
+		case "Y":
+			for i := range m {
+				m[i] *= r
+			}
+		case "H":
+			m[0] /= r
+			m[3] *= r
+		case "G":
+			m[0] *= r
+			m[3] /= r
+		}
+	}
+	for _, v := range m {
+		if cmplx.IsNaN(v) || cmplx.IsInf(v) {
+			return tsErrSingular
+		}
+	}
+	return nil
 }
