@@ -1,0 +1,76 @@
+package reduce
+
+import (
+	"math"
+	"sort"
+)
+
+// NoSmoothing is the smoothing gtpack applies to noise traces: none. A
+// centred moving average would lower the point-to-point scatter but also
+// blur real ripple of the receiver over frequency, which a reader of the
+// report wants to see; the trace is therefore used as measured, and
+// NoiseStatistics.SmoothingPoints says so (1).
+const NoSmoothing = 1
+
+// RobustScatterDB is the point-to-point standard deviation of a trace in
+// dB (method.md section 5): sigma = 1.4826 * MAD(first differences) /
+// sqrt(2). First differences remove any slow trend over frequency; the
+// median absolute deviation ignores the odd spike. It returns 0 for fewer
+// than three values (fewer than two differences say nothing about scatter).
+func RobustScatterDB(values []float64) float64 {
+	if len(values) < 3 {
+		return 0
+	}
+	d := make([]float64, len(values)-1)
+	for i := range d {
+		d[i] = values[i+1] - values[i]
+	}
+	return MADNormalScale * noiseMAD(d) / math.Sqrt2
+}
+
+// SmoothedScatterDB is the scatter of a trace after a centred moving
+// average over n points: the raw scatter divided by sqrt(n) (method.md
+// section 5). n < 1 counts as 1.
+func SmoothedScatterDB(rawScatterDB float64, n int) float64 {
+	if n < 1 {
+		n = 1
+	}
+	return rawScatterDB / math.Sqrt(float64(n))
+}
+
+// RadiometerDB is the standard deviation in dB of a noise-power estimate
+// with noise bandwidth bandwidthHz and integration time integrationS
+// (Dicke's radiometer equation, method.md section 5): 4.343/sqrt(B*tau).
+// It returns 0 when B*tau is not positive (not given).
+func RadiometerDB(bandwidthHz, integrationS float64) float64 {
+	bt := bandwidthHz * integrationS
+	if !(bt > 0) || math.IsInf(bt, 0) {
+		return 0
+	}
+	return DBPerNeperPower / math.Sqrt(bt)
+}
+
+// noiseMedian returns the median of x (the mean of the two middle values for an
+// even count); x is not modified. It returns 0 for no values.
+func noiseMedian(x []float64) float64 {
+	if len(x) == 0 {
+		return 0
+	}
+	s := append([]float64(nil), x...)
+	sort.Float64s(s)
+	n := len(s)
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
+
+// noiseMAD is noiseMedian(|x - noiseMedian(x)|).
+func noiseMAD(x []float64) float64 {
+	m := noiseMedian(x)
+	dev := make([]float64, len(x))
+	for i, v := range x {
+		dev[i] = math.Abs(v - m)
+	}
+	return noiseMedian(dev)
+}

@@ -1,0 +1,304 @@
+package reduce
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"time"
+
+	"gtpack.example/gtpack/ingest"
+)
+
+// Input is everything ReduceUnit needs for one unit's acceptance run.
+type Input struct {
+	Run       *ingest.Run
+	Data      *ingest.RunData   // may have nil entries for refused files
+	Station   *ingest.Station   // nil when unknown/refused
+	Reference *ingest.Reference // nil when unknown/refused
+	Spec      *ingest.Spec      // nil when unknown/refused
+	Problems  []*ingest.Problem // what ingest refused for this run
+	History   []HistoryEntry    // earlier runs, filled by the caller
+}
+
+// ReduceUnit reduces one unit's acceptance run: range loss, gain and G/T
+// of every beam with their budgets, the limits and the verdict, scan
+// behaviour and element state. It never panics and reduces everything that
+// can be reduced; what could not be is listed in Problems, and then the
+// verdict is incomplete.
+func ReduceUnit(in Input) (u *Unit) {
+	u = &Unit{
+		Schema:   ResultSchema,
+		Beams:    []Beam{},
+		Limits:   []LimitResult{},
+		Flags:    []Flag{},
+		Problems: []ingest.Problem{},
+		History:  append([]HistoryEntry{}, in.History...),
+		Inputs:   []ingest.InputFile{},
+	}
+	for _, p := range in.Problems {
+		if p != nil {
+			u.Problems = append(u.Problems, *p)
+		}
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			file := ""
+			if in.Run != nil {
+				file = in.Run.File
+			}
+			u.Problems = append(u.Problems, ingest.Problem{File: file,
+				Message: fmt.Sprintf("internal error while reducing this run (%v): results are partial", r)})
+			u.Verdict = VerdictIncomplete
+		}
+	}()
+	reduceInto(u, in)
+	return u
+}
+
+func reduceInto(u *Unit, in Input) {
+	run := in.Run
+	if run == nil {
+		u.Problems = append(u.Problems, ingest.Problem{Message: "no run description: nothing to reduce"})
+		u.Verdict = VerdictIncomplete
+		return
+	}
+	// addProblem records a problem unless one about the same file is
+	// already listed (ingest's refusal of a file says it first).
+	named := map[string]bool{}
+	for _, p := range u.Problems {
+		named[p.File] = true
+	}
+	addProblem := func(p *ingest.Problem, dedupe bool) {
+		if p == nil || (dedupe && p.File != "" && named[p.File]) {
+			return
+		}
+		named[p.File] = true
+		u.Problems = append(u.Problems, *p)
+	}
+	u.Serial, u.Product, u.Run = run.Serial, run.Product, run.Dir
+	if !run.Started.IsZero() {
+		u.Started = run.Started.UTC().Format(time.RFC3339)
+	}
+	u.Operator, u.AmbientC, u.Firmware = run.Operator, run.AmbientC, run.Firmware
+	data := in.Data
+	if data == nil {
+		addProblem(ingest.Problemf(run.File, 0, "the run's data files were not read: no beam can be reduced"), false)
+		data = &ingest.RunData{}
+	}
+	u.Notes = data.Notes
+	u.Inputs = append(u.Inputs, data.Inputs...)
+
+	ctx := &beamContext{run: run, referenceK: ExpandedCoverageK}
+	ctx.ambientK = run.AmbientC + CelsiusOffsetK
+	ctx.ambientOK = ctx.ambientK > 0 && !math.IsNaN(ctx.ambientK) && !math.IsInf(ctx.ambientK, 0)
+	if !ctx.ambientOK {
+		addProblem(ingest.Problemf(run.File, 0, "ambient_c %g is below absolute zero: no ambient term", run.AmbientC), false)
+	}
+
+	if st := in.Station; st != nil {
+		u.Station = StationInfo{ID: st.ID, Description: st.Description, ReceiverMatch: st.ReceiverMatch,
+			DriftToleranceDB: st.DriftToleranceDB, MethodToleranceDB: st.MethodToleranceDB}
+		ctx.haveStation = true
+		ctx.receiverMatch = math.Abs(st.ReceiverMatch)
+		ctx.methodTolDB = st.MethodToleranceDB
+		if ctx.receiverMatch >= 1 || math.IsNaN(ctx.receiverMatch) {
+			addProblem(ingest.Problemf(st.File, 0, "receiver_match %g is not below 1: no mismatch terms", st.ReceiverMatch), false)
+			ctx.haveStation = false
+		}
+		ctx.stationGain, ctx.stationGT = stationTerms(st, func(p *ingest.Problem) { addProblem(p, false) })
+	} else {
+		u.Station = StationInfo{ID: run.Station}
+		addProblem(ingest.Problemf(run.File, 0, "station %q is unknown or was refused: no receiver match, "+
+			"tolerances or station terms in the budgets", run.Station), false)
+	}
+
+	if ref := in.Reference; ref != nil {
+		u.Reference = ReferenceInfo{ID: ref.ID, Description: ref.Description, Certificate: ref.Certificate,
+			Calibrated: formatDate(ref.Calibrated), Due: formatDate(ref.Due), GainKind: ref.GainKind}
+		ctx.certificate = ref.Certificate
+		if ref.CoverageK > 0 && !math.IsInf(ref.CoverageK, 0) {
+			ctx.referenceK = ref.CoverageK
+		} else {
+			addProblem(ingest.Problemf(ref.File, 0, "reference %s: coverage_k %g is not positive; k = 2 is assumed",
+				ref.ID, ref.CoverageK), false)
+		}
+		if ReferenceExpired(run.Started, ref.Due) {
+			u.Reference.Expired = true
+			u.Flags = append(u.Flags, Flag{Kind: "reference-expired", Message: fmt.Sprintf(
+				"reference %s was due for calibration on %s; the run started on %s",
+				ref.ID, formatDate(ref.Due), formatDate(run.Started))})
+		}
+		pre, post := data.RangePre, data.RangePost
+		if pre == nil && run.RangePre != "" {
+			addProblem(ingest.Problemf(run.RangePre, 0, "the pre reference measurement was refused or is missing"), true)
+		}
+		if post == nil && run.RangePost != "" {
+			addProblem(ingest.Problemf(run.RangePost, 0, "the post reference measurement was refused or is missing"), true)
+		}
+		if pre == nil && post == nil {
+			addProblem(ingest.Problemf(run.File, 0, "no usable reference measurement: no range loss, so no gain and no G/T"), false)
+		}
+		rl, probs, flags := ComputeRangeLoss(ref, pre, post)
+		for _, p := range probs {
+			addProblem(p, false)
+		}
+		u.Flags = append(u.Flags, flags...)
+		ctx.rl = rl
+		if rl != nil {
+			if rl.ReferenceMatch == nil && ctx.haveStation {
+				u.Flags = append(u.Flags, Flag{Kind: "budget", Message: fmt.Sprintf(
+					"%s holds no reflection coefficient of the reference antenna: its mismatch term is left out of the budgets",
+					joinList(rl.Files))})
+			}
+			if rl.DriftDB != nil && in.Station != nil && in.Station.DriftToleranceDB > 0 {
+				worst, at := 0.0, 0.0
+				for i, d := range rl.DriftDB {
+					if d > worst {
+						worst, at = d, rl.FrequencyHz[i]
+					}
+				}
+				if worst > in.Station.DriftToleranceDB {
+					u.Flags = append(u.Flags, Flag{Kind: "drift", Message: fmt.Sprintf(
+						"range loss changed by up to %.3f dB between pre and post (at %s), more than the station's tolerance %.3f dB",
+						worst, formatGHz(at), in.Station.DriftToleranceDB)})
+				}
+			}
+		}
+	} else {
+		u.Reference = ReferenceInfo{ID: run.Reference}
+		addProblem(ingest.Problemf(run.File, 0, "reference %q is unknown or was refused: no range loss, so no gain and no G/T",
+			run.Reference), false)
+	}
+
+	if sp := in.Spec; sp != nil {
+		u.DecisionRule, u.SpecTitle = sp.DecisionRule, sp.Title
+		ctx.operatingK = sp.OperatingAntennaK
+	} else {
+		addProblem(ingest.Problemf(run.File, 0, "spec for product %q is unknown or was refused: nothing can be judged",
+			run.Product), false)
+	}
+
+	var noMatch []string
+	for i := range run.Beams {
+		var bd *ingest.BeamData
+		if i < len(data.Beams) {
+			bd = &data.Beams[i]
+		}
+		b, out := reduceBeam(ctx, &run.Beams[i], bd)
+		for _, p := range out.refused {
+			addProblem(p, true)
+		}
+		for _, p := range out.problems {
+			addProblem(p, false)
+		}
+		u.Flags = append(u.Flags, out.flags...)
+		if out.noAUTMatch && ctx.haveStation {
+			noMatch = append(noMatch, b.ID)
+		}
+		if b.Projection != nil && !b.Projection.Usable() {
+			u.Flags = append(u.Flags, Flag{Kind: "projection", Beam: b.ID, Message: b.Projection.Assumptions})
+		}
+		u.Beams = append(u.Beams, b)
+	}
+	if len(run.Beams) == 0 {
+		addProblem(ingest.Problemf(run.File, 0, "the run has no beams"), false)
+	}
+	if len(noMatch) > 0 {
+		u.Flags = append(u.Flags, Flag{Kind: "budget", Message: fmt.Sprintf(
+			"the transmission files of beam(s) %s hold no reflection coefficient of the AUT: "+
+				"its mismatch term is left out of their gain budgets", strings.Join(noMatch, ", "))})
+	}
+
+	var limits []ingest.Limit
+	if in.Spec != nil {
+		limits = in.Spec.Limits
+		res, probs := EvaluateLimits(in.Spec, u.Beams)
+		u.Limits = res
+		for _, p := range probs {
+			addProblem(p, false)
+		}
+	}
+	u.Scan = ScanBehaviour(u.Beams, limits)
+	if len(data.Elements) > 0 {
+		var tol *float64
+		if in.Spec != nil {
+			tol = in.Spec.ElementPhaseRMSToleranceDeg
+		}
+		u.Elements = AnalyseElements(data.Elements, tol)
+		if e := u.Elements; e != nil && e.Flagged {
+			u.Flags = append(u.Flags, Flag{Kind: "elements", Message: fmt.Sprintf(
+				"residual element phase rms %.1f deg is above the spec's tolerance", e.RMSResidualDeg)})
+		}
+	}
+	u.Verdict = unitVerdict(u)
+}
+
+// unitVerdict is the worst verdict of the limits, or incomplete when a
+// problem was met or nothing was judged.
+func unitVerdict(u *Unit) string {
+	if len(u.Problems) > 0 || len(u.Limits) == 0 {
+		return VerdictIncomplete
+	}
+	v := VerdictPass
+	for _, l := range u.Limits {
+		v = WorseVerdict(v, l.Verdict)
+	}
+	return v
+}
+
+// ReferenceExpired reports whether a run started on a calendar day (UTC)
+// after the reference's due date. A zero due date never expires.
+func ReferenceExpired(started, due time.Time) bool {
+	if due.IsZero() || started.IsZero() {
+		return false
+	}
+	s, d := started.UTC(), due.UTC()
+	sd := time.Date(s.Year(), s.Month(), s.Day(), 0, 0, 0, 0, time.UTC)
+	dd := time.Date(d.Year(), d.Month(), d.Day(), 0, 0, 0, 0, time.UTC)
+	return sd.After(dd)
+}
+
+func formatDate(t time.Time) string {
+	if t.IsZero() {
+		return ""
+	}
+	return t.UTC().Format("2006-01-02")
+}
+
+// stationTerms checks the station's declared terms and splits them by the
+// quantity they apply to, in declared order.
+func stationTerms(st *ingest.Station, problem func(*ingest.Problem)) (gain, gt []stationTerm) {
+	for _, t := range st.Uncertainty {
+		div, err := Divisor(t.Distribution, t.CoverageK)
+		if err != nil {
+			problem(ingest.Problemf(st.File, t.Line, "uncertainty term %q left out: %v", t.Name, err))
+			continue
+		}
+		if math.IsNaN(t.ValueDB) || math.IsInf(t.ValueDB, 0) {
+			problem(ingest.Problemf(st.File, t.Line, "uncertainty term %q left out: value_db is not a finite number", t.Name))
+			continue
+		}
+		name := t.Name
+		dist := strings.ToLower(t.Distribution)
+		if dist == distributionNormal {
+			name = fmt.Sprintf("%s (k = %g)", t.Name, t.CoverageK)
+		}
+		term := stationTerm{name: name, distribution: dist, divisor: div, valueDB: math.Abs(t.ValueDB)}
+		used := false
+		for _, a := range t.AppliesTo {
+			switch a {
+			case quantityGain:
+				gain = append(gain, term)
+				used = true
+			case quantityGT:
+				gt = append(gt, term)
+				used = true
+			}
+		}
+		if !used {
+			problem(ingest.Problemf(st.File, t.Line, "uncertainty term %q applies to %v, neither gain nor gt: left out",
+				t.Name, t.AppliesTo))
+		}
+	}
+	return gain, gt
+}
