@@ -198,6 +198,16 @@ type LimitResult struct {
 	// ExpandedUncertaintyDB is U at that point.
 	ExpandedUncertaintyDB float64 `json:"expanded_uncertainty_db"`
 	Verdict               string  `json:"verdict"`
+	// LimitCurve is the limit on this beam as the vertices of a
+	// piecewise-linear line over the judged band (scan law applied), so
+	// that a report can draw it; nil when not filled in.
+	LimitCurve []LimitVertex `json:"limit_curve,omitempty"`
+}
+
+// LimitVertex is one vertex of a limit line.
+type LimitVertex struct {
+	FrequencyHz float64 `json:"frequency_hz"`
+	ValueDB     float64 `json:"value_db"`
 }
 
 // Flag is a condition worth attention.
