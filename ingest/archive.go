@@ -310,7 +310,7 @@ func (f *archiveFS) resolve(rel string) (string, string) {
 	case strings.HasPrefix(rel, "/") || filepath.IsAbs(rel):
 		return "", "is an absolute path; expected a path relative to the file's folder, inside the archive"
 	case rel == ".." || strings.HasPrefix(rel, "../"):
-		return "", "leads out of the archive; expected a path that stays inside it"
+		return "", "(relative to the archive root) leads out of the archive; expected a path that stays inside it"
 	}
 	full := filepath.Join(f.root, filepath.FromSlash(rel))
 	real, err := filepath.EvalSymlinks(full)

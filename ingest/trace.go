@@ -108,7 +108,7 @@ func ReadTrace(r io.Reader, name string) (*Trace, error) {
 			return nil, err
 		}
 		if len(fields) != 2 {
-			return nil, Problemf(name, ln, "%d fields in %q; expected 2: frequency, %s", len(fields), strings.Join(fields, ","), t.Column)
+			return nil, Problemf(name, ln, "%s in %q; expected 2: frequency, %s", countFields(len(fields)), strings.Join(fields, ","), t.Column)
 		}
 		f, err := parseScaled(fields[0], exp)
 		if err != nil {
@@ -298,7 +298,7 @@ func ReadElements(r io.Reader, name string) ([]Element, error) {
 			return nil, err
 		}
 		if len(fields) != 4 {
-			return nil, Problemf(name, ln, "%d fields in %q; expected 4: row,col,amplitude_db,phase_deg", len(fields), strings.Join(fields, ","))
+			return nil, Problemf(name, ln, "%s in %q; expected 4: row,col,amplitude_db,phase_deg", countFields(len(fields)), strings.Join(fields, ","))
 		}
 		var e Element
 		for i, p := range []*int{&e.Row, &e.Col} {
@@ -325,6 +325,13 @@ func ReadElements(r io.Reader, name string) ([]Element, error) {
 		return nil, Problemf(name, hl, "header but no elements; expected at least one row,col,amplitude_db,phase_deg line")
 	}
 	return out, nil
+}
+
+func countFields(n int) string {
+	if n == 1 {
+		return "1 field"
+	}
+	return fmt.Sprintf("%d fields", n)
 }
 
 func sameFields(got, want []string) bool {
@@ -365,7 +372,7 @@ func readReferenceTable(r io.Reader, name string) ([]ReferencePoint, error) {
 			return nil, err
 		}
 		if len(fields) != 3 {
-			return nil, Problemf(name, ln, "%d fields in %q; expected 3: frequency_ghz,gain_dbi,uncertainty_db", len(fields), strings.Join(fields, ","))
+			return nil, Problemf(name, ln, "%s in %q; expected 3: frequency_ghz,gain_dbi,uncertainty_db", countFields(len(fields)), strings.Join(fields, ","))
 		}
 		var p ReferencePoint
 		p.Line = ln
