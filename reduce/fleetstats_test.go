@@ -1,0 +1,262 @@
+package reduce
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"reflect"
+	"testing"
+)
+
+// marginUnits makes one unit per margin, serials U01..., started one day
+// apart in the order given, each with one limit "L" on one beam.
+func marginUnits(margins []float64) []UnitSummary {
+	var us []UnitSummary
+	for i, m := range margins {
+		v := VerdictPass
+		if m < 0 {
+			v = VerdictFail
+		}
+		us = append(us, UnitSummary{
+			Serial:  fmt.Sprintf("U%02d", i+1),
+			Product: "P",
+			Started: fmt.Sprintf("2026-11-%02dT09:00:00Z", i+1),
+			Verdict: v,
+			Limits:  []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: m, Verdict: v}},
+		})
+	}
+	return us
+}
+
+func TestFleetCpkAndControlChart(t *testing.T) {
+	// Margins in test order 1.0, 2.0, 1.5, 3.0, 2.5 (worked by hand):
+	//   mean = 10/5 = 2.0; squared deviations 1, 0, 0.25, 1, 0.25 = 2.5;
+	//   s = sqrt(2.5/4) = 0.790569 (sample, n-1);
+	//   Cpk = (2.0 - 0)/(3*0.790569) = 0.843274 (ISO 22514-2, LSL 0);
+	//   moving ranges 1, 0.5, 1.5, 0.5, mean 0.875;
+	//   limits 2.0 -/+ 2.66*0.875 = -0.3275, 4.3275 (Shewhart individuals
+	//   chart, 2.66 = 3/1.128, general knowledge); no point beyond.
+	us := marginUnits([]float64{1.0, 2.0, 1.5, 3.0, 2.5})
+	// Serials out of test order: the chart must follow Started.
+	us[0].Serial, us[4].Serial = "U05", "U01"
+	f := ComputeFleet(us)
+	ls := f.Products[0].Limits[0]
+	checks := []struct {
+		name      string
+		got, want float64
+	}{
+		{"mean", ls.MeanMarginDB, 2.0},
+		{"std", ls.StdMarginDB, 0.790569},
+		{"Cpk", ls.Cpk, 0.843274},
+		{"mean moving range", ls.Chart.MeanMovingRange, 0.875},
+		{"centre", ls.Chart.CentreDB, 2.0},
+		{"upper", ls.Chart.UpperDB, 4.3275},
+		{"lower", ls.Chart.LowerDB, -0.3275},
+		{"yield", ls.Yield, 1},
+	}
+	for _, c := range checks {
+		if math.Abs(c.got-c.want) > 1e-6 {
+			t.Errorf("%s = %.6f, want %.6f", c.name, c.got, c.want)
+		}
+	}
+	if want := []string{"U05", "U02", "U03", "U04", "U01"}; !reflect.DeepEqual(ls.Chart.Serials, want) {
+		t.Errorf("chart order %v, want %v", ls.Chart.Serials, want)
+	}
+	if want := []float64{1.0, 2.0, 1.5, 3.0, 2.5}; !reflect.DeepEqual(ls.Chart.ValuesDB, want) {
+		t.Errorf("chart values %v, want %v", ls.Chart.ValuesDB, want)
+	}
+	if len(ls.Chart.Beyond) != 0 || len(ls.Outliers) != 0 {
+		t.Errorf("beyond %v outliers %v, want none", ls.Chart.Beyond, ls.Outliers)
+	}
+
+	// Nine margins of 0 then 5 (by hand): mean 0.5, moving ranges eight 0s
+	// and one 5, mean 5/9 = 0.555556; upper = 0.5 + 2.66*0.555556 = 1.977778:
+	// the last point (index 9) is beyond. The MAD is 0 (nine equal values),
+	// so there are no modified-z outliers (Iglewicz and Hoaglin: MAD = 0
+	// leaves z undefined).
+	ls = ComputeFleet(marginUnits([]float64{0, 0, 0, 0, 0, 0, 0, 0, 0, 5})).Products[0].Limits[0]
+	if math.Abs(ls.Chart.UpperDB-1.977778) > 1e-6 || !reflect.DeepEqual(ls.Chart.Beyond, []int{9}) {
+		t.Errorf("upper %.6f beyond %v, want 1.977778 [9]", ls.Chart.UpperDB, ls.Chart.Beyond)
+	}
+	if len(ls.Outliers) != 0 {
+		t.Errorf("outliers %v with MAD 0", ls.Outliers)
+	}
+
+	// One unit: no spread, Cpk 0 by definition here.
+	ls = ComputeFleet(marginUnits([]float64{1.2})).Products[0].Limits[0]
+	if ls.Cpk != 0 || ls.StdMarginDB != 0 || ls.MeanMarginDB != 1.2 || ls.Chart.UpperDB != 1.2 {
+		t.Errorf("one unit: %+v", ls)
+	}
+}
+
+func TestFleetModifiedZOutliers(t *testing.T) {
+	// Iglewicz and Hoaglin (1993), z = 0.6745*(x - median)/MAD, |z| > 3.5.
+	// Margins 1.0, 1.2, 0.9, 1.1, 1.0, 4.0, 0.8 (by hand): sorted 0.8 0.9 1.0
+	// 1.0 1.1 1.2 4.0, median 1.0; absolute deviations 0 0 0.1 0.1 0.2 0.2 3.0,
+	// MAD 0.1. The planted outlier is U06 (4.0): z = 0.6745*3.0/0.1 = 20.235.
+	// The next largest, 1.2 and 0.8, have |z| = 0.6745*0.2/0.1 = 1.349 < 3.5.
+	ls := ComputeFleet(marginUnits([]float64{1.0, 1.2, 0.9, 1.1, 1.0, 4.0, 0.8})).Products[0].Limits[0]
+	if len(ls.Outliers) != 1 {
+		t.Fatalf("outliers %v, want U06 only", ls.Outliers)
+	}
+	o := ls.Outliers[0]
+	if o.Serial != "U06" || o.MarginDB != 4.0 || math.Abs(o.ModifiedZ-20.235) > 1e-9 {
+		t.Errorf("outlier %+v, want U06 4.0 z 20.235", o)
+	}
+}
+
+func TestFleetYieldAndVerdicts(t *testing.T) {
+	// Yield = (pass + conditional-pass)/judged; incomplete results are not
+	// judged. Per unit the worst margin over the limit's beams counts.
+	lim := func(beam string, m float64, v string) LimitResult {
+		return LimitResult{Name: "G/T", Beam: beam, WorstMarginDB: m, Verdict: v}
+	}
+	us := []UnitSummary{
+		{Serial: "A", Product: "P", Verdict: VerdictPass, Limits: []LimitResult{lim("b00", 1.0, VerdictPass), lim("b30", 0.4, VerdictPass)}},
+		{Serial: "B", Product: "P", Verdict: VerdictConditionalPass, Limits: []LimitResult{lim("b00", 0.1, VerdictConditionalPass), lim("b30", 0.9, VerdictPass)}},
+		{Serial: "C", Product: "P", Verdict: VerdictConditionalFail, Limits: []LimitResult{lim("b00", -0.1, VerdictConditionalFail)}},
+		{Serial: "D", Product: "P", Verdict: VerdictFail, Limits: []LimitResult{lim("b00", 2.0, VerdictPass), lim("b30", -1.0, VerdictFail)}},
+		{Serial: "E", Product: "P", Verdict: VerdictIncomplete, Limits: []LimitResult{lim("b00", 0, VerdictIncomplete)}},
+		{Serial: "F", Product: "Q", Verdict: VerdictPass, Limits: []LimitResult{lim("b00", 3.0, VerdictPass)}},
+	}
+	f := ComputeFleet(us)
+	if len(f.Products) != 2 || f.Products[0].Product != "P" || f.Products[1].Product != "Q" {
+		t.Fatalf("products %+v", f.Products)
+	}
+	p := f.Products[0]
+	wantCounts := map[string]int{VerdictPass: 1, VerdictConditionalPass: 1, VerdictConditionalFail: 1, VerdictFail: 1, VerdictIncomplete: 1}
+	if p.Units != 5 || !reflect.DeepEqual(p.VerdictCounts, wantCounts) {
+		t.Errorf("units %d counts %v", p.Units, p.VerdictCounts)
+	}
+	ls := p.Limits[0]
+	if ls.Units != 4 || ls.Passed != 2 || ls.Yield != 0.5 {
+		t.Errorf("judged %d passed %d yield %g, want 4 2 0.5", ls.Units, ls.Passed, ls.Yield)
+	}
+	// Worst margins per unit: A 0.4, B 0.1, C -0.1, D -1.0 (sorted by serial
+	// as no unit has a start time).
+	if want := []float64{0.4, 0.1, -0.1, -1.0}; !reflect.DeepEqual(ls.Chart.ValuesDB, want) {
+		t.Errorf("worst margins %v, want %v", ls.Chart.ValuesDB, want)
+	}
+}
+
+// bandFleet makes ten passing units of product P with boresight G/T
+// base(f) + offset(u), offsets -0.1, -0.05, 0, 0.05, 0.1 twice over.
+func bandFleet() []UnitSummary {
+	fs := gridHz(11, 12, 0.1) // 11 points
+	var us []UnitSummary
+	for u := range 10 {
+		off := 0.05 * float64(u%5-2)
+		tr := &BoresightTrace{Beam: "b00"}
+		for _, f := range fs {
+			tr.FrequencyHz = append(tr.FrequencyHz, f)
+			tr.GTdBPerK = append(tr.GTdBPerK, 3+0.4*(f/1e9-11)+off)
+		}
+		us = append(us, UnitSummary{
+			Serial: fmt.Sprintf("U%02d", u), Product: "P", Verdict: VerdictPass,
+			Started:   fmt.Sprintf("2026-10-%02dT08:00:00Z", 20-u),
+			Limits:    []LimitResult{{Name: "L", WorstMarginDB: 1 + off, Verdict: VerdictPass}},
+			Boresight: tr,
+		})
+	}
+	return us
+}
+
+func TestFleetGoldenBandAndWatch(t *testing.T) {
+	us := bandFleet()
+	// U04 (passing) planted 1 dB low at 11.3, 11.4 and 11.5 GHz; U07 fails
+	// and is planted 1 dB low at 11.8 and 11.9 GHz: only U04 is watched.
+	for _, k := range []int{3, 4, 5} {
+		us[4].Boresight.GTdBPerK[k] -= 1
+	}
+	us[7].Verdict = VerdictFail
+	for _, k := range []int{8, 9} {
+		us[7].Boresight.GTdBPerK[k] -= 1
+	}
+	// U09 on another, narrower grid (interpolation is exact: linear in f).
+	tr := us[9].Boresight
+	tr.FrequencyHz, tr.GTdBPerK = nil, nil
+	for _, f := range gridHz(11.05, 11.95, 0.15) {
+		tr.FrequencyHz = append(tr.FrequencyHz, f)
+		tr.GTdBPerK = append(tr.GTdBPerK, 3+0.4*(f/1e9-11)+0.1)
+	}
+
+	f := ComputeFleet(us)
+	p := f.Products[0]
+	if p.Band == nil {
+		t.Fatal("no band")
+	}
+	if p.Band.Units != 10 || len(p.Band.FrequencyHz) != 11 {
+		t.Errorf("band of %d units at %d frequencies, want 10 at 11", p.Band.Units, len(p.Band.FrequencyHz))
+	}
+	// At 11.0 GHz (k = 0) only nine units cover (U09 starts at 11.05):
+	// offsets -0.1 -0.05 0 0.05 0.1 -0.1 -0.05 0 0.05 around 3.0, by hand
+	// median 0, absolute deviations 0 0 .05 .05 .05 .05 .1 .1 .1 -> MAD 0.05,
+	// half-width 3*1.4826*0.05 = 0.222390 (band = median -/+ 3*1.4826*MAD).
+	if math.Abs(p.Band.MedianDB[0]-3.0) > 1e-9 || math.Abs(p.Band.HighDB[0]-3.222390) > 1e-9 ||
+		math.Abs(p.Band.LowDB[0]-2.777610) > 1e-9 {
+		t.Errorf("band at 11 GHz: %g [%g, %g], want 3 [2.777610, 3.222390]",
+			p.Band.MedianDB[0], p.Band.LowDB[0], p.Band.HighDB[0])
+	}
+	// At 11.1 GHz (k = 1) all ten: offsets twice -0.1..0.1, median 0,
+	// deviations 0 0 .05 .05 .05 .05 .1 .1 .1 .1 -> MAD 0.05 again.
+	if math.Abs(p.Band.MedianDB[1]-3.04) > 1e-9 || math.Abs(p.Band.HighDB[1]-p.Band.MedianDB[1]-0.222390) > 1e-9 {
+		t.Errorf("band at 11.1 GHz: %g [%g, %g]", p.Band.MedianDB[1], p.Band.LowDB[1], p.Band.HighDB[1])
+	}
+	if len(p.Watch) != 1 || p.Watch[0].Serial != "U04" {
+		t.Fatalf("watch %+v, want U04 only", p.Watch)
+	}
+	want := []float64{11.3e9, 11.4e9, 11.5e9}
+	got := p.Watch[0].FrequenciesHz
+	if len(got) != len(want) {
+		t.Fatalf("U04 watched at %v, want %v", got, want)
+	}
+	for i := range want {
+		if math.Abs(got[i]-want[i]) > 1 {
+			t.Errorf("U04 watched at %v, want %v", got, want)
+		}
+	}
+
+	// Units out in serial order, without boresight traces.
+	for i, u := range f.Units {
+		if u.Serial != fmt.Sprintf("U%02d", i) || u.Boresight != nil {
+			t.Errorf("unit %d: %s boresight %v", i, u.Serial, u.Boresight != nil)
+		}
+	}
+	if us[0].Boresight == nil {
+		t.Error("the input was modified")
+	}
+}
+
+func TestFleetBandNeedsFiveUnits(t *testing.T) {
+	us := bandFleet()[:4]
+	us[1].Boresight.GTdBPerK[0] -= 5
+	p := ComputeFleet(us).Products[0]
+	if p.Band != nil || len(p.Watch) != 0 {
+		t.Errorf("four units: band %v watch %v, want none", p.Band, p.Watch)
+	}
+}
+
+func TestFleetDeterministic(t *testing.T) {
+	// The same units in another order give byte-identical JSON.
+	us := bandFleet()
+	us[4].Boresight.GTdBPerK[2] -= 1
+	a, err := json.Marshal(ComputeFleet(us))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rev := append([]UnitSummary(nil), us...)
+	for i, j := 0, len(rev)-1; i < j; i, j = i+1, j-1 {
+		rev[i], rev[j] = rev[j], rev[i]
+	}
+	b, err := json.Marshal(ComputeFleet(rev))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if string(a) != string(b) {
+		t.Error("fleet JSON depends on the order of units")
+	}
+	empty, err := json.Marshal(ComputeFleet(nil))
+	if err != nil || string(empty) != `{"schema":1,"units":[],"products":[]}` {
+		t.Errorf("empty fleet: %s %v", empty, err)
+	}
+}
