@@ -60,11 +60,10 @@ func Verdict(rule string, marginDB, expandedU float64) string {
 // ScanLawDB is the scan-law term 10*n*log10(cos theta) of a limit
 // (method.md section 8). It is NaN for |theta| >= 90 deg.
 func ScanLawDB(exponentN, thetaDeg float64) float64 {
-	c := math.Cos(thetaDeg * math.Pi / 180)
-	if !(c > 0) {
+	if !(math.Abs(thetaDeg) < 90) {
 		return math.NaN()
 	}
-	return 10 * exponentN * math.Log10(c)
+	return 10 * exponentN * math.Log10(math.Cos(thetaDeg*math.Pi/180))
 }
 
 // SelectsBeam reports whether a limit's selector chooses a beam: by id when
@@ -231,7 +230,8 @@ func judgeBeam(l *ingest.Limit, curve func(float64) float64, rule string, b *Bea
 		return nil, fmt.Sprintf("limit %q cannot judge beam %s: no frequency of the beam lies in the band %s to %s",
 			l.Name, b.ID, formatGHz(lo), formatGHz(hi))
 	}
-	r := &LimitResult{Name: l.Name, Quantity: l.Quantity, Beam: b.ID, Statistic: l.Statistic}
+	r := &LimitResult{Name: l.Name, Quantity: l.Quantity, Beam: b.ID, Statistic: l.Statistic,
+		LimitCurve: limitVertices(l, curve, law)}
 	if l.Statistic == "mean" {
 		var sx, sl, su float64
 		for _, i := range idx {
@@ -271,4 +271,20 @@ func judgeBeam(l *ingest.Limit, curve func(float64) float64, rule string, b *Bea
 		return r, msg
 	}
 	return r, ""
+}
+
+// limitVertices is the limit line over the band: the band edges and the
+// limit points between them, scan law applied.
+func limitVertices(l *ingest.Limit, curve func(float64) float64, law float64) []LimitVertex {
+	lo, hi := l.BandHz[0], l.BandHz[1]
+	v := []LimitVertex{{FrequencyHz: lo, ValueDB: curve(lo) + law}}
+	for _, p := range l.Points {
+		if p.FrequencyHz > lo && p.FrequencyHz < hi {
+			v = append(v, LimitVertex{FrequencyHz: p.FrequencyHz, ValueDB: curve(p.FrequencyHz) + law})
+		}
+	}
+	if hi > lo {
+		v = append(v, LimitVertex{FrequencyHz: hi, ValueDB: curve(hi) + law})
+	}
+	return v
 }
