@@ -453,7 +453,11 @@ func tsParseImpedance(s string) (complex128, bool) {
 	if len(s) < 3 || s[0] != '(' || s[len(s)-1] != ')' {
 		return 0, false
 	}
-	c, err := strconv.ParseComplex(s[1:len(s)-1], 128)
+	in := strings.ReplaceAll(s[1:len(s)-1], "j", "i")
+	if strings.ContainsAny(in, "nN") { // no inf, no nan
+		return 0, false
+	}
+	c, err := strconv.ParseComplex(in, 128)
 	if err != nil || cmplx.IsNaN(c) || cmplx.IsInf(c) {
 		return 0, false
 	}
