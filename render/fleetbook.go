@@ -1,0 +1,259 @@
+package render
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// FleetWorkbook returns fleet.xlsx: Units (verdict and worst margin per
+// limit of every unit), Products (verdict counts), Limits (yield, mean,
+// standard deviation, Cpk), Control chart (the individuals chart data, with
+// a chart per product and limit), Outliers, Watch and Band (the golden band
+// per frequency, with a chart per product).
+func FleetWorkbook(f *reduce.Fleet) ([]byte, error) {
+	if f == nil {
+		return nil, fmt.Errorf("render: FleetWorkbook of a nil fleet")
+	}
+	b := newXLBook("G/T fleet workbook", "Fleet statistics over the acceptance runs", workbookEpoch)
+	units := b.addSheet("Units")
+	products := b.addSheet("Products")
+	limits := b.addSheet("Limits")
+	chart := b.addSheet("Control chart")
+	outliers := b.addSheet("Outliers")
+	watch := b.addSheet("Watch")
+	band := b.addSheet("Band")
+
+	writeFleetUnits(b, units, f)
+	writeFleetProducts(b, products, f)
+	writeFleetLimits(b, limits, f)
+	writeControlChart(b, chart, f)
+	writeOutliers(b, outliers, f)
+	writeWatch(b, watch, f)
+	writeBand(b, band, f)
+	b.f.SetActiveSheet(0)
+	return b.bytes()
+}
+
+// fleetLimitNames lists the limit names of a fleet: those with statistics
+// first, in the order reduce gave them, then any other found in the units.
+func fleetLimitNames(f *reduce.Fleet) []string {
+	var names []string
+	seen := map[string]bool{}
+	add := func(n string) {
+		if !seen[n] {
+			seen[n] = true
+			names = append(names, n)
+		}
+	}
+	for _, p := range f.Products {
+		for _, l := range p.Limits {
+			add(l.Name)
+		}
+	}
+	for _, u := range f.Units {
+		for _, l := range u.Limits {
+			add(l.Name)
+		}
+	}
+	return names
+}
+
+// worstMargin is a unit's smallest margin over the beams of a limit (NaN
+// when the unit has no finite margin for it): the fleet's view of a limit,
+// as reduce.LimitStats defines it.
+func worstMargin(u *reduce.UnitSummary, name string) float64 {
+	w := math.NaN()
+	for _, l := range u.Limits {
+		if l.Name != name || math.IsNaN(l.WorstMarginDB) {
+			continue
+		}
+		if math.IsNaN(w) || l.WorstMarginDB < w {
+			w = l.WorstMarginDB
+		}
+	}
+	return w
+}
+
+func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet) {
+	names := fleetLimitNames(f)
+	cols := []xlColumn{{"Serial", "", 18}, {"Product", "", 16}, {"Started", "", 21}, {"Verdict", "", 16}}
+	for _, n := range names {
+		cols = append(cols, xlColumn{n + " worst margin (dB)", nfDB, 16})
+	}
+	b.table(sheet, 1, cols, true)
+	for i := range f.Units {
+		u := &f.Units[i]
+		r := i + 2
+		b.setRow(sheet, r, u.Serial, u.Product, u.Started, u.Verdict)
+		for j, n := range names {
+			b.set(sheet, 5+j, r, worstMargin(u, n))
+		}
+	}
+	if len(f.Units) > 0 {
+		b.verdictRules(sheet, fmt.Sprintf("D2:D%d", len(f.Units)+1))
+	}
+}
+
+// verdictColumns are the verdicts of the Products sheet: the known ones in
+// order, then any other found, sorted.
+func verdictColumns(f *reduce.Fleet) []string {
+	var vs []string
+	known := map[string]bool{}
+	for _, vc := range verdictColours {
+		vs = append(vs, vc.verdict)
+		known[vc.verdict] = true
+	}
+	var other []string
+	for _, p := range f.Products {
+		for v := range p.VerdictCounts {
+			if !known[v] {
+				known[v] = true
+				other = append(other, v)
+			}
+		}
+	}
+	sort.Strings(other)
+	return append(vs, other...)
+}
+
+func writeFleetProducts(b *xlBook, sheet string, f *reduce.Fleet) {
+	vs := verdictColumns(f)
+	cols := []xlColumn{{"Product", "", 18}, {"Units", nfInt, 8}}
+	for _, v := range vs {
+		cols = append(cols, xlColumn{v, nfInt, 16})
+	}
+	b.table(sheet, 1, cols, true)
+	for i, p := range f.Products {
+		r := i + 2
+		b.setRow(sheet, r, p.Product, p.Units)
+		for j, v := range vs {
+			b.set(sheet, 3+j, r, p.VerdictCounts[v])
+		}
+	}
+}
+
+func writeFleetLimits(b *xlBook, sheet string, f *reduce.Fleet) {
+	b.table(sheet, 1, []xlColumn{
+		{"Product", "", 16}, {"Limit", "", 24}, {"Units", nfInt, 7}, {"Passed", nfInt, 7}, {"Yield", nfPct, 8},
+		{"Mean margin (dB)", nfDB, 11}, {"Std margin (dB)", nfDB, 11}, {"Cpk", nfCpk, 7},
+		{"Centre (dB)", nfDB, 10}, {"Upper (dB)", nfDB, 10}, {"Lower (dB)", nfDB, 10},
+		{"Mean moving range (dB)", nfDB, 12}, {"Points beyond", nfInt, 9}, {"Outliers", nfInt, 9},
+	}, true)
+	r := 2
+	for _, p := range f.Products {
+		for _, l := range p.Limits {
+			b.setRow(sheet, r, p.Product, l.Name, l.Units, l.Passed, l.Yield, l.MeanMarginDB, l.StdMarginDB, l.Cpk,
+				l.Chart.CentreDB, l.Chart.UpperDB, l.Chart.LowerDB, l.Chart.MeanMovingRange, len(l.Chart.Beyond), len(l.Outliers))
+			r++
+		}
+	}
+}
+
+// writeControlChart writes the individuals chart data of every product and
+// limit as one table, and a line chart of each block with two points or
+// more beside it.
+func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
+	b.table(sheet, 1, []xlColumn{
+		{"Product", "", 16}, {"Limit", "", 22}, {"Order", nfInt, 6}, {"Serial", "", 18}, {"Started", "", 21},
+		{"Worst margin (dB)", nfDB, 12}, {"Centre (dB)", nfDB, 10}, {"Upper (dB)", nfDB, 10}, {"Lower (dB)", nfDB, 10},
+		{"Beyond limits", "", 9},
+	}, true)
+	r := 2
+	charts := 0
+	for _, p := range f.Products {
+		for _, l := range p.Limits {
+			c := &l.Chart
+			beyond := map[int]bool{}
+			for _, i := range c.Beyond {
+				beyond[i] = true
+			}
+			first := r
+			for i, v := range c.ValuesDB {
+				var serial, started, flag any
+				if i < len(c.Serials) {
+					serial = c.Serials[i]
+				}
+				if i < len(c.Started) {
+					started = c.Started[i]
+				}
+				if beyond[i] {
+					flag = "yes"
+				}
+				b.setRow(sheet, r, p.Product, l.Name, i+1, serial, started, v, c.CentreDB, c.UpperDB, c.LowerDB, flag)
+				r++
+			}
+			if r-first >= 2 {
+				var series []chartSeries
+				for col := 6; col <= 9; col++ {
+					series = append(series, chartSeries{name: xlRef(sheet, col, 1, 1), values: xlRef(sheet, col, first, r-1), dash: col > 6})
+				}
+				b.lineChart(sheet, xlCell(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin in test order", p.Product, l.Name),
+					"Test order", "Worst margin (dB)", xlRef(sheet, 3, first, r-1), series)
+				charts++
+			}
+		}
+	}
+}
+
+func writeOutliers(b *xlBook, sheet string, f *reduce.Fleet) {
+	b.table(sheet, 1, []xlColumn{
+		{"Product", "", 16}, {"Limit", "", 24}, {"Serial", "", 18}, {"Margin (dB)", nfDB, 11}, {"Modified z", nfCpk, 10},
+	}, true)
+	r := 2
+	for _, p := range f.Products {
+		for _, l := range p.Limits {
+			for _, o := range l.Outliers {
+				b.setRow(sheet, r, p.Product, l.Name, o.Serial, o.MarginDB, o.ModifiedZ)
+				r++
+			}
+		}
+	}
+}
+
+func writeWatch(b *xlBook, sheet string, f *reduce.Fleet) {
+	b.table(sheet, 1, []xlColumn{{"Product", "", 16}, {"Serial", "", 18}, {"Frequency outside the band (GHz)", nfGHz, 18}}, true)
+	r := 2
+	for _, p := range f.Products {
+		for _, w := range p.Watch {
+			if len(w.FrequenciesHz) == 0 {
+				b.setRow(sheet, r, p.Product, w.Serial)
+				r++
+			}
+			for _, hz := range w.FrequenciesHz {
+				b.setRow(sheet, r, p.Product, w.Serial, toGHz(hz))
+				r++
+			}
+		}
+	}
+}
+
+func writeBand(b *xlBook, sheet string, f *reduce.Fleet) {
+	b.table(sheet, 1, []xlColumn{
+		{"Product", "", 16}, {"Frequency (GHz)", nfGHz, 14}, {"Median (dB/K)", nfDB, 12},
+		{"Low (dB/K)", nfDB, 12}, {"High (dB/K)", nfDB, 12}, {"Units", nfInt, 7},
+	}, true)
+	r := 2
+	charts := 0
+	for _, p := range f.Products {
+		g := p.Band
+		if g == nil || len(g.FrequencyHz) == 0 {
+			continue
+		}
+		first := r
+		for k, hz := range g.FrequencyHz {
+			b.setRow(sheet, r, p.Product, toGHz(hz), valueAt(g.MedianDB, k), valueAt(g.LowDB, k), valueAt(g.HighDB, k), g.Units)
+			r++
+		}
+		series := []chartSeries{
+			{name: xlRef(sheet, 3, 1, 1), values: xlRef(sheet, 3, first, r-1)},
+			{name: xlRef(sheet, 4, 1, 1), values: xlRef(sheet, 4, first, r-1), dash: true},
+			{name: xlRef(sheet, 5, 1, 1), values: xlRef(sheet, 5, first, r-1), dash: true},
+		}
+		b.lineChart(sheet, xlCell(8, 2+charts*22), fmt.Sprintf("%s: boresight G/T band over %d units", p.Product, g.Units),
+			"Frequency (GHz)", "G/T (dB/K)", xlRef(sheet, 2, first, r-1), series)
+		charts++
+	}
+}

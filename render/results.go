@@ -1,0 +1,476 @@
+package render
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"reflect"
+	"sort"
+	"strconv"
+	"strings"
+
+	"gtpack.example/gtpack/ingest"
+	"gtpack.example/gtpack/reduce"
+)
+
+// The machine-readable outputs: result.json, fleet.json and results.csv.
+//
+// A number that is not finite (NaN, +Inf, -Inf) has no JSON form. Rather
+// than refuse a whole unit for one bad point, it is written as null, and
+// the parsers read null back as NaN where the field is a float64. The CSV
+// and the workbooks leave such a value empty.
+
+// ResultJSON returns result.json of a unit: indented, fields in the order
+// of reduce.Unit, a trailing newline. Empty lists are written as [] (not
+// null), so that readers can take the length of any list the contract
+// names.
+func ResultJSON(u *reduce.Unit) ([]byte, error) {
+	if u == nil {
+		return nil, errors.New("render: ResultJSON of a nil unit")
+	}
+	return encodeIndented(u)
+}
+
+// FleetJSON returns fleet.json: the same encoding as ResultJSON.
+func FleetJSON(f *reduce.Fleet) ([]byte, error) {
+	if f == nil {
+		return nil, errors.New("render: FleetJSON of a nil fleet")
+	}
+	return encodeIndented(f)
+}
+
+// ParseResultJSON reads a result.json written by ResultJSON, as `gtpack
+// index` does to rebuild the fleet pages from a site. It checks the schema
+// and that every per-frequency list of a beam has one value per frequency,
+// so that a hand-edited file cannot make a renderer index out of range.
+func ParseResultJSON(data []byte) (*reduce.Unit, error) {
+	const file = "result.json"
+	u := new(reduce.Unit)
+	if err := decodeWithNaN(file, data, u); err != nil {
+		return nil, err
+	}
+	if u.Schema != reduce.ResultSchema {
+		return nil, ingest.Problemf(file, 0, "schema %d, expected %d", u.Schema, reduce.ResultSchema)
+	}
+	if u.Serial == "" {
+		return nil, ingest.Problemf(file, 0, "serial is empty, expected the unit's serial number")
+	}
+	for i := range u.Beams {
+		if err := checkBeamLengths(&u.Beams[i]); err != nil {
+			return nil, ingest.Problemf(file, 0, "beams[%d] (%q): %v", i, u.Beams[i].ID, err)
+		}
+	}
+	if err := checkUnitShapes(u); err != nil {
+		return nil, ingest.Problemf(file, 0, "%v", err)
+	}
+	return u, nil
+}
+
+// checkUnitShapes verifies the scan and element lists against their own
+// sizes.
+func checkUnitShapes(u *reduce.Unit) error {
+	if s := u.Scan; s != nil {
+		n := len(s.FrequencyHz)
+		if len(s.ExponentN) != 0 && len(s.ExponentN) != n {
+			return fmt.Errorf("scan.exponent_n has %d values, expected %d (one per frequency)", len(s.ExponentN), n)
+		}
+		for i, b := range s.Beams {
+			if len(b.ScanLossDB) != 0 && len(b.ScanLossDB) != n {
+				return fmt.Errorf("scan.beams[%d].scan_loss_db has %d values, expected %d", i, len(b.ScanLossDB), n)
+			}
+		}
+	}
+	if e := u.Elements; e != nil {
+		if e.Rows < 0 || e.Cols < 0 || len(e.ResidualPhaseDeg) != e.Rows || len(e.Present) != e.Rows {
+			return fmt.Errorf("elements: %d phase rows and %d presence rows, expected %d", len(e.ResidualPhaseDeg), len(e.Present), e.Rows)
+		}
+		for r := 0; r < e.Rows; r++ {
+			if len(e.ResidualPhaseDeg[r]) != e.Cols || len(e.Present[r]) != e.Cols {
+				return fmt.Errorf("elements: row %d has %d/%d columns, expected %d", r, len(e.ResidualPhaseDeg[r]), len(e.Present[r]), e.Cols)
+			}
+		}
+	}
+	return nil
+}
+
+// checkBeamLengths verifies that the beam's per-frequency lists are either
+// absent or as long as its frequency list.
+func checkBeamLengths(b *reduce.Beam) error {
+	n := len(b.FrequencyHz)
+	type list struct {
+		name string
+		v    []float64
+		opt  bool
+	}
+	lists := []list{
+		{"s21_db", b.S21DB, false},
+		{"range_loss_db", b.RangeLossDB, false},
+		{"range_drift_db", b.RangeDriftDB, true},
+		{"gain_dbi", b.GainDBi, false},
+		{"gain_expanded_uncertainty_db", b.GainExpandedUncertaintyDB, false},
+		{"gt_db_per_k", b.GTdBPerK, false},
+		{"gt_expanded_uncertainty_db", b.GTExpandedUncertaintyDB, false},
+		{"noise_relative_kt0_db", b.NoiseRelativeKT0DB, true},
+	}
+	if p := b.Projection; p != nil {
+		lists = append(lists,
+			list{"projection.system_noise_k", p.SystemNoiseK, true},
+			list{"projection.receiver_noise_k", p.ReceiverNoiseK, true},
+			list{"projection.operating_gt_db_per_k", p.OperatingGTdBPerK, true})
+	}
+	if b.OtherForm != nil {
+		lists = append(lists,
+			list{"other_form.gt_db_per_k", b.OtherForm.GTdBPerK, true},
+			list{"other_form.difference_db", b.OtherForm.DifferenceDB, true})
+	}
+	for _, l := range lists {
+		if len(l.v) == 0 && (l.opt || n == 0) {
+			continue
+		}
+		if len(l.v) != n {
+			return fmt.Errorf("%s has %d values, expected %d (one per frequency)", l.name, len(l.v), n)
+		}
+	}
+	if err := checkBudgetLengths(&b.GainBudget, n); err != nil {
+		return fmt.Errorf("gain_budget: %v", err)
+	}
+	if err := checkBudgetLengths(&b.GTBudget, n); err != nil {
+		return fmt.Errorf("gt_budget: %v", err)
+	}
+	for i, c := range b.LimitCurves {
+		if c.Start < 0 || c.Start+len(c.LimitDB) > n {
+			return fmt.Errorf("limit_curves[%d] covers points %d..%d, expected within 0..%d", i, c.Start, c.Start+len(c.LimitDB)-1, n-1)
+		}
+	}
+	return nil
+}
+
+func checkBudgetLengths(b *reduce.Budget, n int) error {
+	for _, l := range [][]float64{b.CombinedDB, b.ExpandedDB} {
+		if len(l) != 0 && len(l) != n {
+			return fmt.Errorf("%d combined/expanded values, expected %d", len(l), n)
+		}
+	}
+	for _, t := range b.Terms {
+		if (len(t.ValueDB) != 0 && len(t.ValueDB) != n) || (len(t.StandardDB) != 0 && len(t.StandardDB) != n) {
+			return fmt.Errorf("term %q has %d/%d values, expected %d", t.Name, len(t.ValueDB), len(t.StandardDB), n)
+		}
+	}
+	return nil
+}
+
+// encodeIndented writes v as JSON with two-space indentation and a final
+// newline; non-finite floats become null.
+func encodeIndented(v any) ([]byte, error) {
+	var compact []byte
+	compact, err := appendJSON(compact, reflect.ValueOf(v))
+	if err != nil {
+		return nil, err
+	}
+	var out bytes.Buffer
+	out.Grow(len(compact) + len(compact)/2)
+	if err := json.Indent(&out, compact, "", "  "); err != nil {
+		return nil, err
+	}
+	out.WriteByte('\n')
+	return out.Bytes(), nil
+}
+
+// appendJSON encodes like encoding/json (field names and omitempty from
+// the json tags, map keys sorted, the same float format), except that a
+// non-finite float is null and a nil slice or map outside omitempty is an
+// empty list or object.
+func appendJSON(b []byte, v reflect.Value) ([]byte, error) {
+	switch v.Kind() {
+	case reflect.Invalid:
+		return append(b, "null"...), nil
+	case reflect.Pointer, reflect.Interface:
+		if v.IsNil() {
+			return append(b, "null"...), nil
+		}
+		return appendJSON(b, v.Elem())
+	case reflect.Struct:
+		b = append(b, '{')
+		first := true
+		t := v.Type()
+		for i := 0; i < t.NumField(); i++ {
+			sf := t.Field(i)
+			if !sf.IsExported() {
+				continue
+			}
+			name, omitEmpty, skip := jsonField(sf)
+			if skip {
+				continue
+			}
+			fv := v.Field(i)
+			if omitEmpty && isEmptyValue(fv) {
+				continue
+			}
+			if !first {
+				b = append(b, ',')
+			}
+			first = false
+			b = strconv.AppendQuote(b, name) // names are plain ASCII tags
+			b = append(b, ':')
+			var err error
+			if b, err = appendJSON(b, fv); err != nil {
+				return nil, err
+			}
+		}
+		return append(b, '}'), nil
+	case reflect.Slice, reflect.Array:
+		if v.Kind() == reflect.Slice && v.Type().Elem().Kind() == reflect.Uint8 {
+			return nil, fmt.Errorf("render: byte slices are not part of the result model")
+		}
+		b = append(b, '[')
+		for i := 0; i < v.Len(); i++ {
+			if i > 0 {
+				b = append(b, ',')
+			}
+			var err error
+			if b, err = appendJSON(b, v.Index(i)); err != nil {
+				return nil, err
+			}
+		}
+		return append(b, ']'), nil
+	case reflect.Map:
+		if v.Type().Key().Kind() != reflect.String {
+			return nil, fmt.Errorf("render: map key type %s is not a string", v.Type().Key())
+		}
+		keys := make([]string, 0, v.Len())
+		for _, k := range v.MapKeys() {
+			keys = append(keys, k.String())
+		}
+		sort.Strings(keys)
+		b = append(b, '{')
+		for i, k := range keys {
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = appendJSONString(b, k)
+			b = append(b, ':')
+			var err error
+			if b, err = appendJSON(b, v.MapIndex(reflect.ValueOf(k).Convert(v.Type().Key()))); err != nil {
+				return nil, err
+			}
+		}
+		return append(b, '}'), nil
+	case reflect.String:
+		return appendJSONString(b, v.String()), nil
+	case reflect.Bool:
+		return strconv.AppendBool(b, v.Bool()), nil
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
+		return strconv.AppendInt(b, v.Int(), 10), nil
+	case reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return strconv.AppendUint(b, v.Uint(), 10), nil
+	case reflect.Float32, reflect.Float64:
+		return appendJSONFloat(b, v.Float(), v.Type().Bits()), nil
+	}
+	return nil, fmt.Errorf("render: cannot encode %s as JSON", v.Type())
+}
+
+// jsonField reads a struct field's json tag.
+func jsonField(sf reflect.StructField) (name string, omitEmpty, skip bool) {
+	tag := sf.Tag.Get("json")
+	if tag == "-" {
+		return "", false, true
+	}
+	name, opts, _ := strings.Cut(tag, ",")
+	if name == "" {
+		name = sf.Name
+	}
+	for _, o := range strings.Split(opts, ",") {
+		if o == "omitempty" {
+			omitEmpty = true
+		}
+	}
+	return name, omitEmpty, false
+}
+
+// isEmptyValue is encoding/json's definition of empty for omitempty.
+func isEmptyValue(v reflect.Value) bool {
+	switch v.Kind() {
+	case reflect.Array, reflect.Map, reflect.Slice, reflect.String:
+		return v.Len() == 0
+	case reflect.Bool, reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64,
+		reflect.Float32, reflect.Float64, reflect.Interface, reflect.Pointer:
+		return v.IsZero()
+	}
+	return false
+}
+
+func appendJSONString(b []byte, s string) []byte {
+	q, _ := json.Marshal(s) // a string always marshals; HTML characters are escaped
+	return append(b, q...)
+}
+
+// appendJSONFloat formats f as encoding/json does ('f' in [1e-6, 1e21),
+// otherwise 'e' with a short exponent); null when not finite.
+func appendJSONFloat(b []byte, f float64, bits int) []byte {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return append(b, "null"...)
+	}
+	abs := math.Abs(f)
+	format := byte('f')
+	if abs != 0 {
+		if bits == 64 && (abs < 1e-6 || abs >= 1e21) || bits == 32 && (float32(abs) < 1e-6 || float32(abs) >= 1e21) {
+			format = 'e'
+		}
+	}
+	b = strconv.AppendFloat(b, f, format, -1, bits)
+	if format == 'e' {
+		// clean up e-09 to e-9
+		n := len(b)
+		if n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
+			b[n-2] = b[n-1]
+			b = b[:n-1]
+		}
+	}
+	return b
+}
+
+// decodeWithNaN unmarshals data into v and then sets every float64 that
+// the JSON held as null to NaN (encoding/json leaves it zero).
+func decodeWithNaN(file string, data []byte, v any) error {
+	if err := json.Unmarshal(data, v); err != nil {
+		return jsonProblem(file, data, err)
+	}
+	var tree any
+	if err := json.Unmarshal(data, &tree); err != nil {
+		return jsonProblem(file, data, err)
+	}
+	restoreNaN(tree, reflect.ValueOf(v).Elem())
+	return nil
+}
+
+// jsonProblem turns a decoding error into a *ingest.Problem with the line.
+func jsonProblem(file string, data []byte, err error) error {
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		return ingest.Problemf(file, lineOf(data, se.Offset), "%v; expected JSON", se)
+	case errors.As(err, &te):
+		return ingest.Problemf(file, lineOf(data, te.Offset), "field %s holds a JSON %s, expected %s", te.Field, te.Value, te.Type)
+	}
+	return ingest.Problemf(file, 0, "%v", err)
+}
+
+func lineOf(data []byte, offset int64) int {
+	if offset > int64(len(data)) {
+		offset = int64(len(data))
+	}
+	if offset < 0 {
+		offset = 0
+	}
+	return 1 + bytes.Count(data[:offset], []byte{'\n'})
+}
+
+// restoreNaN walks the generic JSON tree beside the decoded value.
+func restoreNaN(tree any, v reflect.Value) {
+	switch v.Kind() {
+	case reflect.Float32, reflect.Float64:
+		if tree == nil && v.CanSet() {
+			v.SetFloat(math.NaN())
+		}
+	case reflect.Pointer:
+		if !v.IsNil() {
+			restoreNaN(tree, v.Elem())
+		}
+	case reflect.Struct:
+		obj, ok := tree.(map[string]any)
+		if !ok {
+			return
+		}
+		t := v.Type()
+		for i := 0; i < t.NumField(); i++ {
+			sf := t.Field(i)
+			if !sf.IsExported() {
+				continue
+			}
+			name, _, skip := jsonField(sf)
+			if skip {
+				continue
+			}
+			if sub, present := obj[name]; present {
+				restoreNaN(sub, v.Field(i))
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		arr, ok := tree.([]any)
+		if !ok {
+			return
+		}
+		for i := 0; i < v.Len() && i < len(arr); i++ {
+			restoreNaN(arr[i], v.Index(i))
+		}
+	}
+}
+
+// resultsCSVHeader is the column list of results.csv (the site contract).
+var resultsCSVHeader = []string{
+	"serial", "product", "started", "unit_verdict", "beam", "limit", "quantity", "statistic",
+	"worst_margin_db", "at_frequency_ghz", "value", "limit_value", "expanded_uncertainty_db", "verdict",
+}
+
+// ResultsCSV returns results.csv: a header and one row per unit, beam and
+// limit (one per reduce.LimitResult), units sorted by serial, limits in the
+// order reduce gave them. A unit without limits still has one row, with the
+// limit columns empty. Numbers are the shortest text that reads back to
+// the same float64; frequencies are in GHz to 1 Hz; a non-finite number is
+// an empty field. Text is written as is (no formula escaping): the file is
+// for programs.
+func ResultsCSV(units []reduce.UnitSummary) []byte {
+	order := make([]int, len(units))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return units[order[a]].Serial < units[order[b]].Serial })
+
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	_ = w.Write(resultsCSVHeader) // writes to a bytes.Buffer do not fail
+	for _, i := range order {
+		u := &units[i]
+		head := []string{u.Serial, u.Product, u.Started, u.Verdict}
+		if len(u.Limits) == 0 {
+			_ = w.Write(append(head, "", "", "", "", "", "", "", "", "", ""))
+			continue
+		}
+		for _, l := range u.Limits {
+			row := append(append([]string(nil), head...),
+				l.Beam, l.Name, l.Quantity, l.Statistic,
+				csvFloat(l.WorstMarginDB), csvGHz(l.AtFrequencyHz), csvFloat(l.ValueDB), csvFloat(l.LimitDB),
+				csvFloat(l.ExpandedUncertaintyDB), l.Verdict)
+			_ = w.Write(row)
+		}
+	}
+	w.Flush()
+	return buf.Bytes()
+}
+
+func csvFloat(f float64) string {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(f, 'g', -1, 64)
+}
+
+// csvGHz writes a frequency in GHz to 1 Hz, without trailing zeros, so that
+// 11.725e9 Hz is "11.725" and not the binary neighbour of 11.725e9/1e9.
+func csvGHz(hz float64) string {
+	if math.IsNaN(hz) || math.IsInf(hz, 0) {
+		return ""
+	}
+	s := strconv.FormatFloat(hz/1e9, 'f', 9, 64)
+	s = strings.TrimRight(s, "0")
+	s = strings.TrimSuffix(s, ".")
+	if s == "-0" {
+		s = "0"
+	}
+	return s
+}

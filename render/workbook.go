@@ -1,0 +1,723 @@
+package render
+
+import (
+	"archive/zip"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strings"
+	"time"
+
+	"github.com/xuri/excelize/v2"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// Workbooks: the unit workbook (units/<serial>/<serial>.xlsx) and the fleet
+// workbook (fleet.xlsx). Values are stored at full float64 precision and
+// shown with a number format; a non-finite value is an empty cell. The
+// files are deterministic: fixed document properties, fixed zip entry
+// times, sheets and styles created in a fixed order.
+
+// workbookEpoch is the fixed time written into document properties and zip
+// entries when no better time is known.
+var workbookEpoch = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
+
+// Number formats of the workbooks.
+const (
+	nfDB   = "0.000"
+	nfGHz  = "0.000000"
+	nfDeg  = "0.0"
+	nfTemp = "0.0"
+	nfDiv  = "0.0000"
+	nfPct  = "0.0%"
+	nfCpk  = "0.00"
+	nfInt  = "0"
+)
+
+// Verdict fill colours of our own (light tints, dark text).
+var verdictColours = []struct {
+	verdict    string
+	fill, font string
+}{
+	{reduce.VerdictPass, "CCEBD4", "1D5C2E"},
+	{reduce.VerdictConditionalPass, "F6EDB0", "5C4D0A"},
+	{reduce.VerdictConditionalFail, "F7D9A8", "6B3C05"},
+	{reduce.VerdictFail, "F3C4C4", "7A1414"},
+	{reduce.VerdictIncomplete, "DEDEDE", "3A3A3A"},
+}
+
+// xlBook wraps an excelize file and keeps the first error, so that the
+// builders read as a list of cells.
+type xlBook struct {
+	f          *excelize.File
+	err        error
+	numStyles  map[string]int
+	header     int
+	title      int
+	verdictDXF []int
+	used       map[string]bool // lower-case sheet names taken
+	sheets     int
+}
+
+// fixedTimeZip gives every zip entry the same modification time.
+type fixedTimeZip struct {
+	*zip.Writer
+	modified time.Time
+}
+
+func (z fixedTimeZip) Create(name string) (io.Writer, error) {
+	return z.CreateHeader(&zip.FileHeader{Name: name, Method: zip.Deflate, Modified: z.modified})
+}
+
+func newXLBook(title, subject string, created time.Time) *xlBook {
+	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
+	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
+		return fixedTimeZip{Writer: zip.NewWriter(w), modified: created}
+	})
+	stamp := created.UTC().Format(time.RFC3339)
+	b.check(b.f.SetDocProps(&excelize.DocProperties{
+		Title: title, Subject: subject, Creator: "gtpack", LastModifiedBy: "gtpack",
+		Created: stamp, Modified: stamp, Version: Version, Language: "en",
+		Description: "Written by gtpack " + Version + " from reduced results; values at full precision, shown rounded.",
+	}))
+	b.check(b.f.SetAppProps(&excelize.AppProperties{Application: "gtpack", Company: ""}))
+	var err error
+	b.header, err = b.f.NewStyle(&excelize.Style{
+		Font:      &excelize.Font{Bold: true},
+		Fill:      excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"E4E9F0"}},
+		Border:    []excelize.Border{{Type: "bottom", Color: "7F8C9D", Style: 1}},
+		Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"},
+	})
+	b.check(err)
+	b.title, err = b.f.NewStyle(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 13}})
+	b.check(err)
+	for _, vc := range verdictColours {
+		id, err := b.f.NewConditionalStyle(&excelize.Style{
+			Font: &excelize.Font{Color: vc.font, Bold: true},
+			Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{vc.fill}},
+		})
+		b.check(err)
+		b.verdictDXF = append(b.verdictDXF, id)
+	}
+	return b
+}
+
+func (b *xlBook) check(err error) {
+	if err != nil && b.err == nil {
+		b.err = err
+	}
+}
+
+// bytes writes the workbook.
+func (b *xlBook) bytes() ([]byte, error) {
+	if b.err != nil {
+		return nil, b.err
+	}
+	buf, err := b.f.WriteToBuffer()
+	if err != nil {
+		return nil, err
+	}
+	if err := b.f.Close(); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// addSheet creates a sheet with a valid, unique name derived from want and
+// returns the name used.
+func (b *xlBook) addSheet(want string) string {
+	name := uniqueSheetName(want, b.used)
+	if b.sheets == 0 {
+		b.check(b.f.SetSheetName("Sheet1", name))
+	} else {
+		_, err := b.f.NewSheet(name)
+		b.check(err)
+	}
+	b.sheets++
+	return name
+}
+
+// sheetNameReplacer removes the characters a sheet name may not hold; the
+// apostrophe goes too, so that names quote simply in formulas.
+var sheetNameReplacer = strings.NewReplacer("[", "(", "]", ")", ":", "-", "*", "_", "?", "_", "/", "_", "\\", "_", "'", "_")
+
+// uniqueSheetName makes want a valid sheet name (at most 31 characters,
+// none of []:*?/\, not empty, not the reserved "History") that is not in
+// used (compared without case, as spreadsheet programs do), and records it.
+func uniqueSheetName(want string, used map[string]bool) string {
+	base := sheetNameReplacer.Replace(want)
+	base = strings.Map(func(r rune) rune {
+		if r < 0x20 || r == 0x7f {
+			return '_'
+		}
+		return r
+	}, base)
+	base = strings.TrimSpace(base)
+	if base == "" {
+		base = "Sheet"
+	}
+	if strings.EqualFold(base, "History") {
+		base += " (data)"
+	}
+	name := truncateRunes(base, 31)
+	for i := 2; used[strings.ToLower(name)]; i++ {
+		suffix := fmt.Sprintf(" (%d)", i)
+		name = truncateRunes(base, 31-len(suffix)) + suffix
+	}
+	used[strings.ToLower(name)] = true
+	return name
+}
+
+func truncateRunes(s string, n int) string {
+	r := []rune(s)
+	if len(r) > n {
+		r = r[:n]
+	}
+	return string(r)
+}
+
+// ref is an absolute range reference to xlColumn col (1-based) rows r0..r1
+// of sheet, for chart series.
+func xlRef(sheet string, col, r0, r1 int) string {
+	c, _ := excelize.ColumnNumberToName(col)
+	return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", sheet, c, r0, c, r1)
+}
+
+func xlCell(col, row int) string {
+	s, _ := excelize.CoordinatesToCellName(col, row)
+	return s
+}
+
+func xlCol(col int) string {
+	s, _ := excelize.ColumnNumberToName(col)
+	return s
+}
+
+// numStyle returns the style of a number format, made once.
+func (b *xlBook) numStyle(format string) int {
+	if id, ok := b.numStyles[format]; ok {
+		return id
+	}
+	f := format
+	id, err := b.f.NewStyle(&excelize.Style{CustomNumFmt: &f})
+	b.check(err)
+	b.numStyles[format] = id
+	return id
+}
+
+// set writes one cell: a float64 that is not finite stays empty, as does nil.
+func (b *xlBook) set(sheet string, col, row int, v any) {
+	switch x := v.(type) {
+	case nil:
+		return
+	case float64:
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return
+		}
+	}
+	b.check(b.f.SetCellValue(sheet, xlCell(col, row), v))
+}
+
+// setRow writes values from xlColumn 1 of row.
+func (b *xlBook) setRow(sheet string, row int, values ...any) {
+	for i, v := range values {
+		b.set(sheet, i+1, row, v)
+	}
+}
+
+// setNum writes a number with a format.
+func (b *xlBook) setNum(sheet string, col, row int, v float64, format string) {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return
+	}
+	b.set(sheet, col, row, v)
+	c := xlCell(col, row)
+	b.check(b.f.SetCellStyle(sheet, c, c, b.numStyle(format)))
+}
+
+// xlColumn is one xlColumn of a table: its header, number format (empty for
+// text) and width.
+type xlColumn struct {
+	header string
+	format string
+	width  float64
+}
+
+// table starts a table at row: header cells, xlColumn formats and widths,
+// and frozen rows above the data when freeze is true. Data rows follow from
+// row+1. Column formats are set before the data so that every value
+// written later takes them.
+func (b *xlBook) table(sheet string, row int, cols []xlColumn, freeze bool) {
+	for i, c := range cols {
+		name := xlCol(i + 1)
+		if c.format != "" && freeze {
+			b.check(b.f.SetColStyle(sheet, name, b.numStyle(c.format)))
+		}
+		if c.width > 0 {
+			b.check(b.f.SetColWidth(sheet, name, name, c.width))
+		}
+		b.set(sheet, i+1, row, c.header)
+	}
+	if len(cols) > 0 {
+		b.check(b.f.SetCellStyle(sheet, xlCell(1, row), xlCell(len(cols), row), b.header))
+	}
+	if freeze {
+		b.check(b.f.SetPanes(sheet, &excelize.Panes{
+			Freeze: true, YSplit: row, TopLeftCell: xlCell(1, row+1), ActivePane: "bottomLeft",
+			Selection: []excelize.Selection{{SQRef: xlCell(1, row+1), ActiveCell: xlCell(1, row+1), Pane: "bottomLeft"}},
+		}))
+	}
+}
+
+// verdictColours colours verdict cells in rangeRef by conditional
+// formatting, one rule per verdict.
+func (b *xlBook) verdictRules(sheet, rangeRef string) {
+	var opts []excelize.ConditionalFormatOptions
+	for i, vc := range verdictColours {
+		dxf := b.verdictDXF[i]
+		opts = append(opts, excelize.ConditionalFormatOptions{
+			Type: "cell", Criteria: "==", Value: `"` + vc.verdict + `"`, Format: &dxf,
+		})
+	}
+	b.check(b.f.SetConditionalFormat(sheet, rangeRef, opts))
+}
+
+// chartSeries is one series of a chart: name is a reference to the cell
+// holding its name (a chart series name is a formula), values a range.
+type chartSeries struct {
+	name, values string
+	dash         bool
+}
+
+// lineChart adds a native line chart of series over the categories range
+// at cell.
+func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string, series []chartSeries) {
+	if len(series) == 0 {
+		return
+	}
+	c := &excelize.Chart{
+		Type:         excelize.Line,
+		Title:        excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: title}}},
+		Dimension:    excelize.ChartDimension{Width: 760, Height: 400},
+		Legend:       excelize.ChartLegend{Position: "bottom"},
+		ShowBlanksAs: "gap",
+		XAxis: excelize.ChartAxis{
+			Title:         excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: xTitle}}},
+			NumFmt:        excelize.ChartNumFmt{CustomNumFmt: "0.00"},
+			TickLabelSkip: 0,
+		},
+		YAxis: excelize.ChartAxis{
+			Title:          excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: yTitle}}},
+			MajorGridLines: true,
+			NumFmt:         excelize.ChartNumFmt{CustomNumFmt: "0.0"},
+		},
+	}
+	for _, s := range series {
+		cs := excelize.ChartSeries{
+			Name: s.name, Categories: categories, Values: s.values,
+			Marker: excelize.ChartMarker{Symbol: "none"},
+			Line:   excelize.LineOptions{Width: 1.5},
+		}
+		if s.dash {
+			cs.Line.Dash = excelize.LineDashDash
+		}
+		c.Series = append(c.Series, cs)
+	}
+	b.check(b.f.AddChart(sheet, cell, c))
+}
+
+// at returns xs[k], or NaN when k is outside xs.
+func valueAt(xs []float64, k int) float64 {
+	if k < 0 || k >= len(xs) {
+		return math.NaN()
+	}
+	return xs[k]
+}
+
+func toGHz(hz float64) float64 { return hz / 1e9 }
+
+// quantityUnit is the unit of a limit's quantity.
+func quantityUnit(q string) string {
+	if q == "gain" {
+		return "dBi"
+	}
+	return "dB/K"
+}
+
+// startedTime is the run's start as a time, or the epoch when it does not
+// parse: it dates the workbook, so that the file does not depend on when it
+// was written.
+func startedTime(s string) time.Time {
+	for _, layout := range []string{time.RFC3339Nano, "2006-01-02T15:04:05", "2006-01-02"} {
+		if t, err := time.Parse(layout, s); err == nil {
+			if t.Year() < 1980 || t.Year() > 9999 {
+				break // zip times start in 1980
+			}
+			return t.UTC().Truncate(time.Second)
+		}
+	}
+	return workbookEpoch
+}
+
+// UnitWorkbook returns the unit workbook: Summary, one sheet per beam with
+// a G/T chart, Limits, Uncertainty, Flags and Inputs.
+func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
+	if u == nil {
+		return nil, fmt.Errorf("render: UnitWorkbook of a nil unit")
+	}
+	b := newXLBook("G/T acceptance workbook, unit "+u.Serial, "Unit "+u.Serial+", product "+u.Product, startedTime(u.Started))
+
+	summary := b.addSheet("Summary")
+	beamSheets := make([]string, len(u.Beams))
+	for i := range u.Beams {
+		beamSheets[i] = b.addSheet("Beam " + u.Beams[i].ID)
+	}
+	limits := b.addSheet("Limits")
+	uncertainty := b.addSheet("Uncertainty")
+	flags := b.addSheet("Flags")
+	inputs := b.addSheet("Inputs")
+
+	gtValues := make([]string, len(u.Beams))
+	for i := range u.Beams {
+		gtValues[i] = writeBeamSheet(b, beamSheets[i], &u.Beams[i])
+	}
+	writeSummary(b, summary, u, beamSheets, gtValues)
+	writeLimitsSheet(b, limits, u.Limits)
+	writeUncertaintySheet(b, uncertainty, u)
+	writeFlagsSheet(b, flags, u)
+	writeInputsSheet(b, inputs, u)
+	b.f.SetActiveSheet(0)
+	return b.bytes()
+}
+
+// summaryFields are the key/value rows of the Summary sheet.
+func summaryFields(u *reduce.Unit) [][2]any {
+	ref := u.Reference
+	refText := ref.ID
+	if ref.Description != "" {
+		refText += " - " + ref.Description
+	}
+	due := ref.Due
+	if ref.Expired {
+		due += " (expired before the run)"
+	}
+	station := u.Station.ID
+	if u.Station.Description != "" {
+		station += " - " + u.Station.Description
+	}
+	return [][2]any{
+		{"Unit", u.Serial},
+		{"Product", u.Product},
+		{"Specification", u.SpecTitle},
+		{"Run", u.Run},
+		{"Started", u.Started},
+		{"Verdict", u.Verdict},
+		{"Decision rule", u.DecisionRule},
+		{"Station", station},
+		{"Reference", refText},
+		{"Reference certificate", ref.Certificate},
+		{"Reference calibrated", ref.Calibrated},
+		{"Reference due", due},
+		{"Operator", u.Operator},
+		{"Ambient (°C)", u.AmbientC},
+		{"Firmware", u.Firmware},
+		{"Tool version", "gtpack " + Version},
+	}
+}
+
+func writeSummary(b *xlBook, sheet string, u *reduce.Unit, beamSheets, gtValues []string) {
+	b.set(sheet, 1, 1, "G/T acceptance workbook")
+	b.check(b.f.SetCellStyle(sheet, "A1", "A1", b.title))
+	b.check(b.f.SetColWidth(sheet, "A", "A", 26))
+	b.check(b.f.SetColWidth(sheet, "B", "B", 34))
+	b.check(b.f.SetColWidth(sheet, "C", "F", 14))
+	row := 2
+	for _, kv := range summaryFields(u) {
+		b.set(sheet, 1, row, kv[0])
+		if v, ok := kv[1].(float64); ok {
+			b.setNum(sheet, 2, row, v, nfTemp)
+		} else {
+			b.set(sheet, 2, row, kv[1])
+		}
+		if kv[0] == "Verdict" {
+			b.verdictRules(sheet, xlCell(2, row))
+		}
+		row++
+	}
+	b.check(b.f.SetCellStyle(sheet, "A2", xlCell(1, row-1), b.header))
+
+	row++
+	b.set(sheet, 1, row, "Limits")
+	b.check(b.f.SetCellStyle(sheet, xlCell(1, row), xlCell(1, row), b.title))
+	row++
+	b.table(sheet, row, []xlColumn{
+		{header: "Limit"}, {header: "Beam"}, {header: "Worst margin (dB)"}, {header: "At (GHz)"},
+		{header: "U (dB)"}, {header: "Verdict"},
+	}, false)
+	first := row + 1
+	for _, l := range u.Limits {
+		row++
+		b.set(sheet, 1, row, l.Name)
+		b.set(sheet, 2, row, l.Beam)
+		b.setNum(sheet, 3, row, l.WorstMarginDB, nfDB)
+		b.setNum(sheet, 4, row, toGHz(l.AtFrequencyHz), nfGHz)
+		b.setNum(sheet, 5, row, l.ExpandedUncertaintyDB, nfDB)
+		b.set(sheet, 6, row, l.Verdict)
+	}
+	if len(u.Limits) > 0 {
+		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", first, row))
+	}
+
+	row += 2
+	b.set(sheet, 1, row, "Beams")
+	b.check(b.f.SetCellStyle(sheet, xlCell(1, row), xlCell(1, row), b.title))
+	row++
+	b.table(sheet, row, []xlColumn{
+		{header: "Beam"}, {header: "Sheet"}, {header: "Theta (deg)"}, {header: "Phi (deg)"},
+		{header: "Polarization"}, {header: "G/T form"}, {header: "Points"},
+	}, false)
+	var series []chartSeries
+	for i, bm := range u.Beams {
+		row++
+		// One chart of the G/T of every beam on the first beam's grid (its
+		// frequencies are the categories); a beam on another grid is shown
+		// on its own sheet only.
+		if gtValues[i] != "" && sameGrid(bm.FrequencyHz, u.Beams[0].FrequencyHz) {
+			series = append(series, chartSeries{name: xlRef(sheet, 1, row, row), values: gtValues[i]})
+		}
+		b.set(sheet, 1, row, bm.ID)
+		b.set(sheet, 2, row, beamSheets[i])
+		b.setNum(sheet, 3, row, bm.ThetaDeg, nfDeg)
+		b.setNum(sheet, 4, row, bm.PhiDeg, nfDeg)
+		b.set(sheet, 5, row, bm.Polarization)
+		b.set(sheet, 6, row, bm.GTForm)
+		b.set(sheet, 7, row, len(bm.FrequencyHz))
+	}
+
+	if len(series) > 0 {
+		n := len(u.Beams[0].FrequencyHz)
+		b.lineChart(sheet, "H2", "G/T of the beams", "Frequency (GHz)", "G/T (dB/K)",
+			xlRef(beamSheets[0], 1, 2, n+1), series)
+	}
+}
+
+func sameGrid(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// beamColumn is a xlColumn of a beam sheet: values from index start of the
+// grid.
+type beamColumn struct {
+	xlColumn
+	values []float64
+	start  int
+}
+
+// beamColumns lists the columns of a beam sheet. The limit and margin
+// columns exist only where reduce filled Beam.LimitCurves; the margin is
+// the quantity minus the limit, the definition of method.md section 7.
+func beamColumns(bm *reduce.Beam) []beamColumn {
+	cols := []beamColumn{
+		{xlColumn{"Frequency (GHz)", nfGHz, 14}, nil, 0},
+		{xlColumn{"S21 (dB)", nfDB, 11}, bm.S21DB, 0},
+		{xlColumn{"Range loss (dB)", nfDB, 11}, bm.RangeLossDB, 0},
+		{xlColumn{"Gain (dBi)", nfDB, 11}, bm.GainDBi, 0},
+		{xlColumn{"Gain U (dB)", nfDB, 11}, bm.GainExpandedUncertaintyDB, 0},
+		{xlColumn{"Noise above kT0 (dB)", nfDB, 12}, bm.NoiseRelativeKT0DB, 0},
+		{xlColumn{"G/T (dB/K)", nfDB, 11}, bm.GTdBPerK, 0},
+		{xlColumn{"G/T U (dB)", nfDB, 11}, bm.GTExpandedUncertaintyDB, 0},
+	}
+	freq := make([]float64, len(bm.FrequencyHz))
+	for k, f := range bm.FrequencyHz {
+		freq[k] = toGHz(f)
+	}
+	cols[0].values = freq
+	for _, c := range bm.LimitCurves {
+		unit := quantityUnit(c.Quantity)
+		x := bm.GTdBPerK
+		if c.Quantity == "gain" {
+			x = bm.GainDBi
+		}
+		margin := make([]float64, len(c.LimitDB))
+		for i, l := range c.LimitDB {
+			margin[i] = valueAt(x, c.Start+i) - l
+		}
+		cols = append(cols,
+			beamColumn{xlColumn{fmt.Sprintf("Limit %s (%s)", c.Name, unit), nfDB, 14}, c.LimitDB, c.Start},
+			beamColumn{xlColumn{fmt.Sprintf("Margin %s (dB)", c.Name), nfDB, 14}, margin, c.Start})
+	}
+	if bm.RangeDriftDB != nil {
+		cols = append(cols, beamColumn{xlColumn{"Range drift (dB)", nfDB, 11}, bm.RangeDriftDB, 0})
+	}
+	if o := bm.OtherForm; o != nil {
+		cols = append(cols,
+			beamColumn{xlColumn{fmt.Sprintf("G/T %s (dB/K)", o.Form), nfDB, 14}, o.GTdBPerK, 0},
+			beamColumn{xlColumn{"Form difference (dB)", nfDB, 12}, o.DifferenceDB, 0})
+	}
+	if p := bm.Projection; p != nil {
+		cols = append(cols,
+			beamColumn{xlColumn{"System noise (K)", nfDB, 12}, p.SystemNoiseK, 0},
+			beamColumn{xlColumn{"Receiver noise (K)", nfDB, 12}, p.ReceiverNoiseK, 0},
+			beamColumn{xlColumn{fmt.Sprintf("G/T at %g K, derived (dB/K)", p.OperatingAntennaK), nfDB, 16}, p.OperatingGTdBPerK, 0})
+	}
+	return cols
+}
+
+// writeBeamSheet writes the frequency table and the G/T chart of a beam and
+// returns the range of its G/T values for the Summary chart ("" when the
+// beam has no frequencies).
+func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam) string {
+	cols := beamColumns(bm)
+	heads := make([]xlColumn, len(cols))
+	for i, c := range cols {
+		heads[i] = c.xlColumn
+	}
+	b.table(sheet, 1, heads, true)
+	n := len(bm.FrequencyHz)
+	for ci, c := range cols {
+		for i, v := range c.values {
+			if c.start+i >= n {
+				break
+			}
+			b.set(sheet, ci+1, c.start+i+2, v)
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	// Series names are formulas: they point at the header cells.
+	categories := xlRef(sheet, 1, 2, n+1)
+	series := []chartSeries{{name: xlRef(sheet, 7, 1, 1), values: xlRef(sheet, 7, 2, n+1)}}
+	for ci, c := range cols {
+		if strings.HasPrefix(c.header, "Limit ") && strings.HasSuffix(c.header, "(dB/K)") {
+			series = append(series, chartSeries{name: xlRef(sheet, ci+1, 1, 1), values: xlRef(sheet, ci+1, 2, n+1), dash: true})
+		}
+	}
+	title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.ID, bm.ThetaDeg, bm.PhiDeg)
+	b.lineChart(sheet, xlCell(len(cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, series)
+	return series[0].values
+}
+
+func writeLimitsSheet(b *xlBook, sheet string, limits []reduce.LimitResult) {
+	b.table(sheet, 1, []xlColumn{
+		{"Limit", "", 24}, {"Quantity", "", 9}, {"Beam", "", 9}, {"Statistic", "", 9},
+		{"Worst margin (dB)", nfDB, 12}, {"At (GHz)", nfGHz, 12},
+		{"Value (dB/K or dBi)", nfDB, 12}, {"Limit (dB/K or dBi)", nfDB, 12},
+		{"U (dB)", nfDB, 9}, {"Verdict", "", 16},
+	}, true)
+	for i, l := range limits {
+		r := i + 2
+		b.setRow(sheet, r, l.Name, l.Quantity, l.Beam, l.Statistic, l.WorstMarginDB, toGHz(l.AtFrequencyHz),
+			l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB, l.Verdict)
+	}
+	if len(limits) > 0 {
+		b.verdictRules(sheet, fmt.Sprintf("J2:J%d", len(limits)+1))
+	}
+}
+
+// budgetPoint chooses the frequency index at which a beam's budget is
+// shown: the worst-margin frequency of the beam's limits on that quantity,
+// else of any of its limits, else the middle of the grid.
+func budgetPoint(bm *reduce.Beam, limits []reduce.LimitResult, quantity string) (int, string) {
+	n := len(bm.FrequencyHz)
+	if n == 0 {
+		return -1, ""
+	}
+	best := -1
+	for pass := 0; pass < 2 && best < 0; pass++ {
+		for i, l := range limits {
+			if l.Beam != bm.ID || (pass == 0 && l.Quantity != quantity) || math.IsNaN(l.WorstMarginDB) || math.IsNaN(l.AtFrequencyHz) {
+				continue
+			}
+			if best < 0 || l.WorstMarginDB < limits[best].WorstMarginDB {
+				best = i
+			}
+		}
+	}
+	if best < 0 {
+		return n / 2, "middle of the band (no limit on this beam)"
+	}
+	return nearestIndex(bm.FrequencyHz, limits[best].AtFrequencyHz), "worst margin of " + limits[best].Name
+}
+
+// nearestIndex is the index of the grid point nearest f (grid ascending).
+func nearestIndex(grid []float64, f float64) int {
+	k := sort.SearchFloat64s(grid, f)
+	if k >= len(grid) {
+		return len(grid) - 1
+	}
+	if k > 0 && f-grid[k-1] <= grid[k]-f {
+		return k - 1
+	}
+	return k
+}
+
+func writeUncertaintySheet(b *xlBook, sheet string, u *reduce.Unit) {
+	b.table(sheet, 1, []xlColumn{
+		{"Beam", "", 9}, {"Budget", "", 8}, {"Frequency (GHz)", nfGHz, 14}, {"Chosen at", "", 30},
+		{"Term", "", 34}, {"Source", "", 9}, {"Distribution", "", 12}, {"Divisor", nfDiv, 9},
+		{"Value (dB)", nfDB, 11}, {"u (dB)", nfDB, 11},
+	}, true)
+	row := 2
+	for i := range u.Beams {
+		bm := &u.Beams[i]
+		for _, part := range []struct {
+			name, quantity string
+			bud            *reduce.Budget
+		}{{"G/T", "gt", &bm.GTBudget}, {"Gain", "gain", &bm.GainBudget}} {
+			k, basis := budgetPoint(bm, u.Limits, part.quantity)
+			if k < 0 {
+				continue
+			}
+			f := toGHz(bm.FrequencyHz[k])
+			for _, t := range part.bud.Terms {
+				b.setRow(sheet, row, bm.ID, part.name, f, basis, t.Name, t.Source, t.Distribution, t.Divisor,
+					valueAt(t.ValueDB, k), valueAt(t.StandardDB, k))
+				row++
+			}
+			b.setRow(sheet, row, bm.ID, part.name, f, basis, "Combined standard uncertainty u_c", nil, nil, nil,
+				nil, valueAt(part.bud.CombinedDB, k))
+			row++
+			b.setRow(sheet, row, bm.ID, part.name, f, basis,
+				fmt.Sprintf("Expanded uncertainty U (k = %g)", part.bud.CoverageK), nil, nil, nil,
+				valueAt(part.bud.ExpandedDB, k), nil)
+			row++
+		}
+	}
+}
+
+func writeFlagsSheet(b *xlBook, sheet string, u *reduce.Unit) {
+	b.table(sheet, 1, []xlColumn{
+		{"Kind", "", 18}, {"Beam", "", 8}, {"File", "", 40}, {"Line", nfInt, 7}, {"Message", "", 90},
+	}, true)
+	row := 2
+	for _, f := range u.Flags {
+		b.setRow(sheet, row, f.Kind, f.Beam, nil, nil, f.Message)
+		row++
+	}
+	for _, p := range u.Problems {
+		var line any
+		if p.Line > 0 {
+			line = p.Line
+		}
+		b.setRow(sheet, row, "problem", nil, p.File, line, p.Message)
+		row++
+	}
+}
+
+func writeInputsSheet(b *xlBook, sheet string, u *reduce.Unit) {
+	b.table(sheet, 1, []xlColumn{{"Path", "", 60}, {"Size (bytes)", nfInt, 13}, {"SHA-256", "", 70}}, true)
+	for i, in := range u.Inputs {
+		b.setRow(sheet, i+2, in.Path, in.Size, in.SHA256)
+	}
+}
