@@ -1,6 +1,7 @@
 package reduce
 
 import (
+	"encoding/json"
 	"math"
 	"testing"
 
@@ -201,4 +202,35 @@ func TestElementsOddInput(t *testing.T) {
 	if st.Rows != 0 || st.Cols != 0 || len(st.ResidualPhaseDeg) != 0 || st.Elements != 3 {
 		t.Errorf("far-flung: rows %d cols %d elements %d", st.Rows, st.Cols, st.Elements)
 	}
+}
+
+// FuzzAnalyseElements checks that any element table gives an analysis that
+// does not panic and encodes as JSON (no NaN or infinity).
+func FuzzAnalyseElements(f *testing.F) {
+	f.Add([]byte{0, 0, 10, 20, 0, 1, 200, 100, 1, 0, 5, 250})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		var els []ingest.Element
+		for i := 0; i+3 < len(data); i += 4 {
+			els = append(els, ingest.Element{
+				Row:         int(int8(data[i])),
+				Col:         int(int8(data[i+1])),
+				AmplitudeDB: float64(int8(data[i+2])),
+				PhaseDeg:    float64(data[i+3]) * 7.3,
+			})
+		}
+		tol := 5.0
+		st := AnalyseElements(els, &tol)
+		if st == nil {
+			if len(els) > 0 {
+				t.Fatal("nil analysis of finite elements")
+			}
+			return
+		}
+		if _, err := json.Marshal(st); err != nil {
+			t.Fatalf("not encodable: %v", err)
+		}
+		if st.RMSResidualDeg < 0 || st.RMSResidualDeg > 180 || st.TaperEfficiency <= 0 || st.TaperEfficiency > 1+1e-12 {
+			t.Fatalf("out of range: rms %g eta %g", st.RMSResidualDeg, st.TaperEfficiency)
+		}
+	})
 }
