@@ -172,6 +172,18 @@ func (p *yparser) mapping(n *yaml.Node, what string) *ymap {
 	return m
 }
 
+// named renames the mapping after the text value of key, when it has one,
+// so that messages say `beam "b00"` rather than `beam 1`.
+func (m *ymap) named(key, format string) *ymap {
+	if m == nil {
+		return nil
+	}
+	if v := resolve(m.vals[key]); v != nil && v.Kind == yaml.ScalarNode && v.Tag != "!!null" && strings.TrimSpace(v.Value) != "" {
+		m.what = fmt.Sprintf(format, v.Value)
+	}
+	return m
+}
+
 // expect declares the known keys, then reports unknown and missing keys.
 func (m *ymap) expect(fields ...field) *ymap {
 	if m == nil {

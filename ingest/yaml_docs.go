@@ -63,7 +63,7 @@ func ParseStation(data []byte, name string) (*Station, error) {
 func parseTerm(p *yparser, n *yaml.Node, i int) (UncertaintyTerm, bool) {
 	before := len(p.probs)
 	what := fmt.Sprintf("uncertainty term %d", i+1)
-	m := p.mapping(n, what).expect(
+	m := p.mapping(n, what).named("name", "uncertainty term %q").expect(
 		field{"name", true, "the term's name"},
 		field{"applies_to", true, "a list of gain and/or gt"},
 		field{"value_db", true, "the term's value in dB, >= 0 (half-width, or expanded at coverage_k for normal)"},
@@ -75,9 +75,6 @@ func parseTerm(p *yparser, n *yaml.Node, i int) (UncertaintyTerm, bool) {
 	}
 	t := UncertaintyTerm{Line: m.node.Line}
 	t.Name, _ = m.str("name")
-	if t.Name != "" {
-		m.what = fmt.Sprintf("uncertainty term %q", t.Name)
-	}
 	t.AppliesTo, _ = m.strList("applies_to", "gain", "gt")
 	if v, ok := m.num("value_db"); ok {
 		if v < 0 {
@@ -247,7 +244,7 @@ func ParseSpec(data []byte, name string) (*Spec, error) {
 
 func parseLimit(p *yparser, n *yaml.Node, i int) (Limit, bool) {
 	before := len(p.probs)
-	m := p.mapping(n, fmt.Sprintf("limit %d", i+1)).expect(
+	m := p.mapping(n, fmt.Sprintf("limit %d", i+1)).named("name", "limit %q").expect(
 		field{"name", true, "the limit's name"},
 		field{"quantity", true, "gt (dB/K) or gain (dBi)"},
 		field{"beams", true, "{ids: [..]} or {min_theta_deg: .., max_theta_deg: ..}"},
@@ -261,9 +258,6 @@ func parseLimit(p *yparser, n *yaml.Node, i int) (Limit, bool) {
 	}
 	l := Limit{Line: m.node.Line}
 	l.Name, _ = m.str("name")
-	if l.Name != "" {
-		m.what = fmt.Sprintf("limit %q", l.Name)
-	}
 	l.Quantity, _ = m.oneOf("quantity", "gt", "gain")
 	if b := m.sub("beams", m.what+" beams"); b != nil {
 		l.Beams = parseSelector(b)
@@ -323,12 +317,16 @@ func ghz(n *yaml.Node, v float64) float64 {
 }
 
 func parseSelector(b *ymap) BeamSelector {
+	before := len(b.p.probs)
 	b.expect(
 		field{"ids", false, "a list of beam ids"},
 		field{"min_theta_deg", false, "a scan angle in degrees, 0 <= theta < 90"},
 		field{"max_theta_deg", false, "a scan angle in degrees, 0 <= theta < 90"},
 	)
 	var sel BeamSelector
+	if len(b.p.probs) > before {
+		return sel
+	}
 	hasIDs := b.has("ids")
 	hasTheta := b.has("min_theta_deg") || b.has("max_theta_deg")
 	switch {

@@ -141,7 +141,7 @@ func ParseRun(data []byte, name string) (*Run, error) {
 
 func parseBeam(p *yparser, n *yaml.Node, i int, lines map[string]int) (Beam, bool) {
 	before := len(p.probs)
-	m := p.mapping(n, fmt.Sprintf("beam %d", i+1)).expect(
+	m := p.mapping(n, fmt.Sprintf("beam %d", i+1)).named("id", "beam %q").expect(
 		field{"id", true, "the beam's identifier, e.g. b00"},
 		field{"theta_deg", true, "the scan angle from boresight in degrees, 0 <= theta < 90"},
 		field{"phi_deg", false, "the scan plane in degrees"},
@@ -154,10 +154,7 @@ func parseBeam(p *yparser, n *yaml.Node, i int, lines map[string]int) (Beam, boo
 		return Beam{}, false
 	}
 	b := Beam{Line: m.node.Line}
-	if id, ok := m.str("id"); ok {
-		b.ID = id
-		m.what = fmt.Sprintf("beam %q", id)
-	}
+	b.ID, _ = m.str("id")
 	if v, ok := m.num("theta_deg"); ok {
 		if v < 0 || v >= 90 {
 			m.invalid("theta_deg", "%v is outside [0, 90)", v)
