@@ -234,3 +234,13 @@ func FuzzAnalyseElements(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkAnalyseElements is a 64 x 64 steered array.
+func BenchmarkAnalyseElements(b *testing.B) {
+	els := arrayOf(64, 64, 1, func(r, c int) float64 {
+		return wrapDeg(100*float64(r) + 65*float64(c) + 3*checker(r, c))
+	})
+	for b.Loop() {
+		AnalyseElements(els, nil)
+	}
+}

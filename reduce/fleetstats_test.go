@@ -260,3 +260,27 @@ func TestFleetDeterministic(t *testing.T) {
 		t.Errorf("empty fleet: %s %v", empty, err)
 	}
 }
+
+// BenchmarkComputeFleet is a fleet of 2000 units with 201-point boresight
+// traces and three limits each.
+func BenchmarkComputeFleet(b *testing.B) {
+	fs := gridHz(10.7, 12.7, 0.01)
+	var us []UnitSummary
+	for u := range 2000 {
+		off := 0.01 * float64(u%37-18)
+		tr := &BoresightTrace{Beam: "b00"}
+		for _, f := range fs {
+			tr.FrequencyHz = append(tr.FrequencyHz, f)
+			tr.GTdBPerK = append(tr.GTdBPerK, 3+0.4*(f/1e9-11)+off)
+		}
+		var ls []LimitResult
+		for _, name := range []string{"boresight", "scanned", "gain"} {
+			ls = append(ls, LimitResult{Name: name, WorstMarginDB: 1 + off, Verdict: VerdictPass})
+		}
+		us = append(us, UnitSummary{Serial: fmt.Sprintf("S%05d", u), Product: "P", Verdict: VerdictPass,
+			Started: fmt.Sprintf("2026-%02d-%02dT08:00:00Z", 1+u%12, 1+u%28), Limits: ls, Boresight: tr})
+	}
+	for b.Loop() {
+		ComputeFleet(us)
+	}
+}
