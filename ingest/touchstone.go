@@ -126,16 +126,12 @@ func (t *tsReader) nextLine() (line []byte, ok bool, err error) {
 	return b, true, nil
 }
 
-func tsIsSpace(c byte) bool {
-	return c == ' ' || c == '\t' || c == '\r' || c == '\n' || c == '\v' || c == '\f'
-}
-
 func tsTrimSpace(b []byte) []byte {
 	i, j := 0, len(b)
-	for i < j && tsIsSpace(b[i]) {
+	for i < j && tsSpaceTab[b[i]] {
 		i++
 	}
-	for j > i && tsIsSpace(b[j-1]) {
+	for j > i && tsSpaceTab[b[j-1]] {
 		j--
 	}
 	return b[i:j]
@@ -478,123 +474,123 @@ func tsClip(s string) string {
 	return s
 }
 
-// tsParseNumber parses a decimal number as Touchstone writes them: digits,
-// sign, point and exponent only (no hex, no inf, no nan).
+// tsParseNumber parses a whole token as a decimal number as Touchstone
+// writes them: sign, digits, point and exponent only (no hex, no inf, no
+// nan, no digit separators).
 func tsParseNumber(b []byte) (float64, bool) {
-	if len(b) == 0 {
-		return 0, false
-	}
-	if v, ok := tsFastFloat(b); ok {
-		return v, true
-	}
-	digits := false
-	for _, c := range b {
-		switch {
-		case c >= '0' && c <= '9':
-			digits = true
-		case c == '.' || c == '+' || c == '-' || c == 'e' || c == 'E':
-		default:
-			return 0, false
-		}
-	}
-	if !digits {
-		return 0, false
-	}
-	v, err := strconv.ParseFloat(string(b), 64)
-	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, false
-	}
-	return v, true
+	v, n, ok := tsScan(b)
+	return v, ok && n == len(b)
 }
 
-var tsPow10tab = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+var tsSpaceTab = [256]bool{' ': true, '\t': true, '\r': true, '\n': true, '\v': true, '\f': true}
+
+var tsPow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
-// tsFastFloat is the exact fast path for the common case (at most 15
-// significant digits and a small exponent): mantissa and power of ten are
-// both exact in a float64, so one multiplication or division rounds
-// correctly (Clinger's fast path). Anything else returns ok false.
-func tsFastFloat(b []byte) (float64, bool) {
+// tsScan reads the number at the start of b, up to the next white space,
+// and returns it with the length of the token. ok is false when the token
+// is not a finite decimal number.
+//
+// The common case (a mantissa below 2^53 and a power of ten up to 22) is
+// computed directly: both are exact in a float64, so one multiplication or
+// division rounds correctly (Clinger's fast path). Longer mantissas go to
+// strconv.ParseFloat, which rounds correctly too.
+func tsScan(b []byte) (v float64, n int, ok bool) {
 	i := 0
 	neg := false
-	if b[0] == '+' || b[0] == '-' {
-		neg = b[0] == '-'
+	if i < len(b) && (b[i] == '+' || b[i] == '-') {
+		neg = b[i] == '-'
 		i++
 	}
 	var mant uint64
 	nd, exp := 0, 0
-	sawDigit, sawDot := false, false
+	digits, trunc := false, false
 	for ; i < len(b); i++ {
-		c := b[i]
-		if c >= '0' && c <= '9' {
-			sawDigit = true
-			if mant == 0 && c == '0' {
-				if sawDot {
-					exp--
+		c := b[i] - '0'
+		if c > 9 {
+			break
+		}
+		digits = true
+		if nd < 19 {
+			mant = mant*10 + uint64(c)
+			if mant != 0 {
+				nd++
+			}
+		} else {
+			trunc = true
+			exp++
+		}
+	}
+	if i < len(b) && b[i] == '.' {
+		i++
+		for ; i < len(b); i++ {
+			c := b[i] - '0'
+			if c > 9 {
+				break
+			}
+			digits = true
+			if nd < 19 {
+				mant = mant*10 + uint64(c)
+				if mant != 0 {
+					nd++
 				}
-				continue
-			}
-			if nd >= 15 {
-				return 0, false
-			}
-			mant = mant*10 + uint64(c-'0')
-			nd++
-			if sawDot {
 				exp--
+			} else {
+				trunc = true
 			}
-			continue
 		}
-		if c == '.' && !sawDot {
-			sawDot = true
-			continue
-		}
-		break
 	}
-	if !sawDigit {
-		return 0, false
-	}
-	if i < len(b) {
-		if b[i] != 'e' && b[i] != 'E' {
-			return 0, false
-		}
+	good := digits
+	if good && i < len(b) && (b[i] == 'e' || b[i] == 'E') {
 		i++
 		eneg := false
 		if i < len(b) && (b[i] == '+' || b[i] == '-') {
 			eneg = b[i] == '-'
 			i++
 		}
-		if i == len(b) {
-			return 0, false
-		}
-		e := 0
+		e, ed := 0, 0
 		for ; i < len(b); i++ {
-			c := b[i]
-			if c < '0' || c > '9' || e > 10000 {
-				return 0, false
+			c := b[i] - '0'
+			if c > 9 {
+				break
 			}
-			e = e*10 + int(c-'0')
+			if e < 100000 {
+				e = e*10 + int(c)
+			}
+			ed++
+		}
+		if ed == 0 {
+			good = false
 		}
 		if eneg {
 			e = -e
 		}
 		exp += e
 	}
-	f := float64(mant)
-	switch {
-	case mant == 0:
-		f = 0
-	case exp == 0:
-	case exp > 0 && exp <= 22:
-		f *= tsPow10tab[exp]
-	case exp < 0 && exp >= -22:
-		f /= tsPow10tab[-exp]
-	default:
-		return 0, false
+	end := i
+	for end < len(b) && !tsSpaceTab[b[end]] {
+		end++
 	}
-	if neg {
-		f = -f
+	if !good || end != i {
+		return 0, end, false
 	}
-	return f, true
+	if !trunc && mant <= 1<<53 && exp >= -22 && exp <= 22 {
+		v = float64(mant)
+		if exp > 0 {
+			v *= tsPow10[exp]
+		} else if exp < 0 {
+			v /= tsPow10[-exp]
+		}
+		if neg {
+			v = -v
+		}
+		return v, end, true
+	}
+	v, err := strconv.ParseFloat(string(b[:end]), 64)
+	if err != nil && !(errors.Is(err, strconv.ErrRange) && v == 0) || math.IsInf(v, 0) || math.IsNaN(v) {
+		return 0, end, false // too large for a float64 (underflow to zero is kept)
+	}
+	return v, end, true
 }
 
 // begin fixes what the data needs once the header is over.
@@ -702,23 +698,23 @@ func (t *tsReader) data(line []byte) error {
 		t.recStart, t.recLines, t.recFirst = t.line, 1, 0
 	}
 	col := 0
-	for len(b) > 0 {
-		i := 0
-		for i < len(b) && !tsIsSpace(b[i]) {
+	i := 0
+	for i < len(b) && tsSpaceTab[b[i]] {
+		i++
+	}
+	for i < len(b) {
+		v, n, ok := tsScan(b[i:])
+		tok := b[i : i+n]
+		i += n
+		for i < len(b) && tsSpaceTab[b[i]] {
 			i++
 		}
-		tok := b[:i]
-		for i < len(b) && tsIsSpace(b[i]) {
-			i++
-		}
-		b = b[i:]
 		col++
 		if col > 1 && len(t.rec) == 0 {
 			// The point ended inside this line.
 			return t.errf(t.line, "line has %d values but the point that began at line %d needed only %d of them: %s; a new point starts on a new line",
 				len(bytes.Fields(line)), t.recStart, col-1, t.describeRecord())
 		}
-		v, ok := tsParseNumber(tok)
 		if !ok {
 			if len(t.rec) == 0 {
 				return t.errf(t.line, "%q is not a number: expected a frequency (%s)", tsClip(string(tok)), t.describeRecord())

@@ -12,6 +12,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -911,5 +912,46 @@ func TestNetworkJSON(t *testing.T) {
 	want := `{"ports":2,"frequency_hz":[1000000000],"z0":[50,50],"s":[[[[0.1,0.2],[0.5,0.6]],[[0.3,0.4],[0.7,0.8]]]]}`
 	if string(b) != want {
 		t.Errorf("got  %s\nwant %s", b, want)
+	}
+}
+
+// TestTouchstoneNumbers checks the reader's number parser against
+// strconv.ParseFloat (correctly rounded, the Go standard library) bit for
+// bit, on hand-picked forms and on random values printed every way.
+func TestTouchstoneNumbers(t *testing.T) {
+	for _, s := range []string{"0", "-0", "+1", "1.", ".5", "-.5e-3", "1e22", "1e23", "9007199254740993", "9007199254740992",
+		"123456789012345678901234567890", "0.000000000000000000000000001", "4.9e-324", "1e-400", "1.7976931348623157e308",
+		"2.2250738585072011e-308", "0.1", "0.30000000000000004", "1E5", "1e+05", "00012.5000"} {
+		want, err := strconv.ParseFloat(s, 64)
+		if err != nil && want != 0 {
+			t.Fatalf("bad case %s", s)
+		}
+		got, ok := tsParseNumber([]byte(s))
+		if !ok || math.Float64bits(got) != math.Float64bits(want) {
+			t.Errorf("%s: got %v (%v), want %v", s, got, ok, want)
+		}
+	}
+	for _, s := range []string{"", ".", "-", "e5", "1e", "1e+", "1.2.3", "1-2", "0x10", "inf", "NaN", "1_000", "1e400", "--1", "1,5", "１"} {
+		if v, ok := tsParseNumber([]byte(s)); ok {
+			t.Errorf("%q accepted as %v", s, v)
+		}
+	}
+	rng := rand.New(rand.NewPCG(9, 10))
+	for k := 0; k < 200000; k++ {
+		v := math.Float64frombits(rng.Uint64())
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		if k%2 == 0 {
+			v = (rng.Float64() - 0.5) * math.Pow(10, float64(rng.IntN(40)-20))
+		}
+		for _, s := range []string{strconv.FormatFloat(v, 'g', -1, 64), strconv.FormatFloat(v, 'e', rng.IntN(18), 64),
+			strconv.FormatFloat(v, 'f', rng.IntN(12), 64)} {
+			want, _ := strconv.ParseFloat(s, 64)
+			got, ok := tsParseNumber([]byte(s))
+			if !ok || math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("%s: got %v (%v), want %v", s, got, ok, want)
+			}
+		}
 	}
 }
