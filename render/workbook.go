@@ -115,6 +115,11 @@ func (b *xlBook) bytes() ([]byte, error) {
 	if b.err != nil {
 		return nil, b.err
 	}
+	// excelize adds the image content types from a map: sort them, or the
+	// order of [Content_Types].xml changes from one run to the next.
+	if ct := b.f.ContentTypes; ct != nil {
+		sort.SliceStable(ct.Defaults, func(i, j int) bool { return ct.Defaults[i].Extension < ct.Defaults[j].Extension })
+	}
 	buf, err := b.f.WriteToBuffer()
 	if err != nil {
 		return nil, err

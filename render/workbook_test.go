@@ -1,0 +1,752 @@
+package render
+
+import (
+	"archive/zip"
+	"bytes"
+	"encoding/json"
+	"io"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"reflect"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+	"unicode/utf8"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// The workbook tests read the files back with an independent reader:
+// Debian's python3-openpyxl at /usr/bin/python3. openpyxl 3.x loads the
+// charts of a drawing into ws._charts, so the charts are checked through
+// it as well.
+
+const openpyxlDump = `
+import json, sys
+import openpyxl
+wb = openpyxl.load_workbook(sys.argv[1])
+out = {"sheets": [], "props": {}}
+p = wb.properties
+out["props"] = {"title": p.title, "creator": p.creator,
+    "created": p.created.isoformat() if p.created else None,
+    "modified": p.modified.isoformat() if p.modified else None}
+for ws in wb.worksheets:
+    rows, fmts = [], []
+    for row in ws.iter_rows():
+        rows.append([c.value for c in row])
+        fmts.append([c.number_format for c in row])
+    charts = []
+    for ch in ws._charts:
+        ser = []
+        for s in ch.series:
+            tx = s.tx.strRef.f if s.tx is not None and s.tx.strRef is not None else None
+            val = s.val.numRef.f if s.val is not None and s.val.numRef is not None else None
+            cat = None
+            if s.cat is not None:
+                cat = s.cat.numRef.f if s.cat.numRef is not None else (s.cat.strRef.f if s.cat.strRef is not None else None)
+            ser.append({"tx": tx, "val": val, "cat": cat})
+        charts.append({"type": type(ch).__name__, "series": ser})
+    cfs = []
+    for cf in ws.conditional_formatting:
+        rules = []
+        for r in cf.rules:
+            fill = None
+            if r.dxf is not None and r.dxf.fill is not None:
+                f = r.dxf.fill
+                fill = (f.bgColor.rgb if f.bgColor is not None else None) or (f.fgColor.rgb if f.fgColor is not None else None)
+            rules.append({"type": r.type, "operator": r.operator, "formula": list(r.formula), "fill": fill})
+        cfs.append({"range": str(cf.sqref), "rules": rules})
+    out["sheets"].append({"title": ws.title, "rows": rows, "formats": fmts, "charts": charts,
+        "freeze": ws.freeze_panes, "cf": cfs})
+with open(sys.argv[2], "w") as fh:
+    json.dump(out, fh)
+`
+
+type xlDump struct {
+	Props struct {
+		Title, Creator, Created, Modified string
+	}
+	Sheets []xlDumpSheet
+}
+
+type xlDumpSheet struct {
+	Title   string
+	Rows    [][]any
+	Formats [][]string
+	Charts  []struct {
+		Type   string
+		Series []struct{ Tx, Val, Cat string }
+	}
+	Freeze *string
+	CF     []struct {
+		Range string
+		Rules []struct {
+			Type, Operator string
+			Formula        []string
+			Fill           string
+		}
+	}
+}
+
+func (d *xlDump) sheet(t *testing.T, title string) *xlDumpSheet {
+	t.Helper()
+	for i := range d.Sheets {
+		if d.Sheets[i].Title == title {
+			return &d.Sheets[i]
+		}
+	}
+	t.Fatalf("workbook has no sheet %q", title)
+	return nil
+}
+
+// cell returns the value at a 1-based row and column, nil when absent.
+func (s *xlDumpSheet) cell(row, col int) any {
+	if row-1 >= len(s.Rows) || col-1 >= len(s.Rows[row-1]) {
+		return nil
+	}
+	return s.Rows[row-1][col-1]
+}
+
+func (s *xlDumpSheet) format(row, col int) string {
+	if row-1 >= len(s.Formats) || col-1 >= len(s.Formats[row-1]) {
+		return ""
+	}
+	return s.Formats[row-1][col-1]
+}
+
+// readWorkbook writes data to a temporary file and reads it with openpyxl.
+func readWorkbook(t *testing.T, data []byte) *xlDump {
+	t.Helper()
+	const python = "/usr/bin/python3"
+	if err := exec.Command(python, "-c", "import openpyxl").Run(); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("python3-openpyxl is required in CI: %v", err)
+		}
+		t.Skipf("python3-openpyxl not available at %s: %v", python, err)
+	}
+	dir := t.TempDir()
+	in, out := filepath.Join(dir, "book.xlsx"), filepath.Join(dir, "dump.json")
+	if err := os.WriteFile(in, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cmd := exec.Command(python, "-c", openpyxlDump, in, out)
+	if msg, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("openpyxl could not read the workbook: %v\n%s", err, msg)
+	}
+	raw, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := new(xlDump)
+	if err := json.Unmarshal(raw, d); err != nil {
+		t.Fatal(err)
+	}
+	return d
+}
+
+// sameNumber says whether a cell holds want: the workbook keeps 15
+// significant digits (the precision of a spreadsheet number, general
+// knowledge), far below the printed 0.000.
+func sameNumber(got any, want float64) bool {
+	g, ok := got.(float64)
+	if !ok {
+		return false
+	}
+	return math.Abs(g-want) <= 1e-12*math.Max(1, math.Abs(want))
+}
+
+// workbookUnit is the shared fixture with limit curves (one covering only
+// the middle of the band, so that cells outside it stay empty) and beam ids
+// that are not valid sheet names as they stand.
+func workbookUnit(t *testing.T) *reduce.Unit {
+	u := fixtureUnit(t, 5, 401)
+	rename := map[string]string{
+		"b02": "b-1",
+		"b03": "b:1",
+		"b04": "a/very*long?beam[identifier]that's-over-31",
+	}
+	for i := range u.Beams {
+		if n, ok := rename[u.Beams[i].ID]; ok {
+			u.Beams[i].ID = n
+		}
+	}
+	for i := range u.Limits {
+		if n, ok := rename[u.Limits[i].Beam]; ok {
+			u.Limits[i].Beam = n
+		}
+	}
+	for _, l := range u.Limits {
+		if l.Quantity != "gt" {
+			continue
+		}
+		for i := range u.Beams {
+			bm := &u.Beams[i]
+			if bm.ID != l.Beam {
+				continue
+			}
+			start, n := 0, len(bm.FrequencyHz)
+			if i == 1 {
+				start, n = 100, 200
+			}
+			c := reduce.LimitCurve{Name: l.Name, Quantity: "gt", Start: start, LimitDB: make([]float64, n)}
+			for k := range c.LimitDB {
+				c.LimitDB[k] = l.LimitDB + 0.001*float64(k) // a sloped limit, so that the margin varies
+			}
+			bm.LimitCurves = append(bm.LimitCurves, c)
+		}
+	}
+	return u
+}
+
+func TestUnitWorkbookReadBack(t *testing.T) {
+	u := workbookUnit(t)
+	data, err := UnitWorkbook(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := readWorkbook(t, data)
+
+	wantSheets := []string{"Summary", "Beam b00", "Beam b01", "Beam b-1", "Beam b-1 (2)",
+		"Beam a_very_long_beam(identifie", "Limits", "Uncertainty", "Flags", "Inputs"}
+	var got []string
+	for _, s := range d.Sheets {
+		got = append(got, s.Title)
+	}
+	if !reflect.DeepEqual(got, wantSheets) {
+		t.Fatalf("sheets %q, want %q", got, wantSheets)
+	}
+
+	if d.Props.Creator != "gtpack" || d.Props.Title != "G/T acceptance workbook, unit "+u.Serial {
+		t.Errorf("properties creator %q title %q", d.Props.Creator, d.Props.Title)
+	}
+	if d.Props.Created != "2026-11-03T09:15:00" || d.Props.Modified != "2026-11-03T09:15:00" {
+		t.Errorf("created %q modified %q, want the run's start 2026-11-03T09:15:00", d.Props.Created, d.Props.Modified)
+	}
+
+	t.Run("summary", func(t *testing.T) {
+		s := d.sheet(t, "Summary")
+		for i, kv := range summaryFields(u) {
+			r := i + 2
+			if s.cell(r, 1) != kv[0] {
+				t.Errorf("A%d = %v, want %v", r, s.cell(r, 1), kv[0])
+			}
+			if f, ok := kv[1].(float64); ok {
+				if !sameNumber(s.cell(r, 2), f) || s.format(r, 2) != "0.0" {
+					t.Errorf("B%d = %v (%s), want %v (0.0)", r, s.cell(r, 2), s.format(r, 2), f)
+				}
+			} else if s.cell(r, 2) != kv[1] {
+				t.Errorf("B%d = %v, want %v", r, s.cell(r, 2), kv[1])
+			}
+		}
+		hr := findRow(s, 1, "Limit")
+		if hr < 0 {
+			t.Fatal("Summary has no limits table")
+		}
+		for i, l := range u.Limits {
+			r := hr + 1 + i
+			if s.cell(r, 1) != l.Name || s.cell(r, 2) != l.Beam || s.cell(r, 6) != l.Verdict {
+				t.Errorf("limit row %d: %v %v %v, want %s %s %s", r, s.cell(r, 1), s.cell(r, 2), s.cell(r, 6), l.Name, l.Beam, l.Verdict)
+			}
+			for _, c := range []struct {
+				col    int
+				want   float64
+				format string
+			}{{3, l.WorstMarginDB, "0.000"}, {4, l.AtFrequencyHz / 1e9, "0.000000"}, {5, l.ExpandedUncertaintyDB, "0.000"}} {
+				if !sameNumber(s.cell(r, c.col), c.want) || s.format(r, c.col) != c.format {
+					t.Errorf("limit row %d col %d = %v (%s), want %v (%s)", r, c.col, s.cell(r, c.col), s.format(r, c.col), c.want, c.format)
+				}
+			}
+		}
+		if len(s.Charts) != 1 || s.Charts[0].Type != "LineChart" || len(s.Charts[0].Series) != len(u.Beams) {
+			t.Fatalf("Summary charts %+v, want one line chart of %d series", s.Charts, len(u.Beams))
+		}
+		if s.Charts[0].Series[4].Val != "'Beam a_very_long_beam(identifie'!$G$2:$G$402" {
+			t.Errorf("Summary series 5 values %q", s.Charts[0].Series[4].Val)
+		}
+		checkVerdictRules(t, s, "B7")
+	})
+
+	for i := range u.Beams {
+		bm := &u.Beams[i]
+		s := d.sheet(t, wantSheets[1+i])
+		t.Run(s.Title, func(t *testing.T) { checkBeamSheet(t, s, bm) })
+	}
+
+	t.Run("limits", func(t *testing.T) {
+		s := d.sheet(t, "Limits")
+		if len(s.Rows) != len(u.Limits)+1 {
+			t.Fatalf("%d rows, want %d", len(s.Rows), len(u.Limits)+1)
+		}
+		for i, l := range u.Limits {
+			r := i + 2
+			texts := []string{l.Name, l.Quantity, l.Beam, l.Statistic}
+			for c, w := range texts {
+				if s.cell(r, c+1) != w {
+					t.Errorf("row %d col %d = %v, want %q", r, c+1, s.cell(r, c+1), w)
+				}
+			}
+			nums := []float64{l.WorstMarginDB, l.AtFrequencyHz / 1e9, l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB}
+			for c, w := range nums {
+				if !sameNumber(s.cell(r, c+5), w) {
+					t.Errorf("row %d col %d = %v, want %v", r, c+5, s.cell(r, c+5), w)
+				}
+			}
+			if s.cell(r, 10) != l.Verdict {
+				t.Errorf("row %d verdict %v, want %s", r, s.cell(r, 10), l.Verdict)
+			}
+		}
+		checkVerdictRules(t, s, "J2:J7")
+		if s.Freeze == nil || *s.Freeze != "A2" {
+			t.Errorf("Limits frozen at %v, want A2", s.Freeze)
+		}
+	})
+
+	t.Run("uncertainty", func(t *testing.T) {
+		s := d.sheet(t, "Uncertainty")
+		// Beam b00: its G/T limit's worst margin is at AtFrequencyHz, a grid point.
+		var l reduce.LimitResult
+		for _, x := range u.Limits {
+			if x.Beam == "b00" && x.Quantity == "gt" {
+				l = x
+			}
+		}
+		bm := &u.Beams[0]
+		k := nearestIndex(bm.FrequencyHz, l.AtFrequencyHz)
+		if bm.FrequencyHz[k] != l.AtFrequencyHz {
+			t.Fatalf("fixture's worst frequency %g is not on the grid", l.AtFrequencyHz)
+		}
+		bud := bm.GTBudget
+		var rows []int
+		for r := 2; r <= len(s.Rows); r++ {
+			if s.cell(r, 1) == "b00" && s.cell(r, 2) == "G/T" {
+				rows = append(rows, r)
+			}
+		}
+		if len(rows) != len(bud.Terms)+2 {
+			t.Fatalf("%d G/T budget rows of b00, want %d terms + combined + expanded", len(rows), len(bud.Terms))
+		}
+		sumSq := 0.0
+		for i, tm := range bud.Terms {
+			r := rows[i]
+			if s.cell(r, 5) != tm.Name || s.cell(r, 6) != tm.Source || s.cell(r, 7) != tm.Distribution {
+				t.Errorf("row %d: %v %v %v, want %s %s %s", r, s.cell(r, 5), s.cell(r, 6), s.cell(r, 7), tm.Name, tm.Source, tm.Distribution)
+			}
+			if !sameNumber(s.cell(r, 3), l.AtFrequencyHz/1e9) || !sameNumber(s.cell(r, 8), tm.Divisor) ||
+				!sameNumber(s.cell(r, 9), tm.ValueDB[k]) || !sameNumber(s.cell(r, 10), tm.StandardDB[k]) {
+				t.Errorf("row %d: %v GHz, divisor %v, value %v, u %v; want %v, %v, %v, %v", r, s.cell(r, 3), s.cell(r, 8),
+					s.cell(r, 9), s.cell(r, 10), l.AtFrequencyHz/1e9, tm.Divisor, tm.ValueDB[k], tm.StandardDB[k])
+			}
+			uc, _ := s.cell(r, 10).(float64)
+			sumSq += uc * uc
+		}
+		rc, re := rows[len(rows)-2], rows[len(rows)-1]
+		if !sameNumber(s.cell(rc, 10), bud.CombinedDB[k]) || !sameNumber(s.cell(re, 9), bud.ExpandedDB[k]) {
+			t.Errorf("combined %v expanded %v, want %v %v", s.cell(rc, 10), s.cell(re, 9), bud.CombinedDB[k], bud.ExpandedDB[k])
+		}
+		// JCGM 100:2008 (GUM) 5.1.2 and 6.2.1: u_c is the root sum of
+		// squares of the rows' standard uncertainties, U = k u_c with k = 2.
+		uc, _ := s.cell(rc, 10).(float64)
+		U, _ := s.cell(re, 9).(float64)
+		if math.Abs(uc-math.Sqrt(sumSq)) > 1e-9 || math.Abs(U-2*uc) > 1e-9 {
+			t.Errorf("sheet's u_c %v, U %v; GUM gives u_c %v, U %v", uc, U, math.Sqrt(sumSq), 2*uc)
+		}
+	})
+
+	t.Run("inputs and flags", func(t *testing.T) {
+		s := d.sheet(t, "Inputs")
+		if len(s.Rows) != len(u.Inputs)+1 {
+			t.Fatalf("%d input rows, want %d", len(s.Rows)-1, len(u.Inputs))
+		}
+		for i, in := range u.Inputs {
+			r := i + 2
+			if s.cell(r, 1) != in.Path || !sameNumber(s.cell(r, 2), float64(in.Size)) || s.cell(r, 3) != in.SHA256 {
+				t.Errorf("input row %d: %v %v %v, want %s %d %s", r, s.cell(r, 1), s.cell(r, 2), s.cell(r, 3), in.Path, in.Size, in.SHA256)
+			}
+		}
+		f := d.sheet(t, "Flags")
+		if len(f.Rows) != 1+len(u.Flags)+len(u.Problems) {
+			t.Fatalf("%d flag rows, want %d", len(f.Rows)-1, len(u.Flags)+len(u.Problems))
+		}
+		p := u.Problems[0]
+		r := 2 + len(u.Flags)
+		if f.cell(r, 1) != "problem" || f.cell(r, 3) != p.File || !sameNumber(f.cell(r, 4), float64(p.Line)) || f.cell(r, 5) != p.Message {
+			t.Errorf("problem row: %v", f.Rows[r-1])
+		}
+		if f.cell(2, 1) != u.Flags[0].Kind || f.cell(2, 5) != u.Flags[0].Message {
+			t.Errorf("first flag row: %v", f.Rows[1])
+		}
+	})
+}
+
+// checkBeamSheet compares every 50th frequency row with the beam's values.
+func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
+	cols := beamColumns(bm)
+	n := len(bm.FrequencyHz)
+	if len(s.Rows) != n+1 {
+		t.Fatalf("%d rows, want %d", len(s.Rows), n+1)
+	}
+	type expect struct {
+		header string
+		value  func(k int) (float64, bool)
+		format string
+	}
+	plain := func(xs []float64) func(int) (float64, bool) {
+		return func(k int) (float64, bool) { return xs[k], true }
+	}
+	exp := []expect{
+		{"Frequency (GHz)", func(k int) (float64, bool) { return bm.FrequencyHz[k] / 1e9, true }, "0.000000"},
+		{"S21 (dB)", plain(bm.S21DB), "0.000"},
+		{"Range loss (dB)", plain(bm.RangeLossDB), "0.000"},
+		{"Gain (dBi)", plain(bm.GainDBi), "0.000"},
+		{"Gain U (dB)", plain(bm.GainExpandedUncertaintyDB), "0.000"},
+		{"Noise above kT0 (dB)", plain(bm.NoiseRelativeKT0DB), "0.000"},
+		{"G/T (dB/K)", plain(bm.GTdBPerK), "0.000"},
+		{"G/T U (dB)", plain(bm.GTExpandedUncertaintyDB), "0.000"},
+	}
+	for _, c := range bm.LimitCurves {
+		c := c
+		in := func(k int) bool { return k >= c.Start && k < c.Start+len(c.LimitDB) }
+		exp = append(exp,
+			expect{"Limit " + c.Name + " (dB/K)", func(k int) (float64, bool) {
+				if !in(k) {
+					return 0, false
+				}
+				return c.LimitDB[k-c.Start], true
+			}, "0.000"},
+			// method.md section 7: margin = x - L.
+			expect{"Margin " + c.Name + " (dB)", func(k int) (float64, bool) {
+				if !in(k) {
+					return 0, false
+				}
+				return bm.GTdBPerK[k] - c.LimitDB[k-c.Start], true
+			}, "0.000"})
+	}
+	if len(cols) < len(exp) {
+		t.Fatalf("%d columns, want at least %d", len(cols), len(exp))
+	}
+	for ci, e := range exp {
+		if s.cell(1, ci+1) != e.header {
+			t.Fatalf("header %d = %v, want %q", ci+1, s.cell(1, ci+1), e.header)
+		}
+		for k := 0; k < n; k += 50 {
+			r := k + 2
+			want, ok := e.value(k)
+			got := s.cell(r, ci+1)
+			if !ok {
+				if got != nil {
+					t.Errorf("%s row %d = %v, want empty (outside the limit's band)", e.header, r, got)
+				}
+				continue
+			}
+			if !sameNumber(got, want) || s.format(r, ci+1) != e.format {
+				t.Errorf("%s row %d = %v (%s), want %v (%s)", e.header, r, got, s.format(r, ci+1), want, e.format)
+			}
+		}
+	}
+	if s.Freeze == nil || *s.Freeze != "A2" {
+		t.Errorf("frozen at %v, want A2", s.Freeze)
+	}
+	if len(s.Charts) != 1 || s.Charts[0].Type != "LineChart" {
+		t.Fatalf("charts %+v, want one line chart", s.Charts)
+	}
+	ser := s.Charts[0].Series
+	if len(ser) != 1+len(bm.LimitCurves) {
+		t.Fatalf("%d series, want G/T and %d limits", len(ser), len(bm.LimitCurves))
+	}
+	q := "'" + s.Title + "'!"
+	last := n + 1
+	if ser[0].Val != q+"$G$2:$G$"+itoa(last) || ser[0].Cat != q+"$A$2:$A$"+itoa(last) || ser[0].Tx != q+"$G$1:$G$1" {
+		t.Errorf("G/T series %+v", ser[0])
+	}
+	if len(ser) > 1 && ser[1].Val != q+"$I$2:$I$"+itoa(last) {
+		t.Errorf("limit series %+v", ser[1])
+	}
+}
+
+func itoa(i int) string { return strconv.Itoa(i) }
+
+func findRow(s *xlDumpSheet, col int, v string) int {
+	for r := 1; r <= len(s.Rows); r++ {
+		if s.cell(r, col) == v {
+			return r
+		}
+	}
+	return -1
+}
+
+// checkVerdictRules checks the conditional formatting of a verdict range:
+// one equality rule per verdict, with our fill colours.
+func checkVerdictRules(t *testing.T, s *xlDumpSheet, rangeRef string) {
+	t.Helper()
+	for _, cf := range s.CF {
+		if cf.Range != rangeRef {
+			continue
+		}
+		if len(cf.Rules) != len(verdictColours) {
+			t.Fatalf("%s: %d rules, want %d", rangeRef, len(cf.Rules), len(verdictColours))
+		}
+		for i, r := range cf.Rules {
+			vc := verdictColours[i]
+			if r.Type != "cellIs" || r.Operator != "equal" || len(r.Formula) != 1 || r.Formula[0] != `"`+vc.verdict+`"` ||
+				!strings.HasSuffix(r.Fill, vc.fill) {
+				t.Errorf("%s rule %d: %+v, want cellIs equal \"%s\" fill %s", rangeRef, i, r, vc.verdict, vc.fill)
+			}
+		}
+		return
+	}
+	t.Errorf("no conditional formatting on %s (have %+v)", rangeRef, s.CF)
+}
+
+func TestUnitWorkbookDeterministic(t *testing.T) {
+	tests := []struct {
+		started string
+		want    time.Time
+	}{
+		{"2026-11-03T09:15:00Z", time.Date(2026, 11, 3, 9, 15, 0, 0, time.UTC)},
+		{"2026-11-03T10:15:00+01:00", time.Date(2026, 11, 3, 9, 15, 0, 0, time.UTC)},
+		{"not a time", time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)},
+		{"", time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)},
+	}
+	for i, tc := range tests {
+		u := fixtureUnit(t, 2, 51)
+		u.Started = tc.started
+		a, err := UnitWorkbook(u)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if i == 0 {
+			time.Sleep(1100 * time.Millisecond) // a wall-clock time in the file would now differ
+		}
+		// Three more builds: an order taken from a map would show within them.
+		for j := 0; j < 3; j++ {
+			b, err := UnitWorkbook(u)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(a, b) {
+				t.Errorf("started %q: builds differ (%d and %d bytes)", tc.started, len(a), len(b))
+				break
+			}
+		}
+		checkZipTimes(t, a, tc.want)
+	}
+}
+
+// checkZipTimes checks that every zip entry carries the fixed time, and
+// that docProps/core.xml states it.
+func checkZipTimes(t *testing.T, data []byte, want time.Time) {
+	t.Helper()
+	zr, err := zip.NewReader(bytes.NewReader(data), int64(len(data)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range zr.File {
+		if !f.Modified.Equal(want) {
+			t.Errorf("zip entry %s modified %v, want %v", f.Name, f.Modified, want)
+		}
+		if f.Name == "docProps/core.xml" {
+			rc, _ := f.Open()
+			core, _ := io.ReadAll(rc)
+			rc.Close()
+			stamp := want.Format(time.RFC3339)
+			if !bytes.Contains(core, []byte(">"+stamp+"</dcterms:created>")) || !bytes.Contains(core, []byte(">"+stamp+"</dcterms:modified>")) {
+				t.Errorf("core.xml does not date the workbook %s: %s", stamp, core)
+			}
+		}
+	}
+}
+
+func TestFleetWorkbookReadBack(t *testing.T) {
+	f := fixtureFleet(t)
+	data, err := FleetWorkbook(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a2, _ := FleetWorkbook(f)
+	if !bytes.Equal(data, a2) {
+		t.Error("two fleet workbooks differ")
+	}
+	checkZipTimes(t, data, time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC))
+	d := readWorkbook(t, data)
+
+	t.Run("units", func(t *testing.T) {
+		s := d.sheet(t, "Units")
+		if len(s.Rows) != len(f.Units)+1 {
+			t.Fatalf("%d rows, want %d", len(s.Rows), len(f.Units)+1)
+		}
+		if s.cell(1, 5) != "G/T at boresight worst margin (dB)" || s.cell(1, 6) != "Gain at boresight worst margin (dB)" {
+			t.Fatalf("headers %v", s.Rows[0])
+		}
+		for i, u := range f.Units {
+			r := i + 2
+			if s.cell(r, 1) != u.Serial || s.cell(r, 2) != u.Product || s.cell(r, 3) != u.Started || s.cell(r, 4) != u.Verdict {
+				t.Errorf("row %d: %v", r, s.Rows[r-1])
+			}
+			for j, name := range []string{"G/T at boresight", "Gain at boresight"} {
+				want, found := math.Inf(1), false
+				for _, l := range u.Limits {
+					if l.Name == name {
+						want, found = math.Min(want, l.WorstMarginDB), true
+					}
+				}
+				got := s.cell(r, 5+j)
+				if !found && got != nil || found && (!sameNumber(got, want) || s.format(r, 5+j) != "0.000") {
+					t.Errorf("row %d %s = %v (%s), want %v (found %v)", r, name, got, s.format(r, 5+j), want, found)
+				}
+			}
+		}
+		checkVerdictRules(t, s, "D2:D26")
+	})
+
+	t.Run("limits", func(t *testing.T) {
+		s := d.sheet(t, "Limits")
+		r := 2
+		for _, p := range f.Products {
+			for _, l := range p.Limits {
+				want := []float64{float64(l.Units), float64(l.Passed), l.Yield, l.MeanMarginDB, l.StdMarginDB, l.Cpk,
+					l.Chart.CentreDB, l.Chart.UpperDB, l.Chart.LowerDB, l.Chart.MeanMovingRange}
+				if s.cell(r, 1) != p.Product || s.cell(r, 2) != l.Name {
+					t.Errorf("row %d: %v", r, s.Rows[r-1])
+				}
+				for c, w := range want {
+					if !sameNumber(s.cell(r, 3+c), w) {
+						t.Errorf("row %d col %d = %v, want %v", r, 3+c, s.cell(r, 3+c), w)
+					}
+				}
+				if s.format(r, 5) != "0.0%" || s.format(r, 8) != "0.00" {
+					t.Errorf("yield/Cpk formats %q %q", s.format(r, 5), s.format(r, 8))
+				}
+				r++
+			}
+		}
+		if len(s.Rows) != r-1 {
+			t.Errorf("%d rows, want %d", len(s.Rows), r-1)
+		}
+	})
+
+	t.Run("control chart", func(t *testing.T) {
+		s := d.sheet(t, "Control chart")
+		c := f.Products[0].Limits[0].Chart
+		for i, v := range c.ValuesDB {
+			r := i + 2
+			beyond := s.cell(r, 10) == "yes"
+			if s.cell(r, 4) != c.Serials[i] || !sameNumber(s.cell(r, 6), v) || !sameNumber(s.cell(r, 8), c.UpperDB) ||
+				beyond != slices.Contains(c.Beyond, i) {
+				t.Errorf("row %d: %v", r, s.Rows[r-1])
+			}
+		}
+		if len(s.Charts) != 2 {
+			t.Fatalf("%d control charts, want 2 (the single-unit product has none)", len(s.Charts))
+		}
+		if got := s.Charts[0].Series[0].Val; got != "'Control chart'!$F$2:$F$25" {
+			t.Errorf("first chart values %q", got)
+		}
+	})
+
+	t.Run("outliers, watch and band", func(t *testing.T) {
+		o := d.sheet(t, "Outliers")
+		ol := f.Products[0].Limits[0].Outliers[0]
+		if len(o.Rows) != 2 || o.cell(2, 3) != ol.Serial || !sameNumber(o.cell(2, 4), ol.MarginDB) || !sameNumber(o.cell(2, 5), ol.ModifiedZ) {
+			t.Errorf("outliers %v", o.Rows)
+		}
+		w := d.sheet(t, "Watch")
+		we := f.Products[0].Watch[0]
+		if len(w.Rows) != 1+len(we.FrequenciesHz) || w.cell(3, 2) != we.Serial || !sameNumber(w.cell(3, 3), we.FrequenciesHz[1]/1e9) {
+			t.Errorf("watch %v", w.Rows)
+		}
+		b := d.sheet(t, "Band")
+		g := f.Products[0].Band
+		if len(b.Rows) != 1+len(g.FrequencyHz) {
+			t.Fatalf("%d band rows, want %d", len(b.Rows)-1, len(g.FrequencyHz))
+		}
+		for k := 0; k < len(g.FrequencyHz); k += 10 {
+			r := k + 2
+			if !sameNumber(b.cell(r, 2), g.FrequencyHz[k]/1e9) || !sameNumber(b.cell(r, 3), g.MedianDB[k]) ||
+				!sameNumber(b.cell(r, 4), g.LowDB[k]) || !sameNumber(b.cell(r, 5), g.HighDB[k]) {
+				t.Errorf("band row %d: %v", r, b.Rows[r-1])
+			}
+		}
+		if len(b.Charts) != 1 || len(b.Charts[0].Series) != 3 || b.Charts[0].Series[0].Cat != "'Band'!$B$2:$B$102" {
+			t.Errorf("band charts %+v", b.Charts)
+		}
+	})
+}
+
+func TestWorkbookNonFiniteAndEmpty(t *testing.T) {
+	u := fixtureUnit(t, 1, 11)
+	u.Beams[0].GTdBPerK[3] = math.NaN()
+	u.Beams[0].GainDBi[4] = math.Inf(1)
+	u.Beams[0].S21DB = u.Beams[0].S21DB[:5] // shorter than the grid: cells stay empty
+	u.AmbientC = math.NaN()
+	data, err := UnitWorkbook(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	empty := &reduce.Unit{Schema: reduce.ResultSchema, Serial: "E-1"}
+	if _, err := UnitWorkbook(empty); err != nil {
+		t.Fatalf("unit without beams or limits: %v", err)
+	}
+	if _, err := UnitWorkbook(nil); err == nil {
+		t.Error("nil unit: no error")
+	}
+	if _, err := FleetWorkbook(&reduce.Fleet{}); err != nil {
+		t.Fatalf("empty fleet: %v", err)
+	}
+	d := readWorkbook(t, data)
+	s := d.sheet(t, "Beam b00")
+	for _, c := range []struct{ row, col int }{{5, 7}, {6, 4}, {7, 2}, {12, 2}} {
+		if v := s.cell(c.row, c.col); v != nil {
+			t.Errorf("cell (%d,%d) = %v, want empty", c.row, c.col, v)
+		}
+	}
+	if !sameNumber(s.cell(6, 2), u.Beams[0].S21DB[4]) || !sameNumber(s.cell(6, 7), u.Beams[0].GTdBPerK[4]) {
+		t.Errorf("finite neighbours lost: %v %v", s.cell(6, 2), s.cell(6, 7))
+	}
+	if v := d.sheet(t, "Summary").cell(15, 2); v != nil {
+		t.Errorf("NaN ambient shown as %v", v)
+	}
+}
+
+func TestUniqueSheetName(t *testing.T) {
+	used := map[string]bool{}
+	tests := []struct{ in, want string }{
+		{"Summary", "Summary"},
+		{"summary", "summary (2)"}, // names compare without case
+		{"Beam a/b", "Beam a_b"},
+		{"Beam a\\b", "Beam a_b (2)"},
+		{"Beam [x]:*?", "Beam (x)-__"},
+		{"Beam it's", "Beam it_s"},
+		{"", "Sheet"},
+		{"   ", "Sheet (2)"},
+		{"History", "History (data)"},
+		{"Beam 0123456789012345678901234567890123", "Beam 01234567890123456789012345"},
+		{"Beam 0123456789012345678901234567890199", "Beam 0123456789012345678901 (2)"},
+		{"Beam \x01tab", "Beam _tab"},
+		{"Beam ééééééééééééééééééééééééééééééé", "Beam éééééééééééééééééééééééééé"},
+	}
+	for _, tc := range tests {
+		got := uniqueSheetName(tc.in, used)
+		if got != tc.want {
+			t.Errorf("uniqueSheetName(%q) = %q, want %q", tc.in, got, tc.want)
+		}
+		if n := utf8.RuneCountInString(got); n > 31 || strings.ContainsAny(got, `[]:*?/\'`) {
+			t.Errorf("%q is not a valid sheet name (%d characters)", got, n)
+		}
+	}
+}
+
+func BenchmarkUnitWorkbook16x801(b *testing.B) {
+	u := fixtureUnit(b, 16, 801)
+	b.ReportAllocs()
+	for i := 0; i < b.N; i++ {
+		data, err := UnitWorkbook(u)
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.SetBytes(int64(len(data)))
+	}
+}
