@@ -1,0 +1,302 @@
+package render
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"html/template"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+	"sync"
+
+	"github.com/yuin/goldmark"
+
+	"gtpack.example/gtpack/reduce"
+	"gtpack.example/gtpack/templates"
+)
+
+// The HTML pages are html/template documents that inline everything they
+// need (style, our own script, the chart library and the data), so that a
+// page copied alone to a machine without a network still works. Every
+// value from the results reaches the page through html/template's
+// contextual escaping; the only values marked safe are the ones built here
+// (chart options marshalled as JSON, the CSV data URL, Markdown rendered
+// with raw HTML off).
+
+var (
+	pagesOnce sync.Once
+	pages     *template.Template
+	pagesErr  error
+	assets    struct {
+		css, js, lib []byte
+	}
+)
+
+// loadPages parses the page templates and reads the inlined assets once.
+func loadPages() (*template.Template, error) {
+	pagesOnce.Do(func() {
+		t := template.New("pages").Funcs(template.FuncMap{
+			"db":      fmtDB,
+			"db2":     func(v float64) string { return fmtFixed(v, 2) },
+			"signed":  fmtSigned,
+			"ghz":     fmtGHz,
+			"fixed":   fmtFixed,
+			"verdict": verdictLabel,
+			"vclass":  verdictClass,
+			"pct":     func(v float64) string { return fmtFixed(100*v, 1) + " %" },
+			"inc":     func(i int) int { return i + 1 },
+		})
+		t, err := t.ParseFS(templates.FS, "*.tmpl")
+		if err != nil {
+			pagesErr = fmt.Errorf("render: page templates: %w", err)
+			return
+		}
+		for _, a := range []struct {
+			name string
+			dst  *[]byte
+		}{{"page.css", &assets.css}, {"page.js", &assets.js}, {"vendor/echarts.custom.min.js", &assets.lib}} {
+			b, err := templates.FS.ReadFile(a.name)
+			if err != nil {
+				pagesErr = fmt.Errorf("render: page asset: %w", err)
+				return
+			}
+			*a.dst = b
+		}
+		pages = t
+	})
+	return pages, pagesErr
+}
+
+// pageAssets is what every page inlines.
+type pageAssets struct {
+	CSS template.CSS
+	JS  template.JS
+	Lib template.JS
+}
+
+func inlineAssets() pageAssets {
+	return pageAssets{CSS: template.CSS(assets.css), JS: template.JS(assets.js), Lib: template.JS(assets.lib)}
+}
+
+func execute(name string, data any) ([]byte, error) {
+	t, err := loadPages()
+	if err != nil {
+		return nil, err
+	}
+	var buf bytes.Buffer
+	if err := t.ExecuteTemplate(&buf, name, data); err != nil {
+		return nil, fmt.Errorf("render: %s: %w", name, err)
+	}
+	return buf.Bytes(), nil
+}
+
+// Number formats. Tables print dB values to 0.01 dB (the uncertainties are
+// tenths of a dB), frequencies in GHz to 1 kHz; a NaN or infinity prints as
+// a dash rather than as Go's spelling.
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func fmtFixed(v float64, decimals int) string {
+	if !finite(v) {
+		return "–"
+	}
+	s := strconv.FormatFloat(v, 'f', decimals, 64)
+	if strings.Trim(s, "-0.") == "" { // no "-0.00"
+		s = strings.TrimPrefix(s, "-")
+	}
+	return s
+}
+
+func fmtDB(v float64) string { return fmtFixed(v, 2) }
+
+func fmtSigned(v float64) string {
+	s := fmtFixed(v, 2)
+	if finite(v) && !strings.HasPrefix(s, "-") && strings.Trim(s, "0.") != "" {
+		return "+" + s
+	}
+	return s
+}
+
+func fmtGHz(hz float64) string {
+	if !finite(hz) {
+		return "–"
+	}
+	// 0.1 MHz: finer than any grid step the reports see, short enough to read.
+	return strconv.FormatFloat(math.Round(hz/1e5)/1e4, 'f', -1, 64)
+}
+
+// compact is a number written to a fixed number of decimals in chart JSON
+// (shortest form of the rounded value); NaN and infinities become null.
+type compact struct {
+	v        float64
+	decimals int
+}
+
+func (c compact) MarshalJSON() ([]byte, error) {
+	if !finite(c.v) {
+		return []byte("null"), nil
+	}
+	p := math.Pow(10, float64(c.decimals))
+	r := math.Round(c.v*p) / p
+	if r == 0 {
+		r = 0 // no -0
+	}
+	return []byte(strconv.FormatFloat(r, 'f', -1, 64)), nil
+}
+
+func r3(v float64) compact { return compact{v, 3} }
+
+func ghz(hz float64) compact { return compact{hz / 1e9, 6} }
+
+// csvNumber writes a dB value to 0.001 dB, the printed precision of the
+// per-frequency CSV: far below any uncertainty here, and it keeps the
+// embedded file small.
+func csvNumber(v float64) string {
+	if !finite(v) {
+		return ""
+	}
+	r := math.Round(v*1000) / 1000
+	if r == 0 {
+		r = 0
+	}
+	return strconv.FormatFloat(r, 'f', -1, 64)
+}
+
+var verdictOrder = []string{
+	reduce.VerdictPass, reduce.VerdictConditionalPass, reduce.VerdictConditionalFail,
+	reduce.VerdictFail, reduce.VerdictIncomplete,
+}
+
+func verdictLabel(v string) string {
+	switch v {
+	case reduce.VerdictPass:
+		return "PASS"
+	case reduce.VerdictConditionalPass:
+		return "CONDITIONAL PASS"
+	case reduce.VerdictConditionalFail:
+		return "CONDITIONAL FAIL"
+	case reduce.VerdictFail:
+		return "FAIL"
+	case reduce.VerdictIncomplete:
+		return "INCOMPLETE"
+	case "":
+		return "–"
+	}
+	return strings.ToUpper(v)
+}
+
+// verdictClass is the CSS class of a verdict; unknown verdicts get the
+// neutral class so a stray value cannot pick a style.
+func verdictClass(v string) string {
+	switch v {
+	case reduce.VerdictPass:
+		return "v-pass"
+	case reduce.VerdictConditionalPass:
+		return "v-cpass"
+	case reduce.VerdictConditionalFail:
+		return "v-cfail"
+	case reduce.VerdictFail:
+		return "v-fail"
+	}
+	return "v-none"
+}
+
+// sortedCounts lists a verdict-count map in verdict order, then any other
+// key in byte order, so that the page never depends on map order.
+func sortedCounts(m map[string]int) []countRow {
+	var out []countRow
+	seen := map[string]bool{}
+	for _, v := range verdictOrder {
+		if n, ok := m[v]; ok {
+			out = append(out, countRow{Verdict: v, N: n})
+			seen[v] = true
+		}
+	}
+	var rest []string
+	for k := range m {
+		if !seen[k] {
+			rest = append(rest, k)
+		}
+	}
+	sort.Strings(rest)
+	for _, k := range rest {
+		out = append(out, countRow{Verdict: k, N: m[k]})
+	}
+	return out
+}
+
+type countRow struct {
+	Verdict string
+	N       int
+}
+
+// markdown renders notes with goldmark's defaults: raw HTML is left out
+// (replaced by a comment) and links or images whose destination is a
+// dangerous URL (javascript:, vbscript:, file:, data: other than images)
+// get an empty destination, so nothing in the notes can run.
+func markdown(src string) (template.HTML, error) {
+	var buf bytes.Buffer
+	if err := goldmark.New().Convert([]byte(src), &buf); err != nil {
+		return "", fmt.Errorf("render: notes: %w", err)
+	}
+	return template.HTML(buf.String()), nil
+}
+
+// dataURL is the CSV as a data: URL. Only bytes outside a small safe set
+// are percent-encoded, so the link costs little more than the file itself.
+func dataURL(mime string, data []byte) template.URL {
+	var b strings.Builder
+	b.Grow(len(data) + len(data)/16 + len(mime) + 8)
+	b.WriteString("data:")
+	b.WriteString(mime)
+	b.WriteByte(',')
+	const hex = "0123456789ABCDEF"
+	for _, c := range data {
+		switch {
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9',
+			c == '-', c == '.', c == '_', c == ',', c == ':', c == '+', c == '=', c == '/':
+			b.WriteByte(c)
+		default:
+			b.WriteByte('%')
+			b.WriteByte(hex[c>>4])
+			b.WriteByte(hex[c&15])
+		}
+	}
+	return template.URL(b.String())
+}
+
+// fileName keeps the letters, digits, '-', '_' and '.' of a serial for a
+// download name.
+func fileName(s string) string {
+	var b strings.Builder
+	for _, r := range s {
+		switch {
+		case r >= 'a' && r <= 'z', r >= 'A' && r <= 'Z', r >= '0' && r <= '9', r == '-', r == '_', r == '.':
+			b.WriteRune(r)
+		default:
+			b.WriteByte('_')
+		}
+	}
+	if b.Len() == 0 {
+		return "unit"
+	}
+	return b.String()
+}
+
+// jsonJS marshals a value for a <script type="application/json"> block.
+// encoding/json escapes <, > and & so the block cannot be closed early.
+func jsonJS(v any) (template.JS, error) {
+	b, err := json.Marshal(v)
+	if err != nil {
+		return "", err
+	}
+	return template.JS(b), nil
+}
+
+// cautions is the short footnote of method.md section 11.
+const cautions = "Active antennas are powered electronics: receive tests must not radiate " +
+	"(transmit paths off or terminated); RF exposure limits and laboratory safety rules are those of the " +
+	"local authority; ESD and DC handling follow the unit's own instructions. This report supports a " +
+	"decision: accredited calibration and test practice (ISO/IEC 17025) and the customer's contract govern it."

@@ -1,0 +1,404 @@
+package render
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"html/template"
+	"math"
+	"sort"
+	"strconv"
+
+	"gtpack.example/gtpack/ingest"
+	"gtpack.example/gtpack/reduce"
+)
+
+// Report renders a unit's acceptance report (units/<serial>/report.html):
+// one self-contained HTML file that works offline and prints on A4 or
+// Letter. It shows what reduce computed and nothing else.
+func Report(u *reduce.Unit) ([]byte, error) {
+	if u == nil {
+		return nil, errors.New("render: report of a nil unit")
+	}
+	if _, err := loadPages(); err != nil {
+		return nil, err
+	}
+	v, err := reportModel(u)
+	if err != nil {
+		return nil, err
+	}
+	return execute("report.tmpl", v)
+}
+
+// UnitCSV is the per-frequency numbers of every beam as CSV, the file the
+// report embeds for download. It is wide: one row per frequency (the union
+// of the beams' grids, in Hz), one column per beam and quantity named
+// <beam>_<quantity>, an empty cell where a beam has no point. Range loss
+// and drift take one column each when every beam shares them. Values are
+// written to 0.001 dB.
+func UnitCSV(u *reduce.Unit) []byte {
+	b, _ := unitCSV(u)
+	return b
+}
+
+type csvColumn struct {
+	name string
+	beam int // -1: shared
+	get  func(b *reduce.Beam) []float64
+}
+
+func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	cols := csvCols{}
+	if u == nil {
+		return nil, cols
+	}
+	// Union of the grids.
+	set := map[float64]bool{}
+	for _, b := range u.Beams {
+		for _, f := range b.FrequencyHz {
+			if finite(f) {
+				set[f] = true
+			}
+		}
+	}
+	freqs := make([]float64, 0, len(set))
+	for f := range set {
+		freqs = append(freqs, f)
+	}
+	sort.Float64s(freqs)
+
+	shared := sharedRange(u.Beams)
+	var columns []csvColumn
+	rl := func(b *reduce.Beam) []float64 { return b.RangeLossDB }
+	drift := func(b *reduce.Beam) []float64 { return b.RangeDriftDB }
+	if shared && len(u.Beams) > 0 {
+		columns = append(columns, csvColumn{"range_loss_db", 0, rl})
+		if len(u.Beams[0].RangeDriftDB) > 0 {
+			columns = append(columns, csvColumn{"range_drift_db", 0, drift})
+		}
+	}
+	for i := range u.Beams {
+		b := &u.Beams[i]
+		add := func(q string, get func(b *reduce.Beam) []float64) {
+			if len(get(b)) > 0 {
+				columns = append(columns, csvColumn{b.ID + "_" + q, i, get})
+			}
+		}
+		add("s21_db", func(b *reduce.Beam) []float64 { return b.S21DB })
+		if !shared {
+			add("range_loss_db", rl)
+			add("range_drift_db", drift)
+		}
+		add("gain_dbi", func(b *reduce.Beam) []float64 { return b.GainDBi })
+		add("gain_u_db", func(b *reduce.Beam) []float64 { return b.GainExpandedUncertaintyDB })
+		add("gt_db_per_k", func(b *reduce.Beam) []float64 { return b.GTdBPerK })
+		add("gt_u_db", func(b *reduce.Beam) []float64 { return b.GTExpandedUncertaintyDB })
+		add("noise_rel_kt0_db", func(b *reduce.Beam) []float64 { return b.NoiseRelativeKT0DB })
+		add("gt_other_form_db_per_k", func(b *reduce.Beam) []float64 {
+			if b.OtherForm == nil {
+				return nil
+			}
+			return b.OtherForm.GTdBPerK
+		})
+		add("operating_gt_db_per_k_derived", func(b *reduce.Beam) []float64 {
+			if b.Projection == nil {
+				return nil
+			}
+			return b.Projection.OperatingGTdBPerK
+		})
+	}
+	header := make([]string, 0, len(columns)+1)
+	header = append(header, "frequency_hz")
+	for i, c := range columns {
+		header = append(header, c.name)
+		if _, dup := cols[c.name]; !dup {
+			cols[c.name] = i + 1
+		}
+	}
+	_ = w.Write(header)
+
+	// Per beam, the index of each frequency on its grid.
+	index := make([]map[float64]int, len(u.Beams))
+	for i, b := range u.Beams {
+		index[i] = make(map[float64]int, len(b.FrequencyHz))
+		for k, f := range b.FrequencyHz {
+			if _, seen := index[i][f]; !seen {
+				index[i][f] = k
+			}
+		}
+	}
+	rec := make([]string, len(header))
+	for _, f := range freqs {
+		rec[0] = strconv.FormatFloat(f, 'f', -1, 64)
+		for j, c := range columns {
+			rec[j+1] = ""
+			b := &u.Beams[c.beam]
+			if k, ok := index[c.beam][f]; ok {
+				if vals := c.get(b); k < len(vals) {
+					rec[j+1] = csvNumber(vals[k])
+				}
+			}
+		}
+		_ = w.Write(rec)
+	}
+	w.Flush()
+	return buf.Bytes(), cols
+}
+
+// sharedRange is true when every beam has the same grid, range loss and
+// drift: they come from one reference measurement, so a single column
+// holds them.
+func sharedRange(beams []reduce.Beam) bool {
+	if len(beams) == 0 {
+		return false
+	}
+	eq := func(a, b []float64) bool {
+		if len(a) != len(b) {
+			return false
+		}
+		for i := range a {
+			if a[i] != b[i] && !(math.IsNaN(a[i]) && math.IsNaN(b[i])) {
+				return false
+			}
+		}
+		return true
+	}
+	b0 := beams[0]
+	for _, b := range beams[1:] {
+		if !eq(b.FrequencyHz, b0.FrequencyHz) || !eq(b.RangeLossDB, b0.RangeLossDB) || !eq(b.RangeDriftDB, b0.RangeDriftDB) {
+			return false
+		}
+	}
+	return true
+}
+
+// The report's view model.
+
+type reportView struct {
+	pageAssets
+	Version   string
+	U         *reduce.Unit
+	RuleText  string
+	Limits    []limitRow
+	Worst     *limitRow
+	Budget    *budgetView
+	Beams     []beamRow
+	Projected []projectionRow
+	Elements  *reduce.ElementState
+	Charts    []chartSpec
+	ElemChart *chartSpec
+	NotesHTML template.HTML
+	CSVHref   template.URL
+	CSVName   string
+	CSVSize   int
+	Problems  []problemRow
+	Cautions  string
+	InputSize int64
+}
+
+type limitRow struct {
+	reduce.LimitResult
+	Worst bool
+}
+
+type budgetView struct {
+	Limit      reduce.LimitResult
+	Quantity   string
+	FrequencyH float64
+	Rows       []budgetRow
+	CombinedDB float64
+	ExpandedDB float64
+	K          float64
+}
+
+type budgetRow struct {
+	Name, Source, Distribution string
+	Divisor, ValueDB, StdDB    float64
+}
+
+type beamRow struct {
+	reduce.Beam
+	Points     int
+	FromGHz    float64
+	ToGHz      float64
+	MinGT      float64
+	OtherMaxDB float64
+	HasOther   bool
+}
+
+type projectionRow struct {
+	Beam string
+	reduce.Projection
+	MinGT, CentreGT, MaxGT float64
+	CentreHz               float64
+}
+
+type problemRow struct {
+	ingest.Problem
+	Text string
+}
+
+func reportModel(u *reduce.Unit) (*reportView, error) {
+	v := &reportView{pageAssets: inlineAssets(), Version: Version, U: u, Cautions: cautions}
+	switch u.DecisionRule {
+	case "guarded":
+		v.RuleText = "guarded acceptance (ILAC-G8): pass when value − U ≥ limit, fail when value + U < limit, otherwise conditional pass (value ≥ limit) or conditional fail"
+	case "simple":
+		v.RuleText = "simple acceptance (ILAC-G8): pass when value ≥ limit, else fail"
+	default:
+		v.RuleText = u.DecisionRule
+	}
+	worst := -1
+	for i, l := range u.Limits {
+		v.Limits = append(v.Limits, limitRow{LimitResult: l})
+		if finite(l.WorstMarginDB) && (worst < 0 || l.WorstMarginDB < u.Limits[worst].WorstMarginDB) {
+			worst = i
+		}
+	}
+	if worst >= 0 {
+		v.Limits[worst].Worst = true
+		v.Worst = &v.Limits[worst]
+		v.Budget = budgetAt(u, u.Limits[worst])
+	}
+	for _, b := range u.Beams {
+		r := beamRow{Beam: b, Points: len(b.FrequencyHz), MinGT: math.NaN()}
+		if n := len(b.FrequencyHz); n > 0 {
+			r.FromGHz, r.ToGHz = b.FrequencyHz[0], b.FrequencyHz[n-1]
+		}
+		for _, g := range b.GTdBPerK {
+			if finite(g) && (math.IsNaN(r.MinGT) || g < r.MinGT) {
+				r.MinGT = g
+			}
+		}
+		if b.OtherForm != nil {
+			r.HasOther, r.OtherMaxDB = true, b.OtherForm.MaxAbsDifferenceDB
+		}
+		v.Beams = append(v.Beams, r)
+		if p := b.Projection; p != nil {
+			pr := projectionRow{Beam: b.ID, Projection: *p, MinGT: math.NaN(), MaxGT: math.NaN(), CentreGT: math.NaN(), CentreHz: math.NaN()}
+			for _, g := range p.OperatingGTdBPerK {
+				if finite(g) {
+					if math.IsNaN(pr.MinGT) || g < pr.MinGT {
+						pr.MinGT = g
+					}
+					if math.IsNaN(pr.MaxGT) || g > pr.MaxGT {
+						pr.MaxGT = g
+					}
+				}
+			}
+			if k := centreIndex(b.FrequencyHz); k >= 0 && k < len(p.OperatingGTdBPerK) {
+				pr.CentreGT, pr.CentreHz = p.OperatingGTdBPerK[k], b.FrequencyHz[k]
+			}
+			v.Projected = append(v.Projected, pr)
+		}
+	}
+	for _, p := range u.Problems {
+		p := p
+		v.Problems = append(v.Problems, problemRow{Problem: p, Text: p.Error()})
+	}
+	for _, in := range u.Inputs {
+		v.InputSize += in.Size
+	}
+	notes, err := markdown(u.Notes)
+	if err != nil {
+		return nil, err
+	}
+	v.NotesHTML = notes
+
+	data, cols := unitCSV(u)
+	v.CSVHref = dataURL("text/csv;charset=utf-8", data)
+	v.CSVName = fileName(u.Serial) + "-per-frequency.csv"
+	v.CSVSize = len(data)
+
+	focus := 0
+	if v.Worst != nil {
+		for i, b := range u.Beams {
+			if b.ID == v.Worst.Beam {
+				focus = i
+			}
+		}
+	}
+	if len(u.Beams) > 0 {
+		gt, err := gtChart(u, cols, focus)
+		if err != nil {
+			return nil, err
+		}
+		v.Charts = append(v.Charts, gt)
+	}
+	type q struct{ id, title, quantity, y, unit, caption string }
+	for _, c := range []q{
+		{"chart-gain", "Gain against frequency", "gain_dbi", "Gain (dBi)", "dBi", "Realized gain of the unit, active gain included (S21 of the unit plus range loss)."},
+		{"chart-noise", "Output noise density", "noise_rel_kt0_db", "Noise above kT₀ (dB)", "dB", "Output noise density of each beam above k·T₀ (T₀ = 290 K), after the smoothing stated in the beam table."},
+	} {
+		spec, ok, err := quantityChart(u, cols, c.id, c.title, c.quantity, c.y, c.unit, c.caption)
+		if err != nil {
+			return nil, err
+		}
+		if ok {
+			v.Charts = append(v.Charts, spec)
+		}
+	}
+	if spec, ok, err := rangeChart(u, cols); err != nil {
+		return nil, err
+	} else if ok {
+		v.Charts = append(v.Charts, spec)
+	}
+	if spec, ok, err := scanChart(u); err != nil {
+		return nil, err
+	} else if ok {
+		v.Charts = append(v.Charts, spec)
+	}
+	if e := u.Elements; e != nil && e.Rows > 0 && e.Cols > 0 {
+		spec, err := elementChart(e)
+		if err != nil {
+			return nil, err
+		}
+		v.ElemChart = &spec
+		v.Elements = e
+	}
+	return v, nil
+}
+
+// budgetAt is the uncertainty budget of a limit's quantity on its beam at
+// the grid point nearest the limit's worst-margin frequency.
+func budgetAt(u *reduce.Unit, l reduce.LimitResult) *budgetView {
+	for i := range u.Beams {
+		b := &u.Beams[i]
+		if b.ID != l.Beam {
+			continue
+		}
+		bud := b.GTBudget
+		q := "G/T"
+		if l.Quantity == "gain" {
+			bud, q = b.GainBudget, "gain"
+		}
+		k := -1
+		for j, f := range b.FrequencyHz {
+			if k < 0 || math.Abs(f-l.AtFrequencyHz) < math.Abs(b.FrequencyHz[k]-l.AtFrequencyHz) {
+				k = j
+			}
+		}
+		if k < 0 || len(bud.Terms) == 0 {
+			return nil
+		}
+		at := func(xs []float64) float64 {
+			if k < len(xs) {
+				return xs[k]
+			}
+			return math.NaN()
+		}
+		bv := &budgetView{Limit: l, Quantity: q, FrequencyH: b.FrequencyHz[k], CombinedDB: at(bud.CombinedDB), ExpandedDB: at(bud.ExpandedDB), K: bud.CoverageK}
+		for _, t := range bud.Terms {
+			bv.Rows = append(bv.Rows, budgetRow{Name: t.Name, Source: t.Source, Distribution: t.Distribution,
+				Divisor: t.Divisor, ValueDB: at(t.ValueDB), StdDB: at(t.StandardDB)})
+		}
+		return bv
+	}
+	return nil
+}
+
+// compile-time use of fmt for the templates' helpers.
+var _ = fmt.Sprint
