@@ -9,6 +9,7 @@ import (
 	"math"
 	"math/cmplx"
 	"path"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -93,11 +94,10 @@ type tsReader struct {
 	recFirst int // values on the record's first line
 	recLines int // lines the record has spanned so far
 
-	z0  []complex128
-	net *Network
-	zm  []complex128 // tsScratch matrices for conversion
-	zn  []complex128
-	ws  []complex128
+	z0    []complex128
+	net   *Network
+	pairs []complex128 // the values of one point as complex numbers
+	ws    []complex128 // scratch matrices for conversion
 }
 
 func (t *tsReader) errf(line int, format string, args ...any) error {
@@ -498,49 +498,31 @@ var tsPow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e1
 func tsScan(b []byte) (v float64, n int, ok bool) {
 	i := 0
 	neg := false
-	if i < len(b) && (b[i] == '+' || b[i] == '-') {
-		neg = b[i] == '-'
+	if len(b) > 0 && (b[0] == '+' || b[0] == '-') {
+		neg = b[0] == '-'
 		i++
 	}
+	// Digits are accumulated without checks; more than 19 of them may
+	// overflow mant, and then the slow path parses the token again.
 	var mant uint64
-	nd, exp := 0, 0
-	digits, trunc := false, false
-	for ; i < len(b); i++ {
-		c := b[i] - '0'
-		if c > 9 {
-			break
-		}
-		digits = true
-		if nd < 19 {
-			mant = mant*10 + uint64(c)
-			if mant != 0 {
-				nd++
-			}
-		} else {
-			trunc = true
-			exp++
-		}
+	start := i
+	for i < len(b) && b[i]-'0' <= 9 {
+		mant = mant*10 + uint64(b[i]-'0')
+		i++
 	}
+	nd := i - start
+	exp := 0
 	if i < len(b) && b[i] == '.' {
 		i++
-		for ; i < len(b); i++ {
-			c := b[i] - '0'
-			if c > 9 {
-				break
-			}
-			digits = true
-			if nd < 19 {
-				mant = mant*10 + uint64(c)
-				if mant != 0 {
-					nd++
-				}
-				exp--
-			} else {
-				trunc = true
-			}
+		fs := i
+		for i < len(b) && b[i]-'0' <= 9 {
+			mant = mant*10 + uint64(b[i]-'0')
+			i++
 		}
+		nd += i - fs
+		exp = fs - i
 	}
-	good := digits
+	good := nd > 0
 	if good && i < len(b) && (b[i] == 'e' || b[i] == 'E') {
 		i++
 		eneg := false
@@ -549,13 +531,9 @@ func tsScan(b []byte) (v float64, n int, ok bool) {
 			i++
 		}
 		e, ed := 0, 0
-		for ; i < len(b); i++ {
-			c := b[i] - '0'
-			if c > 9 {
-				break
-			}
+		for ; i < len(b) && b[i]-'0' <= 9; i++ {
 			if e < 100000 {
-				e = e*10 + int(c)
+				e = e*10 + int(b[i]-'0')
 			}
 			ed++
 		}
@@ -567,6 +545,7 @@ func tsScan(b []byte) (v float64, n int, ok bool) {
 		}
 		exp += e
 	}
+	trunc := nd > 19
 	end := i
 	for end < len(b) && !tsSpaceTab[b[end]] {
 		end++
@@ -812,38 +791,39 @@ func (t *tsReader) completeRecord() error {
 	N := t.ports
 	n.FrequencyHz = append(n.FrequencyHz, v[0]*t.unit)
 	base := len(n.S)
-	n.S = append(n.S, make([]complex128, N*N)...)
+	// Every element of the new matrix is written below.
+	n.S = slices.Grow(n.S, N*N)[:base+N*N]
 	m := n.S[base:]
-	pair := func(p int) (complex128, error) {
-		a, b := v[1+2*p], v[2+2*p]
-		var c complex128
-		switch t.format {
-		case "RI":
-			c = complex(a, b)
-		case "MA":
-			c = tsPolar(a, b)
-		default:
-			c = tsPolar(math.Pow(10, a/20), b)
-		}
-		if cmplx.IsInf(c) || cmplx.IsNaN(c) {
-			return 0, t.errf(t.recStart, "value pair %d of the point at frequency %s is too large", p+1, tsFmtNum(v[0]))
-		}
-		return c, nil
+	np := (len(v) - 1) / 2
+	if cap(t.pairs) < np {
+		t.pairs = make([]complex128, np)
 	}
-	var err error
+	pairs := t.pairs[:np]
+	vals := v[1:]
+	switch t.format {
+	case "RI":
+		for p := range pairs {
+			pairs[p] = complex(vals[2*p], vals[2*p+1])
+		}
+	case "MA":
+		for p := range pairs {
+			pairs[p] = tsPolar(vals[2*p], vals[2*p+1])
+		}
+	default:
+		for p := range pairs {
+			pairs[p] = tsPolar(math.Pow(10, vals[2*p]/20), vals[2*p+1])
+		}
+	}
+	for p, c := range pairs {
+		if math.IsInf(real(c), 0) || math.IsInf(imag(c), 0) || math.IsNaN(real(c)) || math.IsNaN(imag(c)) {
+			return t.errf(t.recStart, "value pair %d of the point at frequency %s is too large", p+1, tsFmtNum(v[0]))
+		}
+	}
 	switch {
 	case N == 2 && t.matrix == "full" && t.order == "21_12":
-		for p, idx := range [4]int{0, 2, 1, 3} {
-			if m[idx], err = pair(p); err != nil {
-				return err
-			}
-		}
+		m[0], m[2], m[1], m[3] = pairs[0], pairs[1], pairs[2], pairs[3]
 	case t.matrix == "full":
-		for p := range m {
-			if m[p], err = pair(p); err != nil {
-				return err
-			}
-		}
+		copy(m, pairs)
 	default:
 		p := 0
 		for i := 0; i < N; i++ {
@@ -852,10 +832,8 @@ func (t *tsReader) completeRecord() error {
 				j0, j1 = i, N-1
 			}
 			for j := j0; j <= j1; j++ {
-				if m[i*N+j], err = pair(p); err != nil {
-					return err
-				}
-				m[j*N+i] = m[i*N+j]
+				m[i*N+j] = pairs[p]
+				m[j*N+i] = pairs[p]
 				p++
 			}
 		}

@@ -1,0 +1,26 @@
+"""Time scikit-rf reading Touchstone files: prints "skrf FILE BYTES CPU-SECONDS-PER-READ".
+
+CPU time of the process (time.process_time), not wall time: the machine
+may be shared, and the Go side is timed the same way.
+
+Run with the Debian python that has scikit-rf 0.15.4: /usr/bin/python3.
+"""
+import contextlib
+import io
+import os
+import sys
+import time
+
+with contextlib.redirect_stdout(io.StringIO()):
+    import skrf as rf
+
+for path in sys.argv[1:]:
+    reads = 0
+    start, wall = time.process_time(), time.perf_counter()
+    while reads < 3 or time.perf_counter() - wall < 2.0:
+        with contextlib.redirect_stdout(io.StringIO()):
+            n = rf.Network(path)
+        assert n.s.shape == (10000, 2, 2), n.s.shape
+        reads += 1
+    per = (time.process_time() - start) / reads
+    print("skrf %s %d %.6g" % (os.path.basename(path), os.path.getsize(path), per))
