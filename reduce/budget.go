@@ -40,8 +40,9 @@ func NewBudgetTerm(name, source, distribution string, divisor float64, valuesDB 
 		ValueDB:      valuesDB,
 		StandardDB:   make([]float64, len(valuesDB)),
 	}
+	inv := 1 / divisor
 	for i, v := range valuesDB {
-		t.StandardDB[i] = math.Abs(v) / divisor
+		t.StandardDB[i] = math.Abs(v) * inv
 	}
 	return t
 }
@@ -59,14 +60,15 @@ func CombineBudget(terms []BudgetTerm, n int, k float64) Budget {
 	if b.Terms == nil {
 		b.Terms = []BudgetTerm{}
 	}
-	for i := 0; i < n; i++ {
-		var sum float64
-		for _, t := range terms {
-			if i < len(t.StandardDB) {
-				sum += t.StandardDB[i] * t.StandardDB[i]
-			}
+	// Terms outer, points inner: each term's row is read in order.
+	for _, t := range terms {
+		m := min(n, len(t.StandardDB))
+		for i, u := range t.StandardDB[:m] {
+			b.CombinedDB[i] += u * u
 		}
-		b.CombinedDB[i] = math.Sqrt(sum)
+	}
+	for i, s := range b.CombinedDB {
+		b.CombinedDB[i] = math.Sqrt(s)
 		b.ExpandedDB[i] = k * b.CombinedDB[i]
 	}
 	return b
@@ -85,8 +87,10 @@ func MismatchLimitsDB(gammaA, gammaB float64) (lowDB, highDB float64) {
 // MismatchHalfWidthDB is the half-width of the U-shaped mismatch term: the
 // larger magnitude of the two limits (the low one, for any product > 0).
 func MismatchHalfWidthDB(gammaA, gammaB float64) float64 {
-	lo, hi := MismatchLimitsDB(gammaA, gammaB)
-	return math.Max(math.Abs(lo), math.Abs(hi))
+	// |20log10(1-p)| >= 20log10(1+p) for 0 <= p < 1, so the low limit
+	// is the larger: one logarithm instead of two.
+	p := math.Abs(gammaA) * math.Abs(gammaB)
+	return math.Abs(20 * math.Log10(1-p))
 }
 
 // constantDB returns n copies of v.
@@ -99,11 +103,11 @@ func constantDB(v float64, n int) []float64 {
 }
 
 // buildBudgets fills the gain and G/T budgets of b (method.md section 6).
-// refU is the certificate's expanded uncertainty on b's grid; refMatch
-// and autMatch the |Gamma| of the reference antenna and of the AUT (nil
-// when unknown); scatterDB the point-to-point scatter of the noise trace
+// refU is the certificate's expanded uncertainty on b's grid; refMismatch
+// the half-width of the reference antenna's mismatch term and autMatch the
+// |Gamma| of the AUT (nil when unknown); scatterDB the point-to-point scatter of the noise trace
 // the G/T was computed from.
-func buildBudgets(ctx *beamContext, b *Beam, refU, refMatch, autMatch []float64, scatterFile string, scatterDB float64) {
+func buildBudgets(ctx *beamContext, b *Beam, refU, refMismatch, autMatch []float64, scatterFile string, scatterDB float64) {
 	n := len(b.FrequencyHz)
 	var common []BudgetTerm
 	if refU != nil {
@@ -128,13 +132,14 @@ func buildBudgets(ctx *beamContext, b *Beam, refU, refMatch, autMatch []float64,
 		}
 		return NewBudgetTerm(name, sourceData, distributionUShaped, math.Sqrt2, a)
 	}
-	if refMatch != nil && ctx.haveStation {
-		common = append(common, mismatch("Mismatch of the reference antenna at the receiver port", refMatch))
+	if refMismatch != nil {
+		common = append(common, NewBudgetTerm("Mismatch of the reference antenna at the receiver port", sourceData,
+			distributionUShaped, math.Sqrt2, refMismatch))
 	}
 	station := func(terms []stationTerm) []BudgetTerm {
 		var out []BudgetTerm
 		for _, t := range terms {
-			out = append(out, NewBudgetTerm(t.name, sourceStation, t.distribution, t.divisor, constantDB(t.valueDB, n)))
+			out = append(out, ctx.constantTerm(t.name, sourceStation, t.distribution, t.divisor, t.valueDB, n))
 		}
 		return out
 	}
@@ -149,12 +154,12 @@ func buildBudgets(ctx *beamContext, b *Beam, refU, refMatch, autMatch []float64,
 	}
 	if b.GTdBPerK != nil {
 		terms := append([]BudgetTerm(nil), common...)
-		terms = append(terms, NewBudgetTerm("Noise trace scatter ("+scatterFile+")", sourceData,
-			distributionNormal, 1, constantDB(scatterDB, n)))
+		terms = append(terms, ctx.constantTerm("Noise trace scatter ("+scatterFile+")", sourceData,
+			distributionNormal, 1, scatterDB, n))
 		if ctx.ambientOK && !b.Projection.Usable() {
-			terms = append(terms, NewBudgetTerm(fmt.Sprintf(
+			terms = append(terms, ctx.constantTerm(fmt.Sprintf(
 				"Ambient temperature %.2f K against 290 K, half-width |10 log10(T_amb/290)|", ctx.ambientK),
-				sourceData, distributionRect, math.Sqrt(3), constantDB(AmbientHalfWidthDB(ctx.ambientK), n)))
+				sourceData, distributionRect, math.Sqrt(3), AmbientHalfWidthDB(ctx.ambientK), n))
 		}
 		terms = append(terms, station(ctx.stationGT)...)
 		b.GTBudget = CombineBudget(terms, n, ExpandedCoverageK)

@@ -28,6 +28,37 @@ type beamContext struct {
 	ambientK      float64
 	ambientOK     bool
 	operatingK    *float64
+	// refMismatchDB is the half-width of the reference antenna's mismatch
+	// term on the range-loss grid, computed once for all beams.
+	refMismatchDB []float64
+	// constantRows caches rows of n equal values (station terms, noise
+	// scatter, ambient): beams share them, since results are read-only.
+	constantRows map[constantKey][]float64
+}
+
+type constantKey struct {
+	value float64
+	n     int
+}
+
+// constantRow returns a shared row of n copies of v.
+func (ctx *beamContext) constantRow(v float64, n int) []float64 {
+	k := constantKey{v, n}
+	if r, ok := ctx.constantRows[k]; ok {
+		return r
+	}
+	if ctx.constantRows == nil {
+		ctx.constantRows = map[constantKey][]float64{}
+	}
+	r := constantDB(v, n)
+	ctx.constantRows[k] = r
+	return r
+}
+
+// constantTerm is a budget row whose value is the same at every point.
+func (ctx *beamContext) constantTerm(name, source, distribution string, divisor, valueDB float64, n int) BudgetTerm {
+	return BudgetTerm{Name: name, Source: source, Distribution: distribution, Divisor: divisor,
+		ValueDB: ctx.constantRow(valueDB, n), StandardDB: ctx.constantRow(math.Abs(valueDB)/divisor, n)}
 }
 
 // stationTerm is a declared station term, checked.
@@ -168,7 +199,8 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 			narrow(u.trace.FrequencyHz, u.in.File)
 		}
 	}
-	var grid, dropped []float64
+	grid := make([]float64, 0, len(baseF))
+	var dropped []float64
 	for _, f := range baseF {
 		if inSpan(f, lo, hi) {
 			grid = append(grid, f)
@@ -189,13 +221,13 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	n := len(grid)
 	b.FrequencyHz = grid
 	onto := func(xs, ys []float64, what string) []float64 {
-		if knotsCover(xs, grid) {
-			// Every grid point is a point of xs: values are taken, not
-			// interpolated (gonum returns the knot values there).
-			if sameGrid(xs, grid) {
-				return append([]float64(nil), ys...)
-			}
-		} else {
+		if sameGrid(xs, grid) {
+			// Shared with the input, not copied: results are read-only.
+			return ys
+		}
+		// When every grid point is a point of xs the values are taken,
+		// not interpolated (gonum returns the knot values there).
+		if !knotsCover(xs, grid) {
 			b.Interpolated = append(b.Interpolated, fmt.Sprintf("%s: interpolated from %d points onto the %d-point grid of %s",
 				what, len(xs), n, baseFile))
 		}
@@ -209,7 +241,7 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 			autMatch = onto(tr.FrequencyHz, tr.AntennaMatch, "|Gamma| of the AUT in "+tr.File)
 		}
 	}
-	var refU, refMatch []float64
+	var refU, refMismatch []float64
 	if rl := ctx.rl; rl != nil {
 		what := "range loss of " + joinList(rl.Files)
 		b.RangeLossDB = onto(rl.FrequencyHz, rl.RangeLossDB, what)
@@ -217,8 +249,14 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 			b.RangeDriftDB = onto(rl.FrequencyHz, rl.DriftDB, "range drift of "+joinList(rl.Files))
 		}
 		refU = onto(rl.FrequencyHz, rl.ReferenceExpandedUDB, "reference gain uncertainty")
-		if rl.ReferenceMatch != nil {
-			refMatch = onto(rl.FrequencyHz, rl.ReferenceMatch, "|Gamma| of the reference antenna")
+		if rl.ReferenceMatch != nil && ctx.haveStation {
+			if ctx.refMismatchDB == nil {
+				ctx.refMismatchDB = make([]float64, len(rl.ReferenceMatch))
+				for i, g := range rl.ReferenceMatch {
+					ctx.refMismatchDB[i] = MismatchHalfWidthDB(g, ctx.receiverMatch)
+				}
+			}
+			refMismatch = onto(rl.FrequencyHz, ctx.refMismatchDB, "reference antenna mismatch (from its |Gamma|)")
 		}
 	}
 	if b.S21DB != nil && b.RangeLossDB != nil {
@@ -233,8 +271,9 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	if density != nil {
 		nRel = onto(density.trace.FrequencyHz, density.trace.Values, "noise of "+density.in.File)
 		if density.in.Quantity == NoiseDensityDBmPerHz {
+			kt0 := KT0DBmPerHz()
 			for i := range nRel {
-				nRel[i] = NoiseRelativeFromDensityDB(nRel[i])
+				nRel[i] -= kt0 // NoiseRelativeFromDensityDB, with kT0 computed once
 			}
 		}
 	}
@@ -244,14 +283,16 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	var gtDensity, gtFigure []float64
 	if nRel != nil && b.GainDBi != nil {
 		gtDensity = make([]float64, n)
+		t0 := ReferenceTemperatureDBK()
 		for i := range gtDensity {
-			gtDensity[i] = GTNoiseDensity(b.GainDBi[i], nRel[i])
+			gtDensity[i] = b.GainDBi[i] - nRel[i] - t0 // GTNoiseDensity, with 10log10(T0) computed once
 		}
 	}
 	if nf != nil && b.RangeLossDB != nil {
 		gtFigure = make([]float64, n)
+		t0 := ReferenceTemperatureDBK()
 		for i := range gtFigure {
-			gtFigure[i] = GTSystemNoiseFigure(b.RangeLossDB[i], nf[i])
+			gtFigure[i] = b.RangeLossDB[i] - nf[i] - t0 // GTSystemNoiseFigure, 10log10(T0) computed once
 		}
 	}
 	var scatterFile string
@@ -313,7 +354,7 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	if b.GTdBPerK != nil && ctx.operatingK != nil && rb.PassiveGainDBi != nil && ctx.ambientOK {
 		b.Projection = Project(&b, *rb.PassiveGainDBi, ctx.ambientK, *ctx.operatingK)
 	}
-	buildBudgets(ctx, &b, refU, refMatch, autMatch, scatterFile, scatterDB)
+	buildBudgets(ctx, &b, refU, refMismatch, autMatch, scatterFile, scatterDB)
 	return b, out
 }
 

@@ -252,7 +252,7 @@ func checkTrace(xs, ys []float64) error {
 		return fmt.Errorf("%d frequencies but %d values", len(xs), len(ys))
 	}
 	for i := range xs {
-		if !allFinite([]float64{xs[i], ys[i]}) {
+		if !finite(xs[i]) || !finite(ys[i]) {
 			return fmt.Errorf("value at point %d is not a finite number", i+1)
 		}
 		if i > 0 && !(xs[i] > xs[i-1]) {
@@ -264,12 +264,15 @@ func checkTrace(xs, ys []float64) error {
 
 func allFinite(x []float64) bool {
 	for _, v := range x {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
+		if !finite(v) {
 			return false
 		}
 	}
 	return true
 }
+
+// finite is false for NaN and +-Inf (for which v - v is NaN).
+func finite(v float64) bool { return v-v == 0 }
 
 // gridTolerance is the relative tolerance within which two frequencies are
 // the same point: frequencies converted from GHz text differ in the last
@@ -285,8 +288,11 @@ func sameGrid(a, b []float64) bool {
 	if len(a) != len(b) {
 		return false
 	}
+	if len(a) == 0 || &a[0] == &b[0] {
+		return true
+	}
 	for i := range a {
-		if math.Abs(a[i]-b[i]) > gridTolerance*math.Max(math.Abs(a[i]), math.Abs(b[i])) {
+		if a[i] != b[i] && math.Abs(a[i]-b[i]) > gridTolerance*math.Max(math.Abs(a[i]), math.Abs(b[i])) {
 			return false
 		}
 	}
