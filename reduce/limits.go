@@ -174,8 +174,9 @@ func EvaluateLimits(spec *ingest.Spec, beams []Beam) ([]LimitResult, []*ingest.P
 			problem(l.Line, "limit %q: statistic %q is not min or mean: not judged", l.Name, l.Statistic)
 			continue
 		}
+		cache := &limitCache{curve: curve}
 		for _, bi := range selected {
-			r, p := judgeBeam(l, curve, rule, &beams[bi])
+			r, p := judgeBeam(l, cache, rule, &beams[bi])
 			if p != "" {
 				problem(l.Line, "%s", p)
 			}
@@ -196,7 +197,8 @@ func EvaluateLimits(spec *ingest.Spec, beams []Beam) ([]LimitResult, []*ingest.P
 
 // judgeBeam judges one beam against one limit. It returns the result (nil
 // when nothing could be judged) and a problem message ("" for none).
-func judgeBeam(l *ingest.Limit, curve func(float64) float64, rule string, b *Beam) (*LimitResult, string) {
+func judgeBeam(l *ingest.Limit, cache *limitCache, rule string, b *Beam) (*LimitResult, string) {
+	curve := cache.curve
 	x, u := b.GTdBPerK, b.GTExpandedUncertaintyDB
 	what := "G/T"
 	if l.Quantity == quantityGain {
@@ -220,9 +222,10 @@ func judgeBeam(l *ingest.Limit, curve func(float64) float64, rule string, b *Bea
 		return 0
 	}
 	lo, hi := l.BandHz[0], l.BandHz[1]
-	var idx []int
+	idx := make([]int, 0, len(b.FrequencyHz))
+	bandTol := gridTolerance * math.Max(math.Abs(lo), math.Abs(hi)) // as inSpan
 	for i, f := range b.FrequencyHz {
-		if inSpan(f, lo, hi) {
+		if f >= lo-bandTol && f <= hi+bandTol {
 			idx = append(idx, i)
 		}
 	}
@@ -232,11 +235,12 @@ func judgeBeam(l *ingest.Limit, curve func(float64) float64, rule string, b *Bea
 	}
 	r := &LimitResult{Name: l.Name, Quantity: l.Quantity, Beam: b.ID, Statistic: l.Statistic,
 		LimitCurve: limitVertices(l, curve, law)}
+	limAt := cache.on(b.FrequencyHz)
 	if l.Statistic == "mean" {
 		var sx, sl, su float64
 		for _, i := range idx {
 			sx += x[i]
-			sl += curve(b.FrequencyHz[i]) + law
+			sl += limAt[i] + law
 			su += uAt(i)
 		}
 		m := float64(len(idx))
@@ -247,7 +251,7 @@ func judgeBeam(l *ingest.Limit, curve func(float64) float64, rule string, b *Bea
 	} else {
 		first := true
 		for _, i := range idx {
-			lim := curve(b.FrequencyHz[i]) + law
+			lim := limAt[i] + law
 			m := x[i] - lim
 			v := Verdict(rule, m, uAt(i))
 			if first || verdictRank(v) > verdictRank(r.Verdict) ||
@@ -287,4 +291,23 @@ func limitVertices(l *ingest.Limit, curve func(float64) float64, law float64) []
 		v = append(v, LimitVertex{FrequencyHz: hi, ValueDB: curve(hi) + law})
 	}
 	return v
+}
+
+// limitCache holds a limit's values on the last beam grid it was asked
+// for: the beams of a unit usually share one grid.
+type limitCache struct {
+	curve func(float64) float64
+	grid  []float64
+	vals  []float64
+}
+
+func (c *limitCache) on(grid []float64) []float64 {
+	if c.vals != nil && sameGrid(c.grid, grid) {
+		return c.vals
+	}
+	c.grid, c.vals = grid, make([]float64, len(grid))
+	for i, f := range grid {
+		c.vals[i] = c.curve(f)
+	}
+	return c.vals
 }

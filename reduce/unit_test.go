@@ -23,7 +23,7 @@ const (
 	synthRxGainDB = 40.0
 )
 
-func synthRefGain(f float64) float64  { return 20 + 0.5*(f/1e9-10) }
+func synthRefGain(f float64) float64   { return 20 + 0.5*(f/1e9-10) }
 func synthRangeLoss(f float64) float64 { return 50 + 0.8*(f/1e9-10) }
 func synthPassive(theta float64) float64 {
 	return 30 + 12*math.Log10(math.Cos(theta*math.Pi/180))
