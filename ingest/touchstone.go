@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"math/cmplx"
 	"path"
@@ -48,6 +49,16 @@ func ReadTouchstone(r io.Reader, name string) (*Network, error) {
 		order:  "21_12",
 		matrix: "full",
 	}
+	// The input's size, when it tells it, lets the arrays be sized once
+	// after the first point instead of growing by copying.
+	switch v := r.(type) {
+	case interface{ Len() int }:
+		t.sizeHint = int64(v.Len())
+	case interface{ Stat() (fs.FileInfo, error) }:
+		if st, err := v.Stat(); err == nil && st.Mode().IsRegular() {
+			t.sizeHint = st.Size()
+		}
+	}
 	n, err := t.read()
 	if err != nil {
 		var p *Problem
@@ -64,6 +75,10 @@ type tsReader struct {
 	br   *bufio.Reader
 	long []byte // a line longer than the bufio buffer, assembled
 	line int
+	// consumed counts the bytes read so far; sizeHint is the input's size
+	// or 0.
+	consumed, sizeHint int64
+	recByte            int64 // consumed before the record's first line
 
 	version     int // 0 until known: 1, or 2 after [Version]
 	ports       int
@@ -123,6 +138,7 @@ func (t *tsReader) nextLine() (line []byte, ok bool, err error) {
 		return nil, false, nil
 	}
 	t.line++
+	t.consumed += int64(len(b))
 	return b, true, nil
 }
 
@@ -675,6 +691,7 @@ func (t *tsReader) data(line []byte) error {
 		t.recLines++
 	} else {
 		t.recStart, t.recLines, t.recFirst = t.line, 1, 0
+		t.recByte = t.consumed - int64(len(line))
 	}
 	col := 0
 	i := 0
@@ -789,6 +806,18 @@ func (t *tsReader) completeRecord() error {
 		return t.errf(t.recStart, "frequency point %d is more than the %d declared by [Number of Frequencies] at line %d", len(n.FrequencyHz)+1, t.nfreq, t.nfreqLine)
 	}
 	N := t.ports
+	if len(n.FrequencyHz) == 0 && t.sizeHint > 0 && t.nfreq < 0 {
+		// Estimate the point count from the size of this first point. The
+		// estimate is bounded by the input's size: a point takes at least
+		// two bytes a value.
+		per := max(t.consumed-t.recByte, int64(2*len(v)))
+		est := (t.sizeHint-t.recByte)/per + 1
+		est = min(est+est/8, 1<<24/int64(N*N)) // points differ in length a little
+		if est > 1 {
+			n.FrequencyHz = make([]float64, 0, est)
+			n.S = make([]complex128, 0, est*int64(N*N))
+		}
+	}
 	n.FrequencyHz = append(n.FrequencyHz, v[0]*t.unit)
 	base := len(n.S)
 	// Every element of the new matrix is written below.
