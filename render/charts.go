@@ -100,7 +100,10 @@ func finish(c optioner, private map[string]any, extra map[string]any) (template.
 	return template.JS(out), nil
 }
 
-func commonFreqOpts(c *charts.Line, yName string, legend bool) {
+// freqGrid leaves room on the right for the vertical legend of beams.
+var freqGrid = opts.Grid{Left: "64", Right: "170", Top: "36", Bottom: "70"}
+
+func commonFreqOpts(c *charts.Line, yName string, legend bool, grid opts.Grid) {
 	c.SetGlobalOptions(
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
 		charts.WithDataZoomOpts(
@@ -110,7 +113,7 @@ func commonFreqOpts(c *charts.Line, yName string, legend bool) {
 		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: "Frequency (GHz)", NameLocation: "middle", NameGap: 26, Min: "dataMin", Max: "dataMax"}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: yName, Scale: opts.Bool(true)}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(legend), Type: "scroll", Orient: "vertical", Right: "0", Top: "middle"}),
-		charts.WithGridOpts(opts.Grid{Left: "64", Right: "170", Top: "36", Bottom: "70"}),
+		charts.WithGridOpts(grid),
 	)
 }
 
@@ -150,7 +153,7 @@ func beamLines(c *charts.Line, u *reduce.Unit, cols csvCols, quantity string) in
 // the page offers the others).
 func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 	c := charts.NewLine()
-	commonFreqOpts(c, "G/T (dB/K)", true)
+	commonFreqOpts(c, "G/T (dB/K)", true, freqGrid)
 	c.AddDataset(opts.Dataset{Source: []any{}})
 	beamLines(c, u, cols, "gt_db_per_k")
 	// The band: a transparent lower edge and the stacked width 2U.
@@ -227,7 +230,7 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 // quantityChart is one CSV quantity against frequency for every beam.
 func quantityChart(u *reduce.Unit, cols csvCols, id, title, quantity, yName, unit, caption string) (chartSpec, bool, error) {
 	c := charts.NewLine()
-	commonFreqOpts(c, yName, true)
+	commonFreqOpts(c, yName, true, freqGrid)
 	c.AddDataset(opts.Dataset{Source: []any{}})
 	if beamLines(c, u, cols, quantity) == 0 {
 		return chartSpec{}, false, nil
@@ -240,10 +243,9 @@ func quantityChart(u *reduce.Unit, cols csvCols, id, title, quantity, yName, uni
 // on a second axis, the pre/post drift.
 func rangeChart(u *reduce.Unit, cols csvCols) (chartSpec, bool, error) {
 	c := charts.NewLine()
-	commonFreqOpts(c, "Range loss (dB)", true)
+	commonFreqOpts(c, "Range loss (dB)", true, opts.Grid{Left: "64", Right: "64", Top: "48", Bottom: "70"})
 	c.ExtendYAxis(opts.YAxis{Type: "value", Name: "Drift |pre − post| (dB)", Scale: opts.Bool(true), Position: "right"})
-	c.SetGlobalOptions(charts.WithGridOpts(opts.Grid{Left: "64", Right: "64", Top: "48", Bottom: "70"}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Orient: "horizontal", Top: "0"}))
+	c.SetGlobalOptions(charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Orient: "horizontal", Top: "0"}))
 	c.AddDataset(opts.Dataset{Source: []any{}})
 	n := 0
 	add := func(name string, col, axis int, dashed bool) {

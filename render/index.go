@@ -229,17 +229,17 @@ func controlChart(id string, l reduce.LimitStats) (chartSpec, error) {
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "Unit in test order", NameLocation: "middle", NameGap: 26}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "Worst margin (dB)", Scale: opts.Bool(true)}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
-		charts.WithGridOpts(opts.Grid{Left: "56", Right: "24", Top: "40", Bottom: "48"}),
+		charts.WithGridOpts(opts.Grid{Left: "56", Right: "24", Top: "60", Bottom: "48"}),
 		charts.WithDataZoomOpts(opts.DataZoom{Type: "inside", XAxisIndex: []int{0}}),
 	)
 	c.SetXAxis(xs)
 	c.AddSeries("margin", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 6}))
 	c.AddSeries("centre", flat(cc.CentreDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}))
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#17202a"}))
 	c.AddSeries("upper control limit", flat(cc.UpperDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}))
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
 	c.AddSeries("lower control limit", flat(cc.LowerDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}))
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
 	if len(cc.Beyond) > 0 {
 		c.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
 			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
@@ -270,16 +270,15 @@ func bandChart(id string, b *reduce.GoldenBand) (chartSpec, error) {
 		med[i] = opts.LineData{Value: []compact{ghz(f), r3(at(b.MedianDB, i))}}
 	}
 	c := charts.NewLine()
-	commonFreqOpts(c, "G/T (dB/K)", true)
-	c.SetGlobalOptions(charts.WithGridOpts(opts.Grid{Left: "56", Right: "24", Top: "40", Bottom: "70"}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "horizontal", Top: "0"}))
-	c.AddSeries("band low", lo, charts.WithSeriesId("band-lo"), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "band"}),
+	commonFreqOpts(c, "G/T (dB/K)", true, opts.Grid{Left: "56", Right: "24", Top: "40", Bottom: "70"})
+	c.SetGlobalOptions(charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "horizontal", Top: "0"}))
+	c.AddSeries("band (median ± 3 scaled MAD)", lo, charts.WithSeriesId("band-lo"), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "band"}),
 		charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}))
 	c.AddSeries("band (median ± 3 scaled MAD)", w, charts.WithSeriesId("band-w"), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "band"}),
 		charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}),
 		charts.WithAreaStyleOpts(opts.AreaStyle{Color: "rgba(27,79,114,0.18)", Opacity: opts.Float(1)}))
 	c.AddSeries("median", med, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#1b4f72", Width: 2}))
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#1b4f72", Width: 2}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#1b4f72"}))
 	opt, err := finish(c, map[string]any{"unit": "dB/K", "bandName": "half-width of the band"}, nil)
 	return chartSpec{ID: id, Title: "Golden band of boresight G/T", Height: 300, Option: opt,
 		Caption: fmt.Sprintf("Median boresight G/T of %d units per frequency, with the band median ± 3 × 1.4826 × MAD; a passing unit that leaves it is on the watch list.", b.Units)}, err

@@ -1,0 +1,324 @@
+package render
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/emulation"
+	cdplog "github.com/chromedp/cdproto/log"
+	"github.com/chromedp/cdproto/network"
+	"github.com/chromedp/cdproto/runtime"
+	"github.com/chromedp/chromedp"
+)
+
+// These tests open the pages in a real browser (Chromium, headless, no
+// GPU) from file:// URLs, the way a test engineer opens a site copied to a
+// laptop without a network.
+
+const chromiumPath = "/usr/bin/chromium"
+
+// browser starts a headless Chromium with a fresh profile, or skips (fails
+// under CI=true) when it is not installed.
+func browser(t *testing.T) context.Context {
+	t.Helper()
+	if _, err := os.Stat(chromiumPath); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("chromium is required under CI: %v", err)
+		}
+		t.Skipf("chromium not installed at %s: %v", chromiumPath, err)
+	}
+	parent, cancelTimeout := context.WithTimeout(context.Background(), 3*time.Minute)
+	t.Cleanup(cancelTimeout)
+	actx, cancelAlloc := chromedp.NewExecAllocator(parent,
+		chromedp.ExecPath(chromiumPath),
+		chromedp.Headless,
+		chromedp.NoSandbox,
+		chromedp.DisableGPU,
+		chromedp.NoFirstRun,
+		chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-sync", true),
+		chromedp.UserDataDir(t.TempDir()),
+		chromedp.WindowSize(1280, 900),
+	)
+	t.Cleanup(cancelAlloc)
+	bctx, cancelBrowser := chromedp.NewContext(actx)
+	t.Cleanup(cancelBrowser)
+	return bctx
+}
+
+// pageLog is what a tab did: every request it made and every error it
+// reported.
+type pageLog struct {
+	mu       sync.Mutex
+	requests []string
+	errors   []string
+}
+
+func (l *pageLog) snapshot() ([]string, []string) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return append([]string(nil), l.requests...), append([]string(nil), l.errors...)
+}
+
+// openPage opens a file in a new tab of the browser and records its
+// requests and errors from the start.
+func openPage(t *testing.T, bctx context.Context, path string) (context.Context, *pageLog) {
+	t.Helper()
+	ctx, cancel := chromedp.NewContext(bctx)
+	t.Cleanup(cancel)
+	pl := &pageLog{}
+	err := chromedp.Listen(ctx, func(ev any) {
+		pl.mu.Lock()
+		defer pl.mu.Unlock()
+		switch e := ev.(type) {
+		case *network.EventRequestWillBeSent:
+			if e.Request != nil {
+				pl.requests = append(pl.requests, e.Request.URL)
+			}
+		case *runtime.EventExceptionThrown:
+			msg := "exception"
+			if d := e.ExceptionDetails; d != nil {
+				msg = d.Text
+				if d.Exception != nil {
+					msg += " " + d.Exception.Description
+				}
+			}
+			pl.errors = append(pl.errors, msg)
+		case *runtime.EventConsoleAPICalled:
+			if e.Type == runtime.ConsoleAPICalledTypeError || e.Type == runtime.ConsoleAPICalledTypeAssert {
+				var parts []string
+				for _, a := range e.Args {
+					parts = append(parts, string(a.Value)+a.Description)
+				}
+				pl.errors = append(pl.errors, "console.error: "+strings.Join(parts, " "))
+			}
+		case *cdplog.EventEntryAdded:
+			if e.Entry != nil && e.Entry.Level == cdplog.EntryLevelError {
+				pl.errors = append(pl.errors, "log: "+e.Entry.Text+" "+e.Entry.URL)
+			}
+		}
+	})
+	if err != nil {
+		t.Fatalf("listening to the tab: %v", err)
+	}
+	if err := chromedp.Do(ctx, chromedp.Navigate("file://"+path)); err != nil {
+		t.Fatalf("opening %s: %v", path, err)
+	}
+	return ctx, pl
+}
+
+func eval[T any](t *testing.T, ctx context.Context, expr string) T {
+	t.Helper()
+	v, err := chromedp.Run(ctx, chromedp.Evaluate[T](expr))
+	if err != nil {
+		t.Fatalf("evaluating %q: %v", expr, err)
+	}
+	return v
+}
+
+type drawnChart struct {
+	ID    string `json:"id"`
+	W     int    `json:"w"`
+	H     int    `json:"h"`
+	Inked int    `json:"inked"`
+}
+
+// chartsJS reports, for every chart container, the size of its canvas and
+// how many of a sample of its pixels are not transparent.
+const chartsJS = `Array.from(document.querySelectorAll('div.chart')).map(function (d) {
+  var c = d.querySelector('canvas'), r = {id: d.id, w: 0, h: 0, inked: 0};
+  if (!c) { return r; }
+  r.w = c.width; r.h = c.height;
+  var px = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+  for (var i = 3; i < px.length; i += 4 * 7) { if (px[i] > 0) { r.inked++; } }
+  return r;
+})`
+
+// checkPage asserts what every page must satisfy: no request leaves for the
+// network, no error on the console, every chart drawn, and none of the
+// planted payloads ran.
+func checkPage(t *testing.T, ctx context.Context, pl *pageLog, wantCharts []string) {
+	t.Helper()
+	drawn := eval[[]drawnChart](t, ctx, chartsJS)
+	got := map[string]drawnChart{}
+	for _, d := range drawn {
+		got[d.ID] = d
+	}
+	if len(drawn) != len(wantCharts) {
+		t.Errorf("page has %d charts %v, want %d %v", len(drawn), drawn, len(wantCharts), wantCharts)
+	}
+	for _, id := range wantCharts {
+		d, ok := got[id]
+		switch {
+		case !ok:
+			t.Errorf("chart %s missing", id)
+		case d.W == 0 || d.H == 0:
+			t.Errorf("chart %s has a canvas of %d x %d", id, d.W, d.H)
+		case d.Inked < 200:
+			t.Errorf("chart %s looks blank: %d inked sample pixels of %d x %d", id, d.Inked, d.W, d.H)
+		}
+	}
+	if pwned := eval[string](t, ctx, `typeof window.__pwned`); pwned != "undefined" {
+		t.Errorf("a planted payload ran: window.__pwned is %s", pwned)
+	}
+	reqs, errs := pl.snapshot()
+	if len(reqs) == 0 {
+		t.Errorf("no request recorded: the listener saw nothing, so the network check proves nothing")
+	}
+	for _, u := range reqs {
+		if !strings.HasPrefix(u, "file:") && !strings.HasPrefix(u, "data:") {
+			t.Errorf("the page requested %q: only file: and data: are allowed", u)
+		}
+	}
+	for _, e := range errs {
+		t.Errorf("browser reported an error: %s", e)
+	}
+}
+
+func shot(t *testing.T, ctx context.Context, name string) {
+	t.Helper()
+	dir := os.Getenv("GTPACK_SCREENSHOTS")
+	if dir == "" {
+		return
+	}
+	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+	if err != nil {
+		t.Fatalf("screenshot: %v", err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, name), png, 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func TestBrowserReport(t *testing.T) {
+	bctx := browser(t)
+	dir := t.TempDir()
+	html, err := Report(fixtureUnit(t, 16, 801))
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "report.html")
+	if err := os.WriteFile(path, html, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ctx, pl := openPage(t, bctx, path)
+	checkPage(t, ctx, pl, []string{"chart-gt", "chart-gain", "chart-noise", "chart-range", "chart-scan", "chart-elements"})
+
+	// The G/T chart starts on the beam of the worst limit (b00 in the
+	// fixture) and follows the focus selector.
+	type focusState struct {
+		Width float64 `json:"width"`
+		Band  int     `json:"band"`
+		Limit int     `json:"limit"`
+	}
+	const focusJS = `(function (id) {
+  var o = echarts.getInstanceByDom(document.getElementById('chart-gt')).getOption();
+  var s = function (x) { return o.series.filter(function (e) { return e.id === x; })[0]; };
+  return {width: s('beam-' + id).lineStyle.width, band: s('band-w').data.length, limit: s('limit-0').data.length};
+})`
+	if got := eval[focusState](t, ctx, focusJS+`('b00')`); got.Width != 2.6 || got.Band != 801 || got.Limit != 2 {
+		t.Errorf("initial focus: %+v, want width 2.6 on b00, a band of 801 points and a 2-vertex limit", got)
+	}
+	eval[chromedp.Void](t, ctx, `(function () { var s = document.querySelector('select.focus'); s.value = '15'; s.dispatchEvent(new Event('change')); })()`)
+	if got := eval[focusState](t, ctx, focusJS+`('b15')`); got.Width != 2.6 || got.Band != 801 {
+		t.Errorf("focus on b15: %+v, want the heavy line and the band on b15", got)
+	}
+
+	// Tooltips carry units.
+	tip := eval[string](t, ctx, `(function () {
+  var c = echarts.getInstanceByDom(document.getElementById('chart-gt'));
+  c.dispatchAction({type: 'showTip', seriesIndex: 0, dataIndex: 400});
+  var el = document.querySelector('#chart-gt div[style*="z-index"]') || document.querySelector('#chart-gt > div:last-child');
+  return el ? el.textContent : '';
+})()`)
+	for _, want := range []string{"GHz", "dB/K", "b00", "U (k = 2) of b15"} {
+		if !strings.Contains(tip, want) {
+			t.Errorf("G/T tooltip %q lacks %q", tip, want)
+		}
+	}
+
+	// The download link is a data: URL with a download name and the CSV.
+	link := eval[string](t, ctx, `(function () { var a = document.getElementById('csv-link'); return a.getAttribute('download') + '|' + decodeURIComponent(a.getAttribute('href')).slice(0, 60); })()`)
+	if !strings.HasPrefix(link, "KP16-_script_window.__pwned_1__script_00017-per-frequency.csv|data:text/csv;charset=utf-8,frequency_hz,range_loss_db,") {
+		t.Errorf("download link: %q", link)
+	}
+
+	shot(t, ctx, "report.png")
+	// Printing: the charts redraw at the paper width; a PDF comes out.
+	pdf, err := chromedp.Run(ctx, chromedp.PrintToPDF(chromedp.PDFPreferCSSPageSize(), chromedp.PDFPrintBackground()))
+	if err != nil {
+		t.Fatalf("printing: %v", err)
+	}
+	if !bytes.HasPrefix(pdf, []byte("%PDF-")) || len(pdf) < 50_000 {
+		t.Errorf("print gave %d bytes starting %q, want a PDF", len(pdf), pdf[:min(8, len(pdf))])
+	}
+	if dir := os.Getenv("GTPACK_SCREENSHOTS"); dir != "" {
+		_ = os.WriteFile(filepath.Join(dir, "report.pdf"), pdf, 0o644)
+		if _, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"}); err != nil {
+			t.Fatal(err)
+		}
+		eval[chromedp.Void](t, ctx, `window.dispatchEvent(new Event('beforeprint'))`)
+		shot(t, ctx, "report-print.png")
+	}
+	_, errs := pl.snapshot()
+	for _, e := range errs {
+		t.Errorf("browser reported an error after interaction: %s", e)
+	}
+}
+
+func TestBrowserIndex(t *testing.T) {
+	bctx := browser(t)
+	dir := t.TempDir()
+	html, err := Index(fixtureFleet(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "index.html")
+	if err := os.WriteFile(path, html, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ctx, pl := openPage(t, bctx, path)
+	checkPage(t, ctx, pl, []string{"chart-hist", "chart-p0-l0", "chart-p0-l1", "chart-p0-band"})
+
+	// The filter box keeps the rows that contain the text.
+	tests := []struct {
+		query string
+		rows  int
+	}{
+		{"XB4", 1},
+		{"fail", 2}, // the two FAIL units (general knowledge of the fixture)
+		{"kp16", 24},
+		{"", 25},
+	}
+	for _, tc := range tests {
+		got := eval[string](t, ctx, fmt.Sprintf(`(function () {
+  var i = document.querySelector('input.filter-box'); i.value = %q; i.dispatchEvent(new Event('input'));
+  var n = Array.from(document.querySelectorAll('#unit-table tbody tr')).filter(function (r) { return !r.hidden; }).length;
+  return n + '/' + document.getElementById('unit-shown').textContent;
+})()`, tc.query))
+		if want := fmt.Sprintf("%d/%d", tc.rows, tc.rows); got != want {
+			t.Errorf("filter %q: shown rows/counter %s, want %s", tc.query, got, want)
+		}
+	}
+	// Sorting by worst margin puts the most negative first, then reverses.
+	const firstJS = `(function () { document.querySelectorAll('#unit-table th')[3].click(); return document.querySelector('#unit-table tbody tr td').textContent; })()`
+	if got := eval[string](t, ctx, firstJS); got != "KP16-00010" {
+		t.Errorf("ascending worst margin: first unit %q, want KP16-00010 (-0.80 dB)", got)
+	}
+	if got := eval[string](t, ctx, firstJS); got != "KP16-00007" {
+		t.Errorf("descending worst margin: first unit %q, want KP16-00007 (+1.25 dB)", got)
+	}
+	shot(t, ctx, "index.png")
+	_, errs := pl.snapshot()
+	for _, e := range errs {
+		t.Errorf("browser reported an error after interaction: %s", e)
+	}
+}
