@@ -109,10 +109,11 @@ type tsReader struct {
 	recFirst int // values on the record's first line
 	recLines int // lines the record has spanned so far
 
-	z0    []complex128
-	net   *Network
-	pairs []complex128 // the values of one point as complex numbers
-	ws    []complex128 // scratch matrices for conversion
+	z0       []complex128
+	net      *Network
+	dataLine int          // line of the first network data
+	pairs    []complex128 // the values of one point as complex numbers
+	ws       []complex128 // scratch matrices for conversion
 }
 
 func (t *tsReader) errf(line int, format string, args ...any) error {
@@ -242,6 +243,12 @@ func (t *tsReader) keyword(b []byte) error {
 	if t.version == 1 {
 		return t.errf(t.line, "keyword [%s] after version-1 data: [Version] must come first", kw)
 	}
+	switch kw {
+	case "number of ports", "two-port data order", "number of frequencies", "number of noise frequencies", "reference", "matrix format":
+		if t.net != nil {
+			return t.errf(t.line, "[%s] after the network data began (line %d): it belongs in the header", kw, t.dataLine)
+		}
+	}
 	oneArg := func() (string, error) {
 		if len(args) != 1 {
 			return "", t.errf(t.line, "[%s] takes one value, found %d", kw, len(args))
@@ -358,6 +365,9 @@ func (t *tsReader) keyword(b []byte) error {
 		if t.ports != 2 {
 			return t.errf(t.line, "[Noise Data] in a %d-port file: noise parameters are for 2 ports only", t.ports)
 		}
+		if t.net == nil {
+			return t.errf(t.line, "[Noise Data] before any network data")
+		}
 		if err := t.endRecord(); err != nil {
 			return err
 		}
@@ -403,6 +413,9 @@ func (t *tsReader) referenceValues(b []byte) error {
 func (t *tsReader) option(b []byte) error {
 	if t.optionLine != 0 {
 		return nil // only the first option line counts
+	}
+	if t.net != nil {
+		return t.errf(t.line, "option line after the network data began (line %d): the data was read with the default options", t.dataLine)
 	}
 	t.optionLine = t.line
 	toks := strings.Fields(strings.ToLower(string(b[1:])))
@@ -651,7 +664,7 @@ func (t *tsReader) begin() error {
 			copy(n.Z0Complex, t.z0)
 		}
 	}
-	t.net = n
+	t.net, t.dataLine = n, t.line
 	np := t.ports * t.ports
 	if t.matrix != "full" {
 		np = t.ports * (t.ports + 1) / 2
@@ -918,7 +931,11 @@ func (t *tsReader) finish() (*Network, error) {
 func (t *tsReader) toS(m []complex128) error {
 	N := t.ports
 	if t.version == 1 {
-		// Version 1 stores Y, Z, H and G normalised to R; R is one value here.
+		// Version 1 stores Y, Z, H and G normalised to R (one value here).
+		// For H and G that means the impedance-like element (h11, g22) in
+		// units of R and the admittance-like one (h22, g11) in units of 1/R;
+		// the other two are ratios. The specification's H and G examples
+		// use R 1, where this makes no difference.
 		r := complex(real(t.z0[0]), 0)
 		switch t.param {
 		case 'Z':
