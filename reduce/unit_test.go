@@ -187,6 +187,47 @@ func TestReduceUnitRecoversModel(t *testing.T) {
 	}
 }
 
+func TestReduceUnitMethodFlagAndProjection(t *testing.T) {
+	in := synthInput(synthOptions{thetas: []float64{0, 30}, bothForms: true})
+	// The noise-figure trace of b01 reads 0.5 dB high: the forms differ by 0.5 dB, above the
+	// station's method tolerance of 0.30 dB (archive-format.md, method_tolerance_db).
+	nf := in.Data.Beams[1].Noise[1]
+	for i := range nf.Values {
+		nf.Values[i] += 0.5
+	}
+	// A passive gain and an operating antenna temperature make a projection; the ambient term
+	// then leaves the G/T budget (method.md section 6: "when no projection is made").
+	in.Spec.OperatingAntennaK = fp(50)
+	in.Run.Beams[0].PassiveGainDBi = fp(synthPassive(0))
+	u := ReduceUnit(in)
+	var method []Flag
+	for _, f := range u.Flags {
+		if f.Kind == "method" {
+			method = append(method, f)
+		}
+	}
+	if len(method) != 1 || method[0].Beam != "b01" {
+		t.Errorf("method flags %+v, want one for b01", method)
+	}
+	near(t, "b01 form difference", u.Beams[1].OtherForm.MaxAbsDifferenceDB, 0.5, 1e-9)
+	near(t, "b01 difference sign (main - other)", u.Beams[1].OtherForm.DifferenceDB[0], 0.5, 1e-9)
+	hasAmbient := func(b Budget) bool {
+		for _, term := range b.Terms {
+			if strings.HasPrefix(term.Name, "Ambient temperature") {
+				return true
+			}
+		}
+		return false
+	}
+	if u.Beams[0].Projection == nil || hasAmbient(u.Beams[0].GTBudget) {
+		t.Errorf("b00: projection %v, ambient term present %v; want a projection and no ambient term",
+			u.Beams[0].Projection != nil, hasAmbient(u.Beams[0].GTBudget))
+	}
+	if u.Beams[1].Projection != nil || !hasAmbient(u.Beams[1].GTBudget) {
+		t.Error("b01 has no passive gain: no projection, ambient term kept")
+	}
+}
+
 func TestReduceUnitFlags(t *testing.T) {
 	in := synthInput(synthOptions{thetas: []float64{0}})
 	// Post measurement 0.4 dB away from pre: drift above the 0.25 dB tolerance.
