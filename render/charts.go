@@ -87,6 +87,9 @@ func finish(c optioner, private map[string]any, extra map[string]any) (template.
 			}
 		}
 	}
+	if lg, ok := m["legend"].(map[string]any); ok && lg["orient"] == "vertical" {
+		lg["itemGap"], lg["itemHeight"], lg["itemWidth"] = 4, 9, 18
+	}
 	for k, v := range extra {
 		m[k] = v
 	}

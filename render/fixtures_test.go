@@ -118,6 +118,9 @@ func fixtureUnit(t testing.TB, beams, points int) *reduce.Unit {
 		}}
 		bm.GainBudget = fixtureBudget(n, false)
 		bm.GTBudget = fixtureBudget(n, true)
+		// U of each quantity is its budget's expanded uncertainty.
+		copy(bm.GainExpandedUncertaintyDB, bm.GainBudget.ExpandedDB)
+		copy(bm.GTExpandedUncertaintyDB, bm.GTBudget.ExpandedDB)
 		if b == 0 {
 			bm.Interpolated = []string{"reference gain table (21 points) interpolated onto 801 points"}
 			p := &reduce.Projection{
@@ -181,8 +184,9 @@ func fixtureUnit(t testing.TB, beams, points int) *reduce.Unit {
 	mean /= float64(points)
 	u.Limits = append(u.Limits, reduce.LimitResult{
 		Name: "Gain at boresight", Quantity: "gain", Beam: "b00", Statistic: "mean",
-		WorstMarginDB: mean - 29.5, AtFrequencyHz: (f0 + f1) / 2, ValueDB: mean, LimitDB: 29.5,
-		ExpandedUncertaintyDB: 0.43, Verdict: reduce.VerdictPass,
+		WorstMarginDB: mean - 29.5, AtFrequencyHz: u.Beams[0].FrequencyHz[points/2], ValueDB: mean, LimitDB: 29.5,
+		ExpandedUncertaintyDB: u.Beams[0].GainExpandedUncertaintyDB[points/2], Verdict: reduce.VerdictPass,
+		LimitCurve: []reduce.LimitVertex{{FrequencyHz: f0, ValueDB: 29.5}, {FrequencyHz: f1, ValueDB: 29.5}},
 	})
 	if beams > 1 {
 		ns := make([]float64, points)

@@ -150,14 +150,15 @@ func r3(v float64) compact { return compact{v, 3} }
 
 func ghz(hz float64) compact { return compact{hz / 1e9, 6} }
 
-// csvNumber writes a dB value to 0.001 dB, the printed precision of the
-// per-frequency CSV: far below any uncertainty here, and it keeps the
-// embedded file small.
-func csvNumber(v float64) string {
+// csvNumber writes a dB value to the given decimals (3: 0.001 dB), the
+// printed precision of the per-frequency CSV: far below any uncertainty
+// here, and it keeps the embedded file small.
+func csvNumber(v float64, decimals int) string {
 	if !finite(v) {
 		return ""
 	}
-	r := math.Round(v*1000) / 1000
+	p := math.Pow(10, float64(decimals))
+	r := math.Round(v*p) / p
 	if r == 0 {
 		r = 0
 	}

@@ -36,16 +36,17 @@ func Report(u *reduce.Unit) ([]byte, error) {
 // of the beams' grids, in Hz), one column per beam and quantity named
 // <beam>_<quantity>, an empty cell where a beam has no point. Range loss
 // and drift take one column each when every beam shares them. Values are
-// written to 0.001 dB.
+// written to 0.001 dB (drift to 0.0001 dB).
 func UnitCSV(u *reduce.Unit) []byte {
 	b, _ := unitCSV(u)
 	return b
 }
 
 type csvColumn struct {
-	name string
-	beam int // -1: shared
-	get  func(b *reduce.Beam) []float64
+	name     string
+	beam     int
+	get      func(b *reduce.Beam) []float64
+	decimals int
 }
 
 func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
@@ -75,16 +76,20 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	rl := func(b *reduce.Beam) []float64 { return b.RangeLossDB }
 	drift := func(b *reduce.Beam) []float64 { return b.RangeDriftDB }
 	if shared && len(u.Beams) > 0 {
-		columns = append(columns, csvColumn{"range_loss_db", 0, rl})
+		columns = append(columns, csvColumn{"range_loss_db", 0, rl, 3})
 		if len(u.Beams[0].RangeDriftDB) > 0 {
-			columns = append(columns, csvColumn{"range_drift_db", 0, drift})
+			columns = append(columns, csvColumn{"range_drift_db", 0, drift, 4})
 		}
 	}
 	for i := range u.Beams {
 		b := &u.Beams[i]
 		add := func(q string, get func(b *reduce.Beam) []float64) {
 			if len(get(b)) > 0 {
-				columns = append(columns, csvColumn{b.ID + "_" + q, i, get})
+				d := 3
+				if q == "range_drift_db" {
+					d = 4 // drift is hundredths of a dB
+				}
+				columns = append(columns, csvColumn{b.ID + "_" + q, i, get, d})
 			}
 		}
 		add("s21_db", func(b *reduce.Beam) []float64 { return b.S21DB })
@@ -138,7 +143,7 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 			b := &u.Beams[c.beam]
 			if k, ok := index[c.beam][f]; ok {
 				if vals := c.get(b); k < len(vals) {
-					rec[j+1] = csvNumber(vals[k])
+					rec[j+1] = csvNumber(vals[k], c.decimals)
 				}
 			}
 		}

@@ -191,8 +191,16 @@
     });
   }
 
+  // For paper: no tooltip, no zoom slider, the printed width.
   function resizeAll(width) {
-    charts.forEach(function (c) { c.resize(width ? { width: width } : undefined); });
+    charts.forEach(function (c) {
+      var zs = (c.getOption().dataZoom || []).map(function (z) {
+        return z.type === 'slider' ? { show: !width } : {};
+      });
+      if (width) { c.dispatchAction({ type: 'hideTip' }); }
+      if (zs.length) { c.setOption({ dataZoom: zs }); }
+      c.resize(width ? { width: width } : undefined);
+    });
   }
 
   Array.prototype.forEach.call(document.querySelectorAll('script.chart-opt'), draw);
