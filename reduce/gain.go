@@ -243,6 +243,8 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	}
 	var refU, refMismatch []float64
 	if rl := ctx.rl; rl != nil {
+		// What was interpolated to make the range loss comes first.
+		b.Interpolated = append(b.Interpolated, rl.Interpolated...)
 		what := "range loss of " + joinList(rl.Files)
 		b.RangeLossDB = onto(rl.FrequencyHz, rl.RangeLossDB, what)
 		if rl.DriftDB != nil {

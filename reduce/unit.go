@@ -172,6 +172,9 @@ func reduceInto(u *Unit, in Input) {
 
 	if sp := in.Spec; sp != nil {
 		u.DecisionRule, u.SpecTitle = sp.DecisionRule, sp.Title
+		if u.DecisionRule != ruleSimple {
+			u.DecisionRule = ruleGuarded // EvaluateLimits applies guarded to anything else, with a problem
+		}
 		ctx.operatingK = sp.OperatingAntennaK
 	} else {
 		addProblem(ingest.Problemf(run.File, 0, "spec for product %q is unknown or was refused: nothing can be judged",

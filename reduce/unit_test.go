@@ -279,8 +279,10 @@ func TestReduceUnitBadCases(t *testing.T) {
 			want: []string{`limit "G/T scanned": beam b01 covers 10.7 GHz to 12.4835 GHz, not the whole band`},
 			check: func(t *testing.T, u *Unit) {
 				b := u.Beams[1]
-				if len(b.FrequencyHz) != 88 || len(b.Interpolated) != 1 ||
-					!strings.Contains(b.Interpolated[0], "noise of u1/b01-noise.csv: interpolated from 39 points onto the 88-point grid of u1/b01.s2p") {
+				// The range-loss chain first (reference table), then the noise trace.
+				if len(b.FrequencyHz) != 88 || len(b.Interpolated) != 2 ||
+					!strings.Contains(b.Interpolated[0], "reference gain and its uncertainty from the 7-point calibration table of references/horn-1.yaml") ||
+					!strings.Contains(b.Interpolated[1], "noise of u1/b01-noise.csv: interpolated from 39 points onto the 88-point grid of u1/b01.s2p") {
 					t.Errorf("beam b01: %d points, interpolated %q", len(b.FrequencyHz), b.Interpolated)
 				}
 				near(t, "G/T after interpolation", b.GTdBPerK[87], synthTrueGT(30), 1e-9)
@@ -378,5 +380,38 @@ func TestReduceUnitNeverPanics(t *testing.T) {
 		if u == nil || u.Verdict != VerdictIncomplete || len(u.Problems) == 0 {
 			t.Errorf("input %d: %+v, want an incomplete unit with problems", i, u)
 		}
+	}
+}
+
+func TestReduceUnitRangeLossOnOtherGrid(t *testing.T) {
+	// The reference measurement on its own 201-point grid over 10.5..13 GHz: the range loss is
+	// interpolated onto each beam's transmission grid. The model's range loss is linear in
+	// frequency, so linear interpolation must return it exactly (method.md section 3).
+	in := synthInput(synthOptions{thetas: []float64{0, 30}})
+	f := grid(10.5e9, 13e9, 201)
+	for _, m := range []*ingest.Transmission{in.Data.RangePre, in.Data.RangePost} {
+		off := m.ParameterDB[0] - (synthRefGain(m.FrequencyHz[0]) - synthRangeLoss(m.FrequencyHz[0]))
+		m.FrequencyHz, m.ParameterDB, m.AntennaMatch = f, nil, nil
+		for _, x := range f {
+			m.ParameterDB = append(m.ParameterDB, synthRefGain(x)-synthRangeLoss(x)+off)
+			m.AntennaMatch = append(m.AntennaMatch, 0.1)
+		}
+	}
+	u := ReduceUnit(in)
+	if len(u.Problems) != 0 {
+		t.Fatalf("problems:\n%s", problemText(u))
+	}
+	b := u.Beams[0]
+	found := false
+	for _, s := range b.Interpolated {
+		found = found || strings.Contains(s,
+			"range loss of u1/ref-pre.s2p and u1/ref-post.s2p: interpolated from 201 points onto the 101-point grid of u1/b00.s2p")
+	}
+	if !found {
+		t.Errorf("interpolated %q", b.Interpolated)
+	}
+	for i, x := range b.FrequencyHz {
+		near(t, "range loss", b.RangeLossDB[i], synthRangeLoss(x), 1e-9)
+		near(t, "G/T", b.GTdBPerK[i], synthTrueGT(0), 1e-9)
 	}
 }
