@@ -162,28 +162,31 @@ func checkBudgetLengths(b *reduce.Budget, n int) error {
 	return nil
 }
 
-// encodeIndented writes v as JSON with two-space indentation and a final
-// newline; non-finite floats become null.
+// encodeIndented writes v as JSON with two-space indentation (the layout of
+// json.MarshalIndent(v, "", "  ")) and a final newline; non-finite floats
+// become null.
 func encodeIndented(v any) ([]byte, error) {
-	var compact []byte
-	compact, err := appendJSON(compact, reflect.ValueOf(v))
+	b, err := appendJSON(make([]byte, 0, 1<<16), reflect.ValueOf(v), 0)
 	if err != nil {
 		return nil, err
 	}
-	var out bytes.Buffer
-	out.Grow(len(compact) + len(compact)/2)
-	if err := json.Indent(&out, compact, "", "  "); err != nil {
-		return nil, err
+	return append(b, '\n'), nil
+}
+
+// appendNewline starts a new line indented to depth.
+func appendNewline(b []byte, depth int) []byte {
+	b = append(b, '\n')
+	for i := 0; i < depth; i++ {
+		b = append(b, ' ', ' ')
 	}
-	out.WriteByte('\n')
-	return out.Bytes(), nil
+	return b
 }
 
 // appendJSON encodes like encoding/json (field names and omitempty from
-// the json tags, map keys sorted, the same float format), except that a
-// non-finite float is null and a nil slice or map outside omitempty is an
-// empty list or object.
-func appendJSON(b []byte, v reflect.Value) ([]byte, error) {
+// the json tags, map keys sorted, the same float format), indented at
+// depth, except that a non-finite float is null and a nil slice or map
+// outside omitempty is an empty list or object.
+func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
 	switch v.Kind() {
 	case reflect.Invalid:
 		return append(b, "null"...), nil
@@ -191,7 +194,7 @@ func appendJSON(b []byte, v reflect.Value) ([]byte, error) {
 		if v.IsNil() {
 			return append(b, "null"...), nil
 		}
-		return appendJSON(b, v.Elem())
+		return appendJSON(b, v.Elem(), depth)
 	case reflect.Struct:
 		b = append(b, '{')
 		first := true
@@ -213,12 +216,16 @@ func appendJSON(b []byte, v reflect.Value) ([]byte, error) {
 				b = append(b, ',')
 			}
 			first = false
-			b = strconv.AppendQuote(b, name) // names are plain ASCII tags
-			b = append(b, ':')
+			b = appendNewline(b, depth+1)
+			b = appendJSONString(b, name)
+			b = append(b, ':', ' ')
 			var err error
-			if b, err = appendJSON(b, fv); err != nil {
+			if b, err = appendJSON(b, fv, depth+1); err != nil {
 				return nil, err
 			}
+		}
+		if !first {
+			b = appendNewline(b, depth)
 		}
 		return append(b, '}'), nil
 	case reflect.Slice, reflect.Array:
@@ -230,10 +237,14 @@ func appendJSON(b []byte, v reflect.Value) ([]byte, error) {
 			if i > 0 {
 				b = append(b, ',')
 			}
+			b = appendNewline(b, depth+1)
 			var err error
-			if b, err = appendJSON(b, v.Index(i)); err != nil {
+			if b, err = appendJSON(b, v.Index(i), depth+1); err != nil {
 				return nil, err
 			}
+		}
+		if v.Len() > 0 {
+			b = appendNewline(b, depth)
 		}
 		return append(b, ']'), nil
 	case reflect.Map:
@@ -250,12 +261,16 @@ func appendJSON(b []byte, v reflect.Value) ([]byte, error) {
 			if i > 0 {
 				b = append(b, ',')
 			}
+			b = appendNewline(b, depth+1)
 			b = appendJSONString(b, k)
-			b = append(b, ':')
+			b = append(b, ':', ' ')
 			var err error
-			if b, err = appendJSON(b, v.MapIndex(reflect.ValueOf(k).Convert(v.Type().Key()))); err != nil {
+			if b, err = appendJSON(b, v.MapIndex(reflect.ValueOf(k).Convert(v.Type().Key())), depth+1); err != nil {
 				return nil, err
 			}
+		}
+		if len(keys) > 0 {
+			b = appendNewline(b, depth)
 		}
 		return append(b, '}'), nil
 	case reflect.String:
