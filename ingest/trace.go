@@ -8,6 +8,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 )
 
@@ -96,6 +97,9 @@ func ReadTrace(r io.Reader, name string) (*Trace, error) {
 	}
 	if header[1] == "" {
 		return nil, Problemf(name, hl, "second header field is empty; expected the name of the value column")
+	}
+	if strings.IndexFunc(header[1], unicode.IsControl) >= 0 {
+		return nil, Problemf(name, hl, "value column name %q holds a control character; expected a printable name", header[1])
 	}
 	t := &Trace{File: name, Column: header[1]}
 	var prevText string

@@ -7,6 +7,7 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+	"unicode"
 )
 
 func TestReadTrace(t *testing.T) {
@@ -71,6 +72,7 @@ func TestReadTraceErrors(t *testing.T) {
 		{"huge exponent", "frequency_ghz,v\n1e99999999999,1\n", 2, "out of range"},
 		{"zero frequency", "frequency_hz,v\n0,1\n", 2, "not positive"},
 		{"negative frequency", "frequency_hz,v\n-1,1\n", 2, "not positive"},
+		{"control in column", "frequency_hz,a\rb\n1,1\n", 1, "control character"},
 		{"binary", "frequency_hz,v\n1,\xff\xfe\n", 2, "not UTF-8"},
 		{"long line", "frequency_hz,v\n" + strings.Repeat("1", maxLineBytes+10) + ",1\n", 2, "longer than"},
 	}
@@ -256,7 +258,7 @@ func FuzzReadTrace(f *testing.F) {
 				t.Fatalf("accepted non-increasing frequency at %d", i)
 			}
 		}
-		if strings.ContainsAny(tr.Column, ",\r\n") {
+		if strings.IndexFunc(tr.Column, unicode.IsControl) >= 0 || strings.Contains(tr.Column, ",") {
 			t.Fatalf("column name %q", tr.Column)
 		}
 		var buf bytes.Buffer
