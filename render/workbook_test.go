@@ -750,3 +750,48 @@ func BenchmarkUnitWorkbook16x801(b *testing.B) {
 		b.SetBytes(int64(len(data)))
 	}
 }
+
+// Text that looks like a formula stays text: a cell written from a user's
+// field never carries a formula element (<f>), and each beam sheet plus the
+// Summary has its chart part.
+func TestWorkbookTextIsNotFormula(t *testing.T) {
+	u := fixtureUnit(t, 3, 21)
+	u.Operator = `=HYPERLINK("http://example.invalid","x")`
+	u.Firmware = "@SUM(A1:A2)"
+	u.Beams[1].ID = "+1"
+	u.Flags[0].Message = "-2+3"
+	data, err := UnitWorkbook(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zr, err := zip.NewReader(bytes.NewReader(data), int64(len(data)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	charts := 0
+	for _, f := range zr.File {
+		if strings.HasPrefix(f.Name, "xl/charts/chart") {
+			charts++
+		}
+		if !strings.HasPrefix(f.Name, "xl/worksheets/sheet") {
+			continue
+		}
+		rc, _ := f.Open()
+		x, _ := io.ReadAll(rc)
+		rc.Close()
+		if bytes.Contains(x, []byte("<f>")) || bytes.Contains(x, []byte("<f ")) {
+			t.Errorf("%s holds a formula", f.Name)
+		}
+	}
+	if charts != 1+len(u.Beams) {
+		t.Errorf("%d chart parts, want %d (Summary and one per beam)", charts, 1+len(u.Beams))
+	}
+	d := readWorkbook(t, data)
+	s := d.sheet(t, "Summary")
+	if r := findRow(s, 1, "Operator"); r < 0 || s.cell(r, 2) != u.Operator {
+		t.Errorf("operator cell not the text %q", u.Operator)
+	}
+	if d.Sheets[2].Title != "Beam +1" {
+		t.Errorf("sheet %q, want \"Beam +1\"", d.Sheets[2].Title)
+	}
+}
