@@ -1,7 +1,9 @@
 package ingest
 
 import (
+	"bytes"
 	"errors"
+	"io"
 	"fmt"
 	"math"
 	"regexp"
@@ -83,8 +85,20 @@ func (p *yparser) document(data []byte, what string) *ymap {
 		p.errf(0, "file is empty; expected a %s document starting with schema: %d", what, SchemaVersion)
 		return nil
 	}
+	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var doc yaml.Node
-	if err := yaml.Unmarshal(data, &doc); err != nil {
+	err := dec.Decode(&doc)
+	if err == nil {
+		// One document per file: a second one would be silently ignored.
+		var extra yaml.Node
+		if err2 := dec.Decode(&extra); err2 == nil {
+			p.errf(extra.Line, "a second YAML document starts here; expected one %s document per file", what)
+			return nil
+		} else if err2 != io.EOF {
+			err = err2
+		}
+	}
+	if err != nil && err != io.EOF {
 		msg := err.Error()
 		if m := yamlLineRe.FindStringSubmatch(msg); m != nil {
 			ln, _ := strconv.Atoi(m[1])
@@ -94,7 +108,7 @@ func (p *yparser) document(data []byte, what string) *ymap {
 		}
 		return nil
 	}
-	if doc.Kind != yaml.DocumentNode || len(doc.Content) == 0 {
+	if err == io.EOF || doc.Kind != yaml.DocumentNode || len(doc.Content) == 0 {
 		p.errf(0, "file holds no YAML document; expected a %s document starting with schema: %d", what, SchemaVersion)
 		return nil
 	}

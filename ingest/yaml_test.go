@@ -154,6 +154,8 @@ var commonCases = []yamlCase{
 	// the faulty line; this case is one where it is.
 	{"not yaml", "", "schema: 1\nid: x\n bad: 3\n", 3, "not valid YAML: mapping values are not allowed"},
 	{"a list", "", "- schema: 1\n", 1, "found a list"},
+	{"only a comment", "", "# nothing yet\n", 0, "holds no YAML document"},
+	{"two documents", "", "schema: 1\n---\nschema: 1\n", 2, "a second YAML document starts here"},
 	{"a scalar", "", "hello\n", 1, `found "hello"`},
 	{"schema 2", "schema: 1\n", "schema: 2\n", 1, "schema 2 is not supported; this version of the tool reads schema 1"},
 	{"schema text", "schema: 1\n", "schema: one\n", 1, `schema is "one"; expected schema: 1`},
