@@ -671,7 +671,9 @@ func (t *tsReader) begin() error {
 	}
 	t.startRecords(1 + 2*np)
 	if t.nfreq > 0 {
-		c := min(t.nfreq, 1<<16)
+		// Trust the declared count only as far as a modest allocation:
+		// a corrupt header must not reserve gigabytes.
+		c := min(t.nfreq, 1<<20/(t.ports*t.ports)+1)
 		n.FrequencyHz = make([]float64, 0, c)
 		n.S = make([]complex128, 0, c*t.ports*t.ports)
 	}
