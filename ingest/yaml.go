@@ -3,8 +3,8 @@ package ingest
 import (
 	"bytes"
 	"errors"
-	"io"
 	"fmt"
+	"io"
 	"math"
 	"regexp"
 	"sort"
