@@ -87,6 +87,15 @@ func finish(c optioner, private map[string]any, extra map[string]any) (template.
 			}
 		}
 	}
+	// The x axis stays at the bottom: a line at y = 0 inside the plot
+	// reads as data (a limit, a margin of zero).
+	if xs, ok := m["xAxis"].([]any); ok {
+		for _, x := range xs {
+			if xm, ok := x.(map[string]any); ok {
+				xm["axisLine"] = map[string]any{"onZero": false}
+			}
+		}
+	}
 	if lg, ok := m["legend"].(map[string]any); ok && lg["orient"] == "vertical" {
 		lg["itemGap"], lg["itemHeight"], lg["itemWidth"] = 4, 9, 18
 	}

@@ -240,13 +240,15 @@ func controlChart(id string, l reduce.LimitStats) (chartSpec, error) {
 		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
 	c.AddSeries("lower control limit", flat(cc.LowerDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
 		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	c.AddSeries("limit (margin 0)", flat(0), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#000000", Width: 2}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#000000"}))
 	if len(cc.Beyond) > 0 {
 		c.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
 			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
 	}
 	opt, err := finish(c, map[string]any{"unit": "dB", "serials": cc.Serials}, nil)
 	return chartSpec{ID: id, Title: "Control chart: " + l.Name, Height: 300, Option: opt,
-		Caption: fmt.Sprintf("Individuals chart of the worst margin in test order: centre %s dB, limits %s and %s dB (centre ± 2.66 × mean moving range %s dB); points beyond them in red.",
+		Caption: fmt.Sprintf("Individuals chart of the worst margin in test order: centre %s dB, limits %s and %s dB (centre ± 2.66 × mean moving range %s dB); points beyond them in red; the black line is the limit (margin 0).",
 			fmtFixed(cc.CentreDB, 3), fmtFixed(cc.LowerDB, 3), fmtFixed(cc.UpperDB, 3), fmtFixed(cc.MeanMovingRange, 3))}, err
 }
 

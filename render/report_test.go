@@ -341,6 +341,10 @@ func TestReportSections(t *testing.T) {
 		if err := json.Unmarshal([]byte(m[2]), &v); err != nil {
 			t.Errorf("options of %s do not parse: %v", m[1], err)
 		}
+		// Chart data is rounded: GHz to 6 decimals (1 kHz), dB to 3.
+		if long := regexp.MustCompile(`\d\.\d{7,}`).FindString(m[2]); long != "" {
+			t.Errorf("options of %s carry an unrounded number %s", m[1], long)
+		}
 	}
 	if got := strings.Join(ids, ","); got != "chart-gt,chart-gain,chart-noise,chart-range,chart-scan,chart-elements" {
 		t.Errorf("charts %s", got)

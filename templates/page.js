@@ -206,7 +206,10 @@
   Array.prototype.forEach.call(document.querySelectorAll('script.chart-opt'), draw);
   Array.prototype.forEach.call(document.querySelectorAll('table.sortable'), sortable);
   Array.prototype.forEach.call(document.querySelectorAll('input.filter-box'), filterBox);
-  window.addEventListener('resize', function () { resizeAll(); });
+  var printMedia = window.matchMedia ? window.matchMedia('print') : null;
+  function layout() { resizeAll(printMedia && printMedia.matches ? 690 : 0); }
+  window.addEventListener('resize', layout);
+  if (printMedia && printMedia.addEventListener) { printMedia.addEventListener('change', layout); }
   // Paper is narrower than most screens: draw the charts at the printed
   // width (A4 text width at 96 px per inch) while printing.
   window.addEventListener('beforeprint', function () { resizeAll(690); });
