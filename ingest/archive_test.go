@@ -565,3 +565,20 @@ func TestSortProblems(t *testing.T) {
 		t.Errorf("got %s", buf.String())
 	}
 }
+
+// BenchmarkOpenLoad discovers the good archive and loads every run.
+func BenchmarkOpenLoad(b *testing.B) {
+	for b.Loop() {
+		a, err := Open(goodRoot)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, u := range a.Units {
+			for _, r := range u.Runs {
+				if _, p := a.Load(r); len(p) != 0 {
+					b.Fatal(p)
+				}
+			}
+		}
+	}
+}

@@ -229,6 +229,13 @@ func parseScaled(s string, exp int) (float64, error) {
 	if !isDecimal(s) {
 		return 0, errors.New("is not a number; expected a decimal number such as 11.7 or 1.17e10")
 	}
+	if exp == 0 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil || math.IsInf(v, 0) {
+			return 0, errors.New("out of range; expected a finite number")
+		}
+		return v, nil
+	}
 	mant, e := s, 0
 	if i := strings.IndexAny(s, "eE"); i >= 0 {
 		mant = s[:i]

@@ -276,3 +276,19 @@ func FuzzReadTrace(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkReadTrace reads a 1601-point trace (a common VNA sweep length).
+func BenchmarkReadTrace(b *testing.B) {
+	var buf bytes.Buffer
+	buf.WriteString("frequency_ghz,noise_dbm_hz\n")
+	for i := 0; i < 1601; i++ {
+		buf.WriteString(formatScaled(10.7e9+float64(i)*1.25e6, -9) + ",-141.25\n")
+	}
+	data := buf.Bytes()
+	b.SetBytes(int64(len(data)))
+	for b.Loop() {
+		if _, err := ReadTrace(bytes.NewReader(data), "b.csv"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
