@@ -25,7 +25,7 @@ func RobustScatterDB(values []float64) float64 {
 	for i := range d {
 		d[i] = values[i+1] - values[i]
 	}
-	return MADNormalScale * noiseMAD(d) / math.Sqrt2
+	return MADNormalScale * madInPlace(d) / math.Sqrt2
 }
 
 // SmoothedScatterDB is the scatter of a trace after a centred moving
@@ -50,27 +50,25 @@ func RadiometerDB(bandwidthHz, integrationS float64) float64 {
 	return DBPerNeperPower / math.Sqrt(bt)
 }
 
-// noiseMedian returns the median of x (the mean of the two middle values for an
-// even count); x is not modified. It returns 0 for no values.
-func noiseMedian(x []float64) float64 {
-	if len(x) == 0 {
+// medianInPlace returns the median of s (the mean of the two middle
+// values for an even count), sorting s; 0 for no values.
+func medianInPlace(s []float64) float64 {
+	n := len(s)
+	if n == 0 {
 		return 0
 	}
-	s := append([]float64(nil), x...)
 	sort.Float64s(s)
-	n := len(s)
 	if n%2 == 1 {
 		return s[n/2]
 	}
 	return (s[n/2-1] + s[n/2]) / 2
 }
 
-// noiseMAD is noiseMedian(|x - noiseMedian(x)|).
-func noiseMAD(x []float64) float64 {
-	m := noiseMedian(x)
-	dev := make([]float64, len(x))
-	for i, v := range x {
-		dev[i] = math.Abs(v - m)
+// madInPlace returns median(|s - median(s)|), overwriting s.
+func madInPlace(s []float64) float64 {
+	m := medianInPlace(s)
+	for i, v := range s {
+		s[i] = math.Abs(v - m)
 	}
-	return noiseMedian(dev)
+	return medianInPlace(s)
 }
