@@ -75,6 +75,11 @@
         head = esc(num(x, 4)) + ' GHz';
       }
       var lines = ['<b>' + head + '</b>'];
+      // The beam in focus first, in bold; then the others in their order.
+      var focusSeries = 'beam-' + state.focusId;
+      ps = ps.slice().sort(function (a, b) {
+        return (b.seriesId === focusSeries) - (a.seriesId === focusSeries) || a.seriesIndex - b.seriesIndex;
+      });
       ps.forEach(function (p) {
         if (p.seriesId === 'band-lo') { return; }
         var y = yOf(p);
@@ -83,7 +88,8 @@
           lines.push(p.marker + esc(what) + ': ±' + esc(num(y / 2, 3)) + ' dB');
           return;
         }
-        lines.push(p.marker + esc(p.seriesName) + ': ' + esc(num(y, 3)) + ' ' + esc(unit));
+        var line = p.marker + esc(p.seriesName) + ': ' + esc(num(y, 3)) + ' ' + esc(unit);
+        lines.push(p.seriesId === focusSeries ? '<b>' + line + '</b>' : line);
       });
       return lines.join('<br>');
     };
