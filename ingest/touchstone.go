@@ -710,9 +710,7 @@ func (t *tsReader) data(line []byte) error {
 	}
 	col := 0
 	i := 0
-	for i < len(b) && tsSpaceTab[b[i]] {
-		i++
-	}
+	rec := t.rec
 	for i < len(b) {
 		v, n, ok := tsScan(b[i:])
 		tok := b[i : i+n]
@@ -721,31 +719,33 @@ func (t *tsReader) data(line []byte) error {
 			i++
 		}
 		col++
-		if col > 1 && len(t.rec) == 0 {
-			// The point ended inside this line.
-			return t.errf(t.line, "line has %d values but the point that began at line %d needed only %d of them: %s; a new point starts on a new line",
-				len(bytes.Fields(line)), t.recStart, col-1, t.describeRecord())
-		}
-		if !ok {
-			if len(t.rec) == 0 {
+		if len(rec) == 0 {
+			if col > 1 {
+				// The point ended inside this line.
+				return t.errf(t.line, "line has %d values but the point that began at line %d needed only %d of them: %s; a new point starts on a new line",
+					len(bytes.Fields(line)), t.recStart, col-1, t.describeRecord())
+			}
+			if !ok {
 				return t.errf(t.line, "%q is not a number: expected a frequency (%s)", tsClip(string(tok)), t.describeRecord())
 			}
-			return t.errf(t.line, "value %d on the line, %q, is not a number", col, tsClip(string(tok)))
-		}
-		if len(t.rec) == 0 {
 			if err := t.checkFrequency(v); err != nil {
 				return err
 			}
+		} else if !ok {
+			return t.errf(t.line, "value %d on the line, %q, is not a number", col, tsClip(string(tok)))
 		}
-		t.rec = append(t.rec, v)
-		if !continuing {
-			t.recFirst++
-		}
-		if len(t.rec) == t.recLen {
+		rec = append(rec, v)
+		if len(rec) == t.recLen {
+			t.rec = rec
 			if err := t.completeRecord(); err != nil {
 				return err
 			}
+			rec = t.rec
 		}
+	}
+	t.rec = rec
+	if !continuing {
+		t.recFirst = col
 	}
 	return nil
 }
@@ -855,7 +855,7 @@ func (t *tsReader) completeRecord() error {
 		}
 	default:
 		for p := range pairs {
-			pairs[p] = tsPolar(math.Pow(10, vals[2*p]/20), vals[2*p+1])
+			pairs[p] = tsPolar(math.Exp(vals[2*p]*(math.Ln10/20)), vals[2*p+1]) // 10^(dB/20)
 		}
 	}
 	for p, c := range pairs {
