@@ -33,7 +33,6 @@ func FleetWorkbook(f *reduce.Fleet) ([]byte, error) {
 	writeOutliers(b, outliers, f)
 	writeWatch(b, watch, f)
 	writeBand(b, band, f)
-	b.f.SetActiveSheet(0)
 	return b.bytes()
 }
 

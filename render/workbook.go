@@ -2,8 +2,12 @@ package render
 
 import (
 	"archive/zip"
+	"bytes"
+	"compress/flate"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"sort"
 	"strings"
@@ -61,20 +65,60 @@ type xlBook struct {
 	sheets     int
 }
 
-// fixedTimeZip gives every zip entry the same modification time.
-type fixedTimeZip struct {
-	*zip.Writer
+// sortedZip is the zip writer given to excelize: it holds the entries
+// until Close and then writes them sorted by name, all with the same
+// modification time. excelize writes streamed sheets in map order, and
+// archive/zip would otherwise leave the time to the caller.
+type sortedZip struct {
+	w        *zip.Writer
 	modified time.Time
+	entries  []*zipEntry
 }
 
-func (z fixedTimeZip) Create(name string) (io.Writer, error) {
-	return z.CreateHeader(&zip.FileHeader{Name: name, Method: zip.Deflate, Modified: z.modified})
+type zipEntry struct {
+	name string
+	data bytes.Buffer
+}
+
+func (z *sortedZip) Create(name string) (io.Writer, error) {
+	e := &zipEntry{name: name}
+	z.entries = append(z.entries, e)
+	return &e.data, nil
+}
+
+func (z *sortedZip) AddFS(fs.FS) error {
+	return errors.New("render: adding a file system to a workbook is not supported")
+}
+
+func (z *sortedZip) Close() error {
+	sort.SliceStable(z.entries, func(i, j int) bool { return z.entries[i].name < z.entries[j].name })
+	for i, e := range z.entries {
+		if i > 0 && e.name == z.entries[i-1].name {
+			return fmt.Errorf("render: workbook part %s written twice", e.name)
+		}
+		w, err := z.w.CreateHeader(&zip.FileHeader{Name: e.name, Method: zip.Deflate, Modified: z.modified})
+		if err != nil {
+			return err
+		}
+		if _, err := w.Write(e.data.Bytes()); err != nil {
+			return err
+		}
+	}
+	z.entries = nil
+	return z.w.Close()
 }
 
 func newXLBook(title, subject string, created time.Time) *xlBook {
 	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
 	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
-		return fixedTimeZip{Writer: zip.NewWriter(w), modified: created}
+		zw := zip.NewWriter(w)
+		// The fastest deflate level: compression takes most of the time of
+		// a large workbook otherwise; the file is some 25 % larger than at the
+		// default level.
+		zw.RegisterCompressor(zip.Deflate, func(out io.Writer) (io.WriteCloser, error) {
+			return flate.NewWriter(out, flate.BestSpeed)
+		})
+		return &sortedZip{w: zw, modified: created}
 	})
 	stamp := created.UTC().Format(time.RFC3339)
 	b.check(b.f.SetDocProps(&excelize.DocProperties{
@@ -393,7 +437,6 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 	writeUncertaintySheet(b, uncertainty, u)
 	writeFlagsSheet(b, flags, u)
 	writeInputsSheet(b, inputs, u)
-	b.f.SetActiveSheet(0)
 	return b.bytes()
 }
 
@@ -583,34 +626,59 @@ func beamColumns(bm *reduce.Beam) []beamColumn {
 // beam has no frequencies).
 func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam) string {
 	cols := beamColumns(bm)
-	heads := make([]xlColumn, len(cols))
-	for i, c := range cols {
-		heads[i] = c.xlColumn
-	}
-	b.table(sheet, 1, heads, true)
 	n := len(bm.FrequencyHz)
-	for ci, c := range cols {
-		for i, v := range c.values {
-			if c.start+i >= n {
-				break
+	gt := ""
+	// The chart goes in first: the stream writer below writes the sheet's
+	// drawing reference when it is flushed.
+	if n > 0 {
+		// Series names are formulas: they point at the header cells.
+		categories := xlRef(sheet, 1, 2, n+1)
+		series := []chartSeries{{name: xlRef(sheet, 7, 1, 1), values: xlRef(sheet, 7, 2, n+1)}}
+		for ci, c := range cols {
+			if strings.HasPrefix(c.header, "Limit ") && strings.HasSuffix(c.header, "(dB/K)") {
+				series = append(series, chartSeries{name: xlRef(sheet, ci+1, 1, 1), values: xlRef(sheet, ci+1, 2, n+1), dash: true})
 			}
-			b.set(sheet, ci+1, c.start+i+2, v)
 		}
+		title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.ID, bm.ThetaDeg, bm.PhiDeg)
+		b.lineChart(sheet, xlCell(len(cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, series)
+		gt = series[0].values
 	}
-	if n == 0 {
+	if b.err != nil {
 		return ""
 	}
-	// Series names are formulas: they point at the header cells.
-	categories := xlRef(sheet, 1, 2, n+1)
-	series := []chartSeries{{name: xlRef(sheet, 7, 1, 1), values: xlRef(sheet, 7, 2, n+1)}}
-	for ci, c := range cols {
-		if strings.HasPrefix(c.header, "Limit ") && strings.HasSuffix(c.header, "(dB/K)") {
-			series = append(series, chartSeries{name: xlRef(sheet, ci+1, 1, 1), values: xlRef(sheet, ci+1, 2, n+1), dash: true})
-		}
+	// The frequency table is the bulk of the workbook: it is streamed,
+	// row by row.
+	sw, err := b.f.NewStreamWriter(sheet)
+	if err != nil {
+		b.check(err)
+		return ""
 	}
-	title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.ID, bm.ThetaDeg, bm.PhiDeg)
-	b.lineChart(sheet, xlCell(len(cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, series)
-	return series[0].values
+	styles := make([]int, len(cols))
+	head := make([]any, len(cols))
+	for i, c := range cols {
+		b.check(sw.SetColWidth(i+1, i+1, c.width))
+		styles[i] = b.numStyle(c.format)
+		head[i] = excelize.Cell{StyleID: b.header, Value: c.header}
+	}
+	b.check(sw.SetPanes(&excelize.Panes{
+		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
+		Selection: []excelize.Selection{{SQRef: "A2", ActiveCell: "A2", Pane: "bottomLeft"}},
+	}))
+	b.check(sw.SetRow("A1", head))
+	row := make([]any, len(cols))
+	for k := 0; k < n && b.err == nil; k++ {
+		for ci, c := range cols {
+			v := valueAt(c.values, k-c.start)
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				row[ci] = nil
+			} else {
+				row[ci] = excelize.Cell{StyleID: styles[ci], Value: v}
+			}
+		}
+		b.check(sw.SetRow(xlCell(1, k+2), row))
+	}
+	b.check(sw.Flush())
+	return gt
 }
 
 func writeLimitsSheet(b *xlBook, sheet string, limits []reduce.LimitResult) {
