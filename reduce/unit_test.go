@@ -415,3 +415,52 @@ func TestReduceUnitRangeLossOnOtherGrid(t *testing.T) {
 		near(t, "G/T", b.GTdBPerK[i], synthTrueGT(0), 1e-9)
 	}
 }
+
+func TestSummaryBoresight(t *testing.T) {
+	// Boresight is the beam with the smallest |theta| among the beams with G/T; first on a tie.
+	mk := func(id string, theta float64, gt bool) Beam {
+		b := Beam{ID: id, ThetaDeg: theta, FrequencyHz: []float64{1, 2}}
+		if gt {
+			b.GTdBPerK = []float64{3, 4}
+		}
+		return b
+	}
+	cases := []struct {
+		beams []Beam
+		want  string
+	}{
+		{[]Beam{mk("b1", 30, true), mk("b0", 0, true), mk("b2", 0, true)}, "b0"},
+		{[]Beam{mk("b0", 0, false), mk("b1", -10, true), mk("b2", 20, true)}, "b1"},
+		{[]Beam{mk("b0", 0, false)}, ""},
+	}
+	for _, c := range cases {
+		u := &Unit{Serial: "S", Verdict: VerdictPass, Beams: c.beams}
+		s := u.Summary()
+		got := ""
+		if s.Boresight != nil {
+			got = s.Boresight.Beam
+		}
+		if got != c.want || s.Serial != "S" || s.Verdict != VerdictPass {
+			t.Errorf("boresight %q, want %q (%+v)", got, c.want, s)
+		}
+	}
+}
+
+func TestReduceUnitNoAUTMatch(t *testing.T) {
+	// A CSV transmission has no |Gamma| of the AUT: the AUT mismatch term is left out of the
+	// gain budget with a flag, and the reduction is otherwise complete.
+	in := synthInput(synthOptions{thetas: []float64{0, 30}})
+	in.Data.Beams[0].Transmission.AntennaMatch = nil
+	u := ReduceUnit(in)
+	if len(u.Problems) != 0 || u.Verdict != VerdictPass {
+		t.Fatalf("verdict %s, problems:\n%s", u.Verdict, problemText(u))
+	}
+	flagged := false
+	for _, f := range u.Flags {
+		flagged = flagged || (f.Kind == "budget" && strings.Contains(f.Message, "beam(s) b00 hold no reflection coefficient of the AUT"))
+	}
+	if !flagged || len(u.Beams[0].GainBudget.Terms) != 4 || len(u.Beams[1].GainBudget.Terms) != 5 {
+		t.Errorf("flags %+v; gain terms %d and %d, want 4 and 5", u.Flags,
+			len(u.Beams[0].GainBudget.Terms), len(u.Beams[1].GainBudget.Terms))
+	}
+}
