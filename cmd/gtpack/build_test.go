@@ -1,0 +1,277 @@
+package main
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"io/fs"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"sort"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+
+	"gtpack.example/gtpack/ingest"
+	"gtpack.example/gtpack/ingest/demo"
+)
+
+// siteDigest maps every file of a site (the build cache excluded) to its
+// SHA-256.
+func siteDigest(t *testing.T, dir string) map[string]string {
+	t.Helper()
+	out := map[string]string{}
+	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(dir, p)
+		if d.IsDir() {
+			if rel == stateDir {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		data, err := os.ReadFile(p)
+		if err != nil {
+			return err
+		}
+		sum := sha256.Sum256(data)
+		out[filepath.ToSlash(rel)] = hex.EncodeToString(sum[:])
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
+func sameSite(t *testing.T, what string, a, b map[string]string) {
+	t.Helper()
+	var diffs []string
+	for k, v := range a {
+		if b[k] != v {
+			diffs = append(diffs, k)
+		}
+	}
+	for k := range b {
+		if _, ok := a[k]; !ok {
+			diffs = append(diffs, k+" (extra)")
+		}
+	}
+	sort.Strings(diffs)
+	if len(diffs) > 0 {
+		t.Fatalf("%s: %d file(s) differ: %s", what, len(diffs), strings.Join(diffs, ", "))
+	}
+}
+
+func smallArchive(t *testing.T) string {
+	t.Helper()
+	dir := filepath.Join(t.TempDir(), "archive")
+	if _, err := demo.Write(dir, demo.Options{Units: 5, Seed: 7, Beams: 4, Points: 101}); err != nil {
+		t.Fatal(err)
+	}
+	return dir
+}
+
+func runQuiet(t *testing.T, args ...string) int {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(args, &out, &errb)
+	if code == exitUsage {
+		t.Fatalf("gtpack %v: usage error: %s", args, errb.String())
+	}
+	return code
+}
+
+// Two builds of the same archive into fresh folders are byte-identical,
+// and a no-change rebuild leaves every file as it was.
+func TestBuildIsDeterministic(t *testing.T) {
+	archive := smallArchive(t)
+	a := filepath.Join(t.TempDir(), "a")
+	b := filepath.Join(t.TempDir(), "b")
+	runQuiet(t, "build", archive, "-o", a, "--quiet")
+	runQuiet(t, "build", archive, "-o", b, "--quiet", "-j", "1")
+	da, db := siteDigest(t, a), siteDigest(t, b)
+	if len(da) < 5*3+5 {
+		t.Fatalf("site has %d files, want the 3 files of each of 5 units and the fleet files", len(da))
+	}
+	sameSite(t, "two clean builds", da, db)
+	runQuiet(t, "build", archive, "-o", a, "--quiet")
+	sameSite(t, "rebuild without change", da, siteDigest(t, a))
+}
+
+// A rebuild redoes only the units whose inputs changed, and units that left
+// the archive leave the site.
+func TestIncrementalBuild(t *testing.T) {
+	archive := smallArchive(t)
+	site := filepath.Join(t.TempDir(), "site")
+	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	states := func() map[string][]byte {
+		m := map[string][]byte{}
+		entries, _ := os.ReadDir(filepath.Join(site, stateDir, "units"))
+		for _, e := range entries {
+			data, _ := os.ReadFile(filepath.Join(site, stateDir, "units", e.Name()))
+			m[e.Name()] = data
+		}
+		return m
+	}
+	before := states()
+	if len(before) != 5 {
+		t.Fatalf("%d unit states, want 5", len(before))
+	}
+
+	a, err := ingest.Open(archive)
+	if err != nil {
+		t.Fatal(err)
+	}
+	changed := a.Units[1]
+	notes := filepath.Join(archive, filepath.FromSlash(changed.Acceptance().Dir), "run.yaml")
+	data, err := os.ReadFile(notes)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(notes, append(data, []byte("# edited\n")...), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	future := time.Now().Add(time.Hour)
+	os.Chtimes(notes, future, future)
+
+	var out, errb bytes.Buffer
+	run([]string{"build", archive, "-o", site, "-j", "1"}, &out, &errb)
+	log := errb.String()
+	if !strings.Contains(log, "1 unit(s) built, 4 unchanged") {
+		t.Fatalf("after one changed run.yaml the build said:\n%s", log)
+	}
+	after := states()
+	for name, data := range before {
+		if name == changed.Serial+".json" {
+			continue
+		}
+		if !bytes.Equal(after[name], data) {
+			t.Errorf("unit state %s was rewritten although its inputs did not change", name)
+		}
+	}
+
+	removed := a.Units[0]
+	for _, r := range removed.Runs {
+		if err := os.RemoveAll(filepath.Join(archive, filepath.FromSlash(r.Dir))); err != nil {
+			t.Fatal(err)
+		}
+	}
+	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	if _, err := os.Stat(filepath.Join(site, "units", removed.Serial)); !os.IsNotExist(err) {
+		t.Fatalf("unit %s left the archive but its folder is still in the site (%v)", removed.Serial, err)
+	}
+	var manifest struct {
+		Units []struct{ Serial string } `json:"units"`
+	}
+	data, err = os.ReadFile(filepath.Join(site, "manifest.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &manifest); err != nil {
+		t.Fatal(err)
+	}
+	if len(manifest.Units) != 4 {
+		t.Fatalf("manifest lists %d units after one was removed, want 4", len(manifest.Units))
+	}
+}
+
+// Shards built separately and joined by `index` give the same site as one
+// build.
+func TestShardsThenIndex(t *testing.T) {
+	archive := smallArchive(t)
+	whole := filepath.Join(t.TempDir(), "whole")
+	runQuiet(t, "build", archive, "-o", whole, "--quiet")
+	sharded := filepath.Join(t.TempDir(), "sharded")
+	for k := 0; k < 3; k++ {
+		runQuiet(t, "build", archive, "-o", sharded, "--quiet", "--shard", string(rune('0'+k))+"/3")
+	}
+	if _, err := os.Stat(filepath.Join(sharded, "index.html")); !os.IsNotExist(err) {
+		t.Fatalf("a sharded build wrote the fleet pages (%v)", err)
+	}
+	if code := runQuiet(t, "index", sharded); code != exitOK {
+		t.Fatalf("index exited %d", code)
+	}
+	sameSite(t, "three shards and index vs one build", siteDigest(t, whole), siteDigest(t, sharded))
+}
+
+// A build killed with SIGKILL at random moments, five times, then run to
+// the end, gives the same site as one clean build.
+func TestKilledBuildRecovers(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the binary and kills it repeatedly")
+	}
+	archive := smallArchive(t)
+	bin := filepath.Join(t.TempDir(), "gtpack")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	clean := filepath.Join(t.TempDir(), "clean")
+	if out, err := exec.Command(bin, "build", archive, "-o", clean, "--quiet").CombinedOutput(); err != nil {
+		t.Fatalf("clean build: %v\n%s", err, out)
+	}
+	start := time.Now()
+	if out, err := exec.Command(bin, "build", archive, "-o", filepath.Join(t.TempDir(), "timing"), "--quiet").CombinedOutput(); err != nil {
+		t.Fatalf("timing build: %v\n%s", err, out)
+	}
+	full := time.Since(start)
+
+	killed := filepath.Join(t.TempDir(), "killed")
+	rng := rand.New(rand.NewPCG(42, 7))
+	for i := 0; i < 5; i++ {
+		cmd := exec.Command(bin, "build", archive, "-o", killed, "--quiet", "--force")
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(time.Duration(rng.Float64() * float64(full)))
+		cmd.Process.Signal(syscall.SIGKILL)
+		cmd.Wait()
+	}
+	if out, err := exec.Command(bin, "build", archive, "-o", killed, "--quiet").CombinedOutput(); err != nil {
+		t.Fatalf("build after kills: %v\n%s", err, out)
+	}
+	sameSite(t, "killed five times then rebuilt vs clean build", siteDigest(t, clean), siteDigest(t, killed))
+}
+
+func TestUsageErrors(t *testing.T) {
+	for _, args := range [][]string{
+		{},
+		{"frobnicate"},
+		{"build"},
+		{"build", "a", "b"},
+		{"build", "a", "--shard", "3/3"},
+		{"build", "a", "--shard", "x"},
+		{"inspect"},
+		{"demo", "d", "--units", "0"},
+	} {
+		var out, errb bytes.Buffer
+		if code := run(args, &out, &errb); code != exitUsage {
+			t.Errorf("gtpack %q exited %d, want %d (usage)", args, code, exitUsage)
+		}
+	}
+}
+
+// shardOf must be FNV-1a 64 as the FNV specification defines it
+// (offset basis 14695981039346656037, prime 1099511628211; IETF draft
+// "The FNV Non-Cryptographic Hash Algorithm"), so that any other tool can
+// tell which shard holds a serial.
+func TestShardOfIsFNV1a(t *testing.T) {
+	for _, serial := range []string{"FHA-26-0001", "FHA-26-0002", "x", ""} {
+		h := uint64(14695981039346656037)
+		for _, c := range []byte(serial) {
+			h ^= uint64(c)
+			h *= 1099511628211
+		}
+		for _, n := range []int{1, 3, 16} {
+			if got, want := shardOf(serial, n), int(h%uint64(n)); got != want {
+				t.Errorf("shardOf(%q, %d) = %d, want %d", serial, n, got, want)
+			}
+		}
+	}
+}

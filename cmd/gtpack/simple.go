@@ -1,0 +1,80 @@
+package main
+
+import (
+	"encoding/json"
+	"flag"
+	"fmt"
+	"io"
+
+	"gtpack.example/gtpack/ingest"
+	"gtpack.example/gtpack/ingest/demo"
+	"gtpack.example/gtpack/render"
+)
+
+func cmdVersion(args []string, stdout, _ io.Writer) (int, error) {
+	fs := flag.NewFlagSet("version", flag.ContinueOnError)
+	if _, err := parseArgs(fs, args); err != nil {
+		return exitUsage, err
+	}
+	fmt.Fprintf(stdout, "gtpack %s\n", render.Version)
+	return exitOK, nil
+}
+
+func cmdCheck(args []string, stdout, _ io.Writer) (int, error) {
+	fs := flag.NewFlagSet("check", flag.ContinueOnError)
+	pos, err := parseArgs(fs, args, "ARCHIVE")
+	if err != nil {
+		return exitUsage, err
+	}
+	problems := ingest.Check(pos[0])
+	for _, p := range problems {
+		fmt.Fprintln(stdout, p.Error())
+	}
+	if len(problems) > 0 {
+		fmt.Fprintf(stdout, "%d problem(s)\n", len(problems))
+		return exitRefused, nil
+	}
+	fmt.Fprintln(stdout, "no problems")
+	return exitOK, nil
+}
+
+func cmdInspect(args []string, stdout, _ io.Writer) (int, error) {
+	fs := flag.NewFlagSet("inspect", flag.ContinueOnError)
+	asJSON := fs.Bool("json", false, "print what is read as JSON")
+	pos, err := parseArgs(fs, args, "FILE")
+	if err != nil {
+		return exitUsage, err
+	}
+	text, value, err := ingest.Inspect(pos[0])
+	if err != nil {
+		return exitRefused, err
+	}
+	if *asJSON {
+		out, err := json.Marshal(value)
+		if err != nil {
+			return exitRefused, err
+		}
+		fmt.Fprintf(stdout, "%s\n", out)
+		return exitOK, nil
+	}
+	fmt.Fprint(stdout, text)
+	return exitOK, nil
+}
+
+func cmdDemo(args []string, stdout, _ io.Writer) (int, error) {
+	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
+	units := fs.Int("units", 8, "number of units")
+	seed := fs.Int64("seed", 1, "seed of the synthetic measurement noise")
+	pos, err := parseArgs(fs, args, "DIR")
+	if err != nil {
+		return exitUsage, err
+	}
+	if *units < 1 {
+		return exitUsage, usageError("--units must be at least 1")
+	}
+	if _, err := demo.Write(pos[0], demo.Options{Units: *units, Seed: *seed}); err != nil {
+		return exitRefused, err
+	}
+	fmt.Fprintf(stdout, "wrote a synthetic archive of %d unit(s) to %s\n", *units, pos[0])
+	return exitOK, nil
+}
