@@ -128,6 +128,13 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 				"noise trace of beam %s was refused or is missing: not used", rb.ID))
 			continue
 		}
+		switch ni.Quantity {
+		case NoiseDensityDBmPerHz, NoiseRelativeKT0, SystemNoiseFigureDB:
+		default:
+			problem(runFile, ni.Line, "beam %s: noise quantity %q is not one of %s, %s, %s: trace not used",
+				rb.ID, ni.Quantity, NoiseDensityDBmPerHz, NoiseRelativeKT0, SystemNoiseFigureDB)
+			continue
+		}
 		if err := checkTrace(t.FrequencyHz, t.Values); err != nil {
 			problem(ni.File, 0, "noise trace of beam %s not used: %v", rb.ID, err)
 			continue
@@ -158,10 +165,6 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 				figure = u
 				continue
 			}
-		default:
-			problem(runFile, ni.Line, "beam %s: noise quantity %q is not one of %s, %s, %s: trace not used",
-				rb.ID, ni.Quantity, NoiseDensityDBmPerHz, NoiseRelativeKT0, SystemNoiseFigureDB)
-			continue
 		}
 		out.flags = append(out.flags, Flag{Kind: "noise", Beam: rb.ID, Message: fmt.Sprintf(
 			"%s is a second trace of the same noise form; only the first is used for G/T", ni.File)})
