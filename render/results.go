@@ -187,6 +187,18 @@ func appendNewline(b []byte, depth int) []byte {
 // depth, except that a non-finite float is null and a nil slice or map
 // outside omitempty is an empty list or object.
 func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
+	// A type with its own JSON form (none in the model today) keeps it.
+	if k := v.Kind(); (k == reflect.Struct || k == reflect.Pointer && !v.IsNil()) && v.Type().Implements(jsonMarshaler) {
+		raw, err := json.Marshal(v.Interface())
+		if err != nil {
+			return nil, err
+		}
+		var out bytes.Buffer
+		if err := json.Indent(&out, raw, strings.Repeat("  ", depth), "  "); err != nil {
+			return nil, err
+		}
+		return append(b, out.Bytes()...), nil
+	}
 	switch v.Kind() {
 	case reflect.Invalid:
 		return append(b, "null"...), nil
@@ -286,6 +298,8 @@ func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
 	}
 	return nil, fmt.Errorf("render: cannot encode %s as JSON", v.Type())
 }
+
+var jsonMarshaler = reflect.TypeFor[json.Marshaler]()
 
 // jsonField reads a struct field's json tag.
 func jsonField(sf reflect.StructField) (name string, omitEmpty, skip bool) {

@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
@@ -352,5 +353,23 @@ func BenchmarkResultJSON16x801(b *testing.B) {
 			b.Fatal(err)
 		}
 		b.SetBytes(int64(len(data)))
+	}
+}
+
+// A field whose type has its own MarshalJSON (time.Time) is written as
+// encoding/json writes it.
+func TestEncodeIndentedMarshaler(t *testing.T) {
+	v := struct {
+		At    time.Time  `json:"at"`
+		Maybe *time.Time `json:"maybe"`
+		List  []float64  `json:"list"`
+	}{At: time.Date(2026, 11, 3, 9, 15, 0, 0, time.UTC), List: []float64{1.5}}
+	got, err := encodeIndented(&v)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, _ := json.MarshalIndent(&v, "", "  ")
+	if string(got) != string(want)+"\n" {
+		t.Errorf("got %s\nwant %s", got, want)
 	}
 }
