@@ -959,3 +959,37 @@ func TestTouchstoneNumbers(t *testing.T) {
 		}
 	}
 }
+
+// TestTouchstoneEiselLemire checks the long-mantissa path on its own
+// against strconv.ParseFloat, bit for bit, over the whole table range, and
+// that it decides nearly every case (the rest go to strconv).
+func TestTouchstoneEiselLemire(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 12))
+	decided, total := 0, 0
+	for q := tsPowMin; q <= tsPowMax; q++ {
+		for k := 0; k < 300; k++ {
+			man := rng.Uint64N(1e19-1) + 1
+			if k%3 == 0 {
+				man = rng.Uint64N(1e17-1e16) + 1e16 // 17 digits, as 'g' -1 prints
+			}
+			s := fmt.Sprintf("%de%d", man, q)
+			want, err := strconv.ParseFloat(s, 64)
+			if err != nil {
+				continue
+			}
+			total++
+			got, ok := tsEiselLemire(man, q, false)
+			if !ok {
+				continue
+			}
+			decided++
+			if math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("%s: got %v, want %v", s, got, want)
+			}
+		}
+	}
+	if decided < total*99/100 {
+		t.Errorf("decided %d of %d cases, want at least 99%%", decided, total)
+	}
+	t.Logf("decided %d of %d, all equal to strconv.ParseFloat", decided, total)
+}
