@@ -980,13 +980,14 @@ func (t *tsReader) completeRecord() error {
 			pairs[p] = tsPolar(vals[2*p], vals[2*p+1])
 		}
 	default:
+		// Finite numbers give finite RI and MA values; only a magnitude in
+		// dB can overflow.
 		for p := range pairs {
-			pairs[p] = tsPolar(math.Exp(vals[2*p]*(math.Ln10/20)), vals[2*p+1]) // 10^(dB/20)
-		}
-	}
-	for p, c := range pairs {
-		if math.IsInf(real(c), 0) || math.IsInf(imag(c), 0) || math.IsNaN(real(c)) || math.IsNaN(imag(c)) {
-			return t.errf(t.recStart, "value pair %d of the point at frequency %s is too large", p+1, tsFmtNum(v[0]))
+			mag := math.Exp(vals[2*p] * (math.Ln10 / 20)) // 10^(dB/20)
+			if mag > math.MaxFloat64 {
+				return t.errf(t.recStart, "value pair %d of the point at frequency %s: %s dB is too large", p+1, tsFmtNum(v[0]), tsFmtNum(vals[2*p]))
+			}
+			pairs[p] = tsPolar(mag, vals[2*p+1])
 		}
 	}
 	switch {
