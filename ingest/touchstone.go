@@ -35,6 +35,12 @@ import (
 //     declared but absent, conversions that need a complex reference.
 //   - The second and later option lines are ignored, as the specification
 //     says. Comments ("!" to end of line) may hold any bytes.
+//   - Lenient only where nothing is lost: version-2 data without a
+//     [Network Data] line (the specification's own example 2 omits it) or
+//     without [Number of Frequencies]; a complex reference impedance kept
+//     for S-parameters (Network.Z0Complex). Vendor comments (a simulator's
+//     "Port Impedance" lines) are comments: the reference impedances are
+//     the option line's R or [Reference].
 
 // maxTouchstonePorts bounds the port count so that a corrupt header cannot
 // ask for gigabytes; the largest real files seen have a few dozen ports.
@@ -92,6 +98,7 @@ type tsReader struct {
 	format      string // DB, MA, RI
 	r           []complex128
 	order       string // 21_12 or 12_21, 2-port only
+	orderSet    bool   // [Two-Port Data Order] seen
 	matrix      string // full, lower, upper
 	reference   []float64
 	refLine     int
@@ -315,7 +322,7 @@ func (t *tsReader) keyword(b []byte) error {
 		if t.ports != 2 {
 			return t.errf(t.line, "[Two-Port Data Order] in a %d-port file: it applies to 2 ports only", t.ports)
 		}
-		t.order = a
+		t.order, t.orderSet = a, true
 	case "number of frequencies":
 		v, err := count()
 		if err != nil {
@@ -746,6 +753,11 @@ func (t *tsReader) begin() error {
 		}
 		if t.refPending {
 			return t.errf(t.line, "[Reference] at line %d gives %d of the %d reference impedances", t.refLine, len(t.reference), t.ports)
+		}
+		if t.ports == 2 && !t.orderSet {
+			// S21 and S12 would be a guess: the specification makes the
+			// keyword required for version-2 2-port files.
+			return t.errf(t.line, "a version-2 2-port file needs [Two-Port Data Order] (12_21 or 21_12) before its data")
 		}
 	}
 	// The reference impedance of each port.

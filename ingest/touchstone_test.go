@@ -631,6 +631,7 @@ func TestTouchstoneErrors(t *testing.T) {
 		{"option line after the data", "a.s1p", "1 0 0\n# Hz S RI R 50\n", 2, "option line after the network data began (line 1)"},
 		{"[Noise Data] first", "a.ts", "[Version] 2.0\n# GHz S RI\n[Number of Ports] 2\n[Noise Data]\n1 1 0.5 0 20\n", 4, "before any network data"},
 		{"huge declared counts", "a.ts", "[Version] 2.0\n# GHz Y RI\n[Number of Ports] 1000\n[Number of Frequencies] 100000\n[Network Data]\n1 0 0\n", 6, "has 3 of its 2000001 values"},
+		{"2-port version 2 without data order", "a.ts", "[Version] 2.0\n# GHz S RI\n[Number of Ports] 2\n[Network Data]\n1 0 0 0 0 0 0 0 0\n", 5, "needs [Two-Port Data Order]"},
 		{"two-port order in a 1-port file", "a.ts", v2 + "[Two-Port Data Order] 12_21\n", 4, "2 ports only"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
