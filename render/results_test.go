@@ -373,3 +373,35 @@ func TestEncodeIndentedMarshaler(t *testing.T) {
 		t.Errorf("got %s\nwant %s", got, want)
 	}
 }
+
+// Any input either is refused with a *ingest.Problem or parses into a unit
+// that encodes again and renders to a workbook, without a panic.
+func FuzzParseResultJSON(f *testing.F) {
+	u := fixtureUnit(f, 2, 4)
+	u.Beams[0].LimitCurves = []reduce.LimitCurve{{Name: "L", Quantity: "gt", Start: 1, LimitDB: []float64{1, 2}}}
+	seed, err := ResultJSON(u)
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(seed)
+	f.Add([]byte(`{"schema":1,"serial":"S","beams":[{"id":"b","frequency_hz":[1e9,2e9],"gt_db_per_k":[null,1]}]}`))
+	f.Add([]byte(`{"schema":1,"serial":"S","beams":[{"frequency_hz":[1],"limit_curves":[{"start":-1,"limit_db":[1]}]}]}`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		got, err := ParseResultJSON(data)
+		if err != nil {
+			var p *ingest.Problem
+			if !errors.As(err, &p) {
+				t.Fatalf("error %v is not an *ingest.Problem", err)
+			}
+			return
+		}
+		if _, err := ResultJSON(got); err != nil {
+			t.Fatalf("parsed unit does not encode: %v", err)
+		}
+		if len(got.Beams) <= 4 && len(data) < 4096 {
+			if _, err := UnitWorkbook(got); err != nil {
+				t.Logf("workbook refused: %v", err) // an error is allowed, a panic is not
+			}
+		}
+	})
+}
