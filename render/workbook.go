@@ -19,8 +19,9 @@ import (
 )
 
 // Workbooks: the unit workbook (units/<serial>/<serial>.xlsx) and the fleet
-// workbook (fleet.xlsx). Values are stored at full float64 precision and
-// shown with a number format; a non-finite value is an empty cell. The
+// workbook (fleet.xlsx). Values are stored to 15 significant digits (the
+// precision of a spreadsheet number) and shown with a number format; a
+// non-finite value is an empty cell. The
 // files are deterministic: fixed document properties, fixed zip entry
 // times, sheets and styles created in a fixed order.
 
@@ -124,7 +125,7 @@ func newXLBook(title, subject string, created time.Time) *xlBook {
 	b.check(b.f.SetDocProps(&excelize.DocProperties{
 		Title: title, Subject: subject, Creator: "gtpack", LastModifiedBy: "gtpack",
 		Created: stamp, Modified: stamp, Version: Version, Language: "en",
-		Description: "Written by gtpack " + Version + " from reduced results; values at full precision, shown rounded.",
+		Description: "Written by gtpack " + Version + " from reduced results; values to 15 significant digits, shown rounded.",
 	}))
 	b.check(b.f.SetAppProps(&excelize.AppProperties{Application: "gtpack", Company: ""}))
 	var err error
@@ -227,7 +228,7 @@ func truncateRunes(s string, n int) string {
 	return string(r)
 }
 
-// ref is an absolute range reference to xlColumn col (1-based) rows r0..r1
+// xlRef is an absolute range reference to column col (1-based) rows r0..r1
 // of sheet, for chart series.
 func xlRef(sheet string, col, r0, r1 int) string {
 	c, _ := excelize.ColumnNumberToName(col)
@@ -269,7 +270,7 @@ func (b *xlBook) set(sheet string, col, row int, v any) {
 	b.check(b.f.SetCellValue(sheet, xlCell(col, row), v))
 }
 
-// setRow writes values from xlColumn 1 of row.
+// setRow writes values from column 1 of row.
 func (b *xlBook) setRow(sheet string, row int, values ...any) {
 	for i, v := range values {
 		b.set(sheet, i+1, row, v)
@@ -286,7 +287,7 @@ func (b *xlBook) setNum(sheet string, col, row int, v float64, format string) {
 	b.check(b.f.SetCellStyle(sheet, c, c, b.numStyle(format)))
 }
 
-// xlColumn is one xlColumn of a table: its header, number format (empty for
+// xlColumn is one column of a table: its header, number format (empty for
 // text) and width.
 type xlColumn struct {
 	header string
@@ -294,7 +295,7 @@ type xlColumn struct {
 	width  float64
 }
 
-// table starts a table at row: header cells, xlColumn formats and widths,
+// table starts a table at row: header cells, column formats and widths,
 // and frozen rows above the data when freeze is true. Data rows follow from
 // row+1. Column formats are set before the data so that every value
 // written later takes them.
@@ -320,7 +321,7 @@ func (b *xlBook) table(sheet string, row int, cols []xlColumn, freeze bool) {
 	}
 }
 
-// verdictColours colours verdict cells in rangeRef by conditional
+// verdictRules colours the verdict cells in rangeRef by conditional
 // formatting, one rule per verdict.
 func (b *xlBook) verdictRules(sheet, rangeRef string) {
 	var opts []excelize.ConditionalFormatOptions
@@ -563,7 +564,7 @@ func sameGrid(a, b []float64) bool {
 	return true
 }
 
-// beamColumn is a xlColumn of a beam sheet: values from index start of the
+// beamColumn is a column of a beam sheet: values from index start of the
 // grid.
 type beamColumn struct {
 	xlColumn
