@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/xuri/excelize/v2"
+	"gonum.org/v1/gonum/interp"
 
 	"gtpack.example/gtpack/reduce"
 )
@@ -431,7 +432,7 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 
 	gtValues := make([]string, len(u.Beams))
 	for i := range u.Beams {
-		gtValues[i] = writeBeamSheet(b, beamSheets[i], &u.Beams[i])
+		gtValues[i] = writeBeamSheet(b, beamSheets[i], &u.Beams[i], u.Limits)
 	}
 	writeSummary(b, summary, u, beamSheets, gtValues)
 	writeLimitsSheet(b, limits, u.Limits)
@@ -572,10 +573,72 @@ type beamColumn struct {
 	start  int
 }
 
+// beamLimitCurves are the limits on a beam's grid: Beam.LimitCurves when
+// reduce filled them, otherwise the limit lines of the beam's limit results
+// (LimitResult.LimitCurve, the vertices of reduce's piecewise-linear limit
+// over the judged band) evaluated at the grid points of that band. The
+// vertices include the band edges and every interior point of the limit,
+// so the line through them is the limit itself.
+func beamLimitCurves(bm *reduce.Beam, limits []reduce.LimitResult) []reduce.LimitCurve {
+	if len(bm.LimitCurves) > 0 {
+		return bm.LimitCurves
+	}
+	var out []reduce.LimitCurve
+	for _, l := range limits {
+		if l.Beam != bm.ID || len(l.LimitCurve) == 0 {
+			continue
+		}
+		if c, ok := curveOnGrid(bm.FrequencyHz, l); ok {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// curveOnGrid evaluates a limit's vertices at the grid points inside its
+// band; a grid point within 1e-9 (relative) of a band edge counts as inside,
+// as reduce judges it.
+func curveOnGrid(grid []float64, l reduce.LimitResult) (reduce.LimitCurve, bool) {
+	v := l.LimitCurve
+	lo, hi := v[0].FrequencyHz, v[len(v)-1].FrequencyHz
+	tol := 1e-9 * math.Max(math.Abs(lo), math.Abs(hi))
+	xs := make([]float64, len(v))
+	ys := make([]float64, len(v))
+	for i, p := range v {
+		xs[i], ys[i] = p.FrequencyHz, p.ValueDB
+	}
+	var line interp.PiecewiseLinear
+	single := len(v) == 1
+	if !single {
+		if err := line.Fit(xs, ys); err != nil {
+			return reduce.LimitCurve{}, false
+		}
+	}
+	c := reduce.LimitCurve{Name: l.Name, Quantity: l.Quantity, Start: -1}
+	for k, f := range grid {
+		if f < lo-tol || f > hi+tol {
+			if c.Start >= 0 {
+				break
+			}
+			continue
+		}
+		if c.Start < 0 {
+			c.Start = k
+		}
+		if single {
+			c.LimitDB = append(c.LimitDB, ys[0])
+		} else {
+			c.LimitDB = append(c.LimitDB, line.Predict(f)) // constant beyond the end vertices
+		}
+	}
+	return c, c.Start >= 0
+}
+
 // beamColumns lists the columns of a beam sheet. The limit and margin
-// columns exist only where reduce filled Beam.LimitCurves; the margin is
-// the quantity minus the limit, the definition of method.md section 7.
-func beamColumns(bm *reduce.Beam) []beamColumn {
+// columns exist only where reduce gave the limit on the beam (see
+// beamLimitCurves); the margin is the quantity minus the limit, the
+// definition of method.md section 7.
+func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 	cols := []beamColumn{
 		{xlColumn{"Frequency (GHz)", nfGHz, 14}, nil, 0},
 		{xlColumn{"S21 (dB)", nfDB, 11}, bm.S21DB, 0},
@@ -591,7 +654,7 @@ func beamColumns(bm *reduce.Beam) []beamColumn {
 		freq[k] = toGHz(f)
 	}
 	cols[0].values = freq
-	for _, c := range bm.LimitCurves {
+	for _, c := range beamLimitCurves(bm, limits) {
 		unit := quantityUnit(c.Quantity)
 		x := bm.GTdBPerK
 		if c.Quantity == "gain" {
@@ -625,8 +688,8 @@ func beamColumns(bm *reduce.Beam) []beamColumn {
 // writeBeamSheet writes the frequency table and the G/T chart of a beam and
 // returns the range of its G/T values for the Summary chart ("" when the
 // beam has no frequencies).
-func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam) string {
-	cols := beamColumns(bm)
+func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.LimitResult) string {
+	cols := beamColumns(bm, limits)
 	n := len(bm.FrequencyHz)
 	gt := ""
 	// The chart goes in first: the stream writer below writes the sheet's

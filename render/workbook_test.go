@@ -384,7 +384,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 
 // checkBeamSheet compares every 50th frequency row with the beam's values.
 func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
-	cols := beamColumns(bm)
+	cols := beamColumns(bm, nil)
 	n := len(bm.FrequencyHz)
 	if len(s.Rows) != n+1 {
 		t.Fatalf("%d rows, want %d", len(s.Rows), n+1)
@@ -793,5 +793,77 @@ func TestWorkbookTextIsNotFormula(t *testing.T) {
 	}
 	if d.Sheets[2].Title != "Beam +1" {
 		t.Errorf("sheet %q, want \"Beam +1\"", d.Sheets[2].Title)
+	}
+}
+
+// Without Beam.LimitCurves the limit columns come from the limit results'
+// vertices: a two-vertex line over part of the band and a three-vertex line
+// over all of it. The expected values are straight-line interpolation
+// between the vertices, written out by hand.
+func TestBeamLimitFromVertices(t *testing.T) {
+	u := fixtureUnit(t, 1, 101) // 10.7 to 12.75 GHz in 20.5 MHz steps
+	bm := &u.Beams[0]
+	bm.LimitCurves = nil
+	u.Limits = []reduce.LimitResult{
+		{Name: "narrow", Quantity: "gt", Beam: "b00", Statistic: "min", Verdict: "pass",
+			LimitCurve: []reduce.LimitVertex{{FrequencyHz: 11.0e9, ValueDB: 2.0}, {FrequencyHz: 12.0e9, ValueDB: 2.5}}},
+		{Name: "wide", Quantity: "gt", Beam: "b00", Statistic: "mean", Verdict: "pass",
+			LimitCurve: []reduce.LimitVertex{{FrequencyHz: 10.7e9, ValueDB: 2.0}, {FrequencyHz: 11.725e9, ValueDB: 3.0}, {FrequencyHz: 12.75e9, ValueDB: 2.6}}},
+		{Name: "other beam", Quantity: "gt", Beam: "b09", LimitCurve: []reduce.LimitVertex{{FrequencyHz: 11e9, ValueDB: 1}, {FrequencyHz: 12e9, ValueDB: 1}}},
+	}
+	narrow := func(f float64) (float64, bool) {
+		if f < 11.0e9*(1-1e-9) || f > 12.0e9*(1+1e-9) {
+			return 0, false
+		}
+		return 2.0 + 0.5*(f-11.0e9)/1e9, true
+	}
+	wide := func(f float64) (float64, bool) {
+		if f <= 11.725e9 {
+			return 2.0 + 1.0*(f-10.7e9)/1.025e9, true
+		}
+		return 3.0 - 0.4*(f-11.725e9)/1.025e9, true
+	}
+	data, err := UnitWorkbook(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := readWorkbook(t, data)
+	s := d.sheet(t, "Beam b00")
+	for i, c := range []struct {
+		name string
+		fn   func(float64) (float64, bool)
+	}{{"narrow", narrow}, {"wide", wide}} {
+		lc, mc := 9+2*i, 10+2*i
+		if s.cell(1, lc) != "Limit "+c.name+" (dB/K)" || s.cell(1, mc) != "Margin "+c.name+" (dB)" {
+			t.Fatalf("headers %v %v", s.cell(1, lc), s.cell(1, mc))
+		}
+		inside := 0
+		for k, f := range bm.FrequencyHz {
+			want, ok := c.fn(f)
+			got := s.cell(k+2, lc)
+			if !ok {
+				if got != nil {
+					t.Errorf("%s at %g Hz = %v, want empty", c.name, f, got)
+				}
+				continue
+			}
+			inside++
+			if g, _ := got.(float64); math.Abs(g-want) > 1e-9 {
+				t.Errorf("%s at %g Hz = %v, want %v", c.name, f, got, want)
+			}
+			if g, _ := s.cell(k+2, mc).(float64); math.Abs(g-(bm.GTdBPerK[k]-want)) > 1e-9 {
+				t.Errorf("%s margin at %g Hz = %v, want %v", c.name, f, g, bm.GTdBPerK[k]-want)
+			}
+		}
+		// 11.0 to 12.0 GHz holds the grid points 15 (11.0075 GHz) to 63 (11.9915 GHz).
+		if want := map[string]int{"narrow": 49, "wide": 101}[c.name]; inside != want {
+			t.Errorf("%s covers %d points, want %d", c.name, inside, want)
+		}
+	}
+	if len(s.Rows[0]) > 14 && s.cell(1, 13) == "Limit other beam (dB/K)" {
+		t.Error("a limit of another beam shows on b00")
+	}
+	if len(s.Charts) != 1 || len(s.Charts[0].Series) != 3 {
+		t.Errorf("chart series %+v, want G/T and two limits", s.Charts)
 	}
 }
