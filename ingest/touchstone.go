@@ -124,6 +124,7 @@ type tsReader struct {
 	net      *Network
 	dataLine int          // line of the first network data
 	pairs    []complex128 // the values of one point as complex numbers
+	lineVals []float64    // the numbers of the current line
 	ws       []complex128 // scratch matrices for conversion
 }
 
@@ -846,31 +847,17 @@ func (t *tsReader) data(line []byte) error {
 		t.recStart, t.recLines, t.recFirst = t.line, 1, 0
 		t.recByte = t.consumed - int64(len(line))
 	}
-	col := 0
-	i := 0
+	vals, bad := tsScanLine(b, t.lineVals[:0])
+	t.lineVals = vals
 	rec := t.rec
-	for i < len(b) {
-		v, n, ok := tsScan(b[i:])
-		tok := b[i : i+n]
-		i += n
-		for i < len(b) && tsSpaceTab[b[i]] {
-			i++
-		}
-		col++
+	for col, v := range vals {
 		if len(rec) == 0 {
-			if col > 1 {
-				// The point ended inside this line.
-				return t.errf(t.line, "line has %d values but the point that began at line %d needed only %d of them: %s; a new point starts on a new line",
-					len(bytes.Fields(line)), t.recStart, col-1, t.describeRecord())
-			}
-			if !ok {
-				return t.errf(t.line, "%q is not a number: expected a frequency (%s)", tsClip(string(tok)), t.describeRecord())
+			if col > 0 {
+				return t.tooMany(line, col)
 			}
 			if err := t.checkFrequency(v); err != nil {
 				return err
 			}
-		} else if !ok {
-			return t.errf(t.line, "value %d on the line, %q, is not a number", col, tsClip(string(tok)))
 		}
 		rec = append(rec, v)
 		if len(rec) == t.recLen {
@@ -882,10 +869,95 @@ func (t *tsReader) data(line []byte) error {
 		}
 	}
 	t.rec = rec
+	if bad >= 0 {
+		tok := bytes.Fields(line)[bad]
+		switch {
+		case len(rec) == 0 && bad > 0:
+			return t.tooMany(line, bad)
+		case len(rec) == 0:
+			return t.errf(t.line, "%q is not a number: expected a frequency (%s)", tsClip(string(tok)), t.describeRecord())
+		default:
+			return t.errf(t.line, "value %d on the line, %q, is not a number", bad+1, tsClip(string(tok)))
+		}
+	}
 	if !continuing {
-		t.recFirst = col
+		t.recFirst = len(vals)
 	}
 	return nil
+}
+
+// tooMany reports a line that goes on after its point ended, used values
+// of it being the point's.
+func (t *tsReader) tooMany(line []byte, used int) error {
+	return t.errf(t.line, "line has %d values but the point that began at line %d needed only %d of them: %s; a new point starts on a new line",
+		len(bytes.Fields(line)), t.recStart, used, t.describeRecord())
+}
+
+// tsScanLine appends the numbers of a line (which starts with a token) to
+// dst. It stops at the first token that is not a number and returns its
+// index, or -1. The common form, [sign]digits[.digits], is parsed here
+// without a call; everything else goes through tsScan.
+func tsScanLine(b []byte, dst []float64) ([]float64, int) {
+	i := 0
+	for i < len(b) {
+		j := i
+		neg := false
+		if b[j] == '-' || b[j] == '+' {
+			neg = b[j] == '-'
+			j++
+		}
+		var mant uint64
+		s := j
+		for j < len(b) && b[j]-'0' <= 9 {
+			mant = mant*10 + uint64(b[j]-'0')
+			j++
+		}
+		nd, exp := j-s, 0
+		if j < len(b) && b[j] == '.' {
+			j++
+			fs := j
+			for j+8 <= len(b) {
+				w := binary.LittleEndian.Uint64(b[j:])
+				if w&0xF0F0F0F0F0F0F0F0 != 0x3030303030303030 || (w+0x0606060606060606)&0xF0F0F0F0F0F0F0F0 != 0x3030303030303030 {
+					break
+				}
+				w = (w & 0x0F0F0F0F0F0F0F0F) * 2561 >> 8
+				w = (w & 0x00FF00FF00FF00FF) * 6553601 >> 16
+				w = (w & 0x0000FFFF0000FFFF) * 42949672960001 >> 32
+				mant = mant*100000000 + w
+				j += 8
+			}
+			for j < len(b) && b[j]-'0' <= 9 {
+				mant = mant*10 + uint64(b[j]-'0')
+				j++
+			}
+			nd += j - fs
+			exp = fs - j
+		}
+		if nd > 0 && nd <= 19 && mant <= 1<<53 && exp >= -22 && (j == len(b) || tsSpaceTab[b[j]]) {
+			// Clinger's fast path, as in tsScan.
+			v := float64(mant)
+			if exp < 0 {
+				v /= tsPow10[-exp]
+			}
+			if neg {
+				v = -v
+			}
+			dst = append(dst, v)
+			i = j
+		} else {
+			v, n, ok := tsScan(b[i:])
+			if !ok {
+				return dst, len(dst)
+			}
+			dst = append(dst, v)
+			i += n
+		}
+		for i < len(b) && tsSpaceTab[b[i]] {
+			i++
+		}
+	}
+	return dst, -1
 }
 
 // checkFrequency runs before a new record starts with value f. It also

@@ -3,6 +3,7 @@ package ingest
 import (
 	"bytes"
 	"fmt"
+	"math"
 	"math/cmplx"
 	"math/rand/v2"
 	"os"
@@ -103,22 +104,26 @@ func TestTouchstoneBenchHelper(t *testing.T) {
 			t.Fatal(err)
 		}
 		// CPU time of this process, not wall time: the machine is shared,
-		// and scikit-rf is timed the same way.
-		reads := 0
-		start, wall := cpuSeconds(), time.Now()
-		for reads < 5 || time.Since(wall) < time.Second {
-			f, err := os.Open(p)
-			if err != nil {
-				t.Fatal(err)
+		// and scikit-rf is timed the same way. The best of five batches of
+		// at least 0.3 s each is kept, as other load only ever adds time.
+		per := math.Inf(1)
+		for batch := 0; batch < 5; batch++ {
+			reads := 0
+			start, wall := cpuSeconds(), time.Now()
+			for reads < 3 || time.Since(wall) < 300*time.Millisecond {
+				f, err := os.Open(p)
+				if err != nil {
+					t.Fatal(err)
+				}
+				n, err := ReadTouchstone(f, filepath.Base(p))
+				f.Close()
+				if err != nil || len(n.FrequencyHz) != 10000 {
+					t.Fatalf("%s: %v", p, err)
+				}
+				reads++
 			}
-			n, err := ReadTouchstone(f, filepath.Base(p))
-			f.Close()
-			if err != nil || len(n.FrequencyHz) != 10000 {
-				t.Fatalf("%s: %v", p, err)
-			}
-			reads++
+			per = min(per, (cpuSeconds()-start)/float64(reads))
 		}
-		per := (cpuSeconds() - start) / float64(reads)
 		fmt.Printf("gtpack %s %d %.6g\n", filepath.Base(p), st.Size(), per)
 	}
 }

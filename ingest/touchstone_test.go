@@ -940,6 +940,12 @@ func TestTouchstoneNumbers(t *testing.T) {
 		if v, ok := tsParseNumber([]byte(s)); ok {
 			t.Errorf("%q accepted as %v", s, v)
 		}
+		if s == "" {
+			continue
+		}
+		if vals, bad := tsScanLine([]byte("1.5 "+s+" 2"), nil); bad != 1 || len(vals) != 1 || vals[0] != 1.5 {
+			t.Errorf("line with %q: got %v, bad token %d; want [1.5] and 1", s, vals, bad)
+		}
 	}
 	rng := rand.New(rand.NewPCG(9, 10))
 	for k := 0; k < 200000; k++ {
@@ -956,6 +962,11 @@ func TestTouchstoneNumbers(t *testing.T) {
 			got, ok := tsParseNumber([]byte(s))
 			if !ok || math.Float64bits(got) != math.Float64bits(want) {
 				t.Fatalf("%s: got %v (%v), want %v", s, got, ok, want)
+			}
+			// The line scanner's inline path must agree too.
+			line, bad := tsScanLine([]byte(s+" \t"+s), nil)
+			if bad != -1 || len(line) != 2 || math.Float64bits(line[0]) != math.Float64bits(want) || math.Float64bits(line[1]) != math.Float64bits(want) {
+				t.Fatalf("line %q: got %v (bad %d), want %v twice", s+" "+s, line, bad, want)
 			}
 		}
 	}

@@ -2,8 +2,8 @@
 # Throughput of the Touchstone reader against scikit-rf 0.15.4 on the same
 # files: 2-port, 10,000 points, RI, MA and DB. Prints MB/s of both and the
 # ratio. Both sides count CPU time of their process per read (the machine
-# may be shared), each file read from disk several times for at least a
-# second. Run from anywhere inside the repository.
+# may be shared), each file read from disk in five batches, the best batch
+# kept. Run from anywhere inside the repository.
 set -eu
 root=$(cd "$(dirname "$0")/../.." && pwd)
 py=/usr/bin/python3
