@@ -799,6 +799,9 @@ func TestWriteTouchstoneRefusals(t *testing.T) {
 		{"unknown unit", three, TouchstoneFormat{FrequencyUnit: "THz"}, "expected Hz, kHz, MHz or GHz"},
 		{"version 3", three, TouchstoneFormat{Version: 3}, "expected 1 or 2"},
 		{"no points", &Network{Ports: 1, Z0: []float64{50}}, TouchstoneFormat{}, "no frequency points"},
+		{"noise for 3 ports", &Network{Ports: 3, Z0: []float64{50, 50, 50}, FrequencyHz: []float64{1}, S: make([]complex128, 9), Noise: []NoisePoint{{FrequencyHz: 1}}}, TouchstoneFormat{}, "noise parameters need 2 ports"},
+		{"NaN noise", &Network{Ports: 2, Z0: []float64{50, 50}, FrequencyHz: []float64{1}, S: make([]complex128, 4), Noise: []NoisePoint{{FrequencyHz: 1, MinNoiseFigureDB: math.NaN()}}}, TouchstoneFormat{}, "noise point 0"},
+		{"decreasing frequency", &Network{Ports: 1, Z0: []float64{50}, FrequencyHz: []float64{2, 1}, S: make([]complex128, 2)}, TouchstoneFormat{}, "not above the previous"},
 		{"Z of a short", &Network{Ports: 1, Z0: []float64{50}, FrequencyHz: []float64{1}, S: []complex128{1}}, TouchstoneFormat{Parameter: "Z"}, "singular"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -244,6 +244,16 @@ func tsCheckNetwork(n *Network) error {
 			return fmt.Errorf("touchstone: an S value is not finite")
 		}
 	}
+	if len(n.Noise) > 0 && N != 2 {
+		return fmt.Errorf("touchstone: noise parameters need 2 ports, the network has %d", N)
+	}
+	for k, p := range n.Noise {
+		bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }
+		if bad(p.FrequencyHz) || p.FrequencyHz < 0 || (k > 0 && p.FrequencyHz <= n.Noise[k-1].FrequencyHz) ||
+			bad(p.MinNoiseFigureDB) || cmplx.IsNaN(p.GammaOpt) || cmplx.IsInf(p.GammaOpt) || bad(p.EffectiveNoiseResistanceOhm) {
+			return fmt.Errorf("touchstone: noise point %d is not finite or its frequency is not above the previous one", k)
+		}
+	}
 	return nil
 }
 
