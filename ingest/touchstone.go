@@ -1022,7 +1022,7 @@ func (t *tsReader) completeRecord() error {
 		}
 		return nil
 	}
-	if t.ports <= 2 && t.recLines > 1 && t.recFirst == 3 && t.ports != 1 {
+	if t.ports == 2 && !t.inNoise && t.recLines > 1 && t.recFirst == 3 {
 		// A wrapped 2-port point whose first line is exactly a 1-port
 		// point is a 1-port file under a 2-port name.
 		return t.errf(t.recStart, "line has 3 values, a 1-port frequency point, where %s", t.describeRecord())
