@@ -2,6 +2,7 @@ package reduce
 
 import (
 	"fmt"
+	"gonum.org/v1/gonum/floats"
 	"math"
 
 	"gtpack.example/gtpack/ingest"
@@ -320,11 +321,14 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 				o.DifferenceDB[i] = gtDensity[i] - gtFigure[i]
 				o.MaxAbsDifferenceDB = math.Max(o.MaxAbsDifferenceDB, math.Abs(o.DifferenceDB[i]))
 			}
+			if n > 0 {
+				o.MeanDifferenceDB = floats.Sum(o.DifferenceDB) / float64(n)
+			}
 			b.OtherForm = o
-			if ctx.methodTolDB > 0 && o.MaxAbsDifferenceDB > ctx.methodTolDB {
+			if ctx.methodTolDB > 0 && math.Abs(o.MeanDifferenceDB) > ctx.methodTolDB {
 				out.flags = append(out.flags, Flag{Kind: "method", Beam: rb.ID, Message: fmt.Sprintf(
-					"the two G/T forms differ by up to %.3f dB, more than the station's method tolerance %.3f dB",
-					o.MaxAbsDifferenceDB, ctx.methodTolDB)})
+					"the two G/T forms differ by %.3f dB on average over the band (up to %.3f dB at one point), more than the station's method tolerance %.3f dB",
+					o.MeanDifferenceDB, o.MaxAbsDifferenceDB, ctx.methodTolDB)})
 			}
 		}
 	case gtFigure != nil:

@@ -262,6 +262,11 @@ func judgeBeam(l *ingest.Limit, cache *limitCache, rule string, b *Beam) (*Limit
 			}
 		}
 	}
+	curveDB := make([]float64, len(idx))
+	for k, i := range idx {
+		curveDB[k] = limAt[i] + law
+	}
+	b.LimitCurves = append(b.LimitCurves, LimitCurve{Name: l.Name, Quantity: l.Quantity, Start: idx[0], LimitDB: curveDB})
 	f := b.FrequencyHz
 	tol := gridTolerance * hi
 	if f[0] > lo+tol || f[len(f)-1] < hi-tol {

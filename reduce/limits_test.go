@@ -123,6 +123,18 @@ func TestEvaluateLimits(t *testing.T) {
 	if res[2].Verdict != VerdictConditionalFail {
 		t.Errorf("gain: verdict %s, want conditional-fail", res[2].Verdict)
 	}
+	// The per-frequency limit of b00's G/T limit covers points 2..8 of the band 10.2..10.8 GHz:
+	// 1.5 + 0.09i at point i (by hand, from the vertices above).
+	if len(beams[0].LimitCurves) == 0 {
+		t.Fatal("b00 has no per-frequency limit curves")
+	}
+	lc := beams[0].LimitCurves[0]
+	if lc.Name != "GT bore" || lc.Start != 2 || len(lc.LimitDB) != 7 {
+		t.Fatalf("b00 limit curve %+v, want GT bore from point 2 with 7 points", lc)
+	}
+	for k, v := range lc.LimitDB {
+		near(t, "b00 limit on the grid", v, 1.5+0.09*float64(k+2), 1e-9)
+	}
 	near(t, "gain margin", res[2].WorstMarginDB, -0.125, 1e-12)
 	wantProblems := []string{
 		`specs/p.yaml:30: limit "Short" not judged: limit points span 10 GHz to 10.5 GHz but the band is 10 GHz to 11 GHz`,

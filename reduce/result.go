@@ -130,6 +130,11 @@ type OtherForm struct {
 	GTdBPerK           []float64 `json:"gt_db_per_k"`
 	DifferenceDB       []float64 `json:"difference_db"` // GTdBPerK(main) - GTdBPerK(other)
 	MaxAbsDifferenceDB float64   `json:"max_abs_difference_db"`
+	// MeanDifferenceDB is the band mean of DifferenceDB: the systematic
+	// disagreement of the two forms, which the station's method tolerance
+	// judges. The point-to-point scatter of two independent noise traces
+	// would otherwise decide the flag.
+	MeanDifferenceDB float64 `json:"mean_difference_db"`
 }
 
 // NoiseStatistics describes one noise trace of a beam.

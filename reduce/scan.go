@@ -223,6 +223,11 @@ func diagOnto(xs, ys, at []float64) []float64 {
 		}
 		return out
 	}
+	if sameGrid(xs, at) {
+		// Beams of one run usually share a grid: nothing to interpolate.
+		copy(out, ys)
+		return out
+	}
 	var pl interp.PiecewiseLinear
 	_ = pl.Fit(xs, ys) // cannot fail: checked by diagTraceUsable
 	for j, x := range at {

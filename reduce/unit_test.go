@@ -195,6 +195,12 @@ func TestReduceUnitMethodFlagAndProjection(t *testing.T) {
 	for i := range nf.Values {
 		nf.Values[i] += 0.5
 	}
+	// The noise-figure trace of b00 carries +/-0.4 dB of point-to-point scatter with zero mean:
+	// above the tolerance at single points, but no systematic disagreement, so no flag.
+	nf0 := in.Data.Beams[0].Noise[1]
+	for i := range nf0.Values {
+		nf0.Values[i] += 0.4 * float64(1-2*(i%2))
+	}
 	// A passive gain and an operating antenna temperature make a projection; the ambient term
 	// then leaves the G/T budget (method.md section 6: "when no projection is made").
 	in.Spec.OperatingAntennaK = fp(50)
@@ -211,6 +217,11 @@ func TestReduceUnitMethodFlagAndProjection(t *testing.T) {
 	}
 	near(t, "b01 form difference", u.Beams[1].OtherForm.MaxAbsDifferenceDB, 0.5, 1e-9)
 	near(t, "b01 difference sign (main - other)", u.Beams[1].OtherForm.DifferenceDB[0], 0.5, 1e-9)
+	near(t, "b01 mean difference", u.Beams[1].OtherForm.MeanDifferenceDB, 0.5, 1e-9)
+	near(t, "b00 largest single-point difference", u.Beams[0].OtherForm.MaxAbsDifferenceDB, 0.4, 1e-9)
+	if m := u.Beams[0].OtherForm.MeanDifferenceDB; math.Abs(m) > 0.01 {
+		t.Errorf("b00 mean difference %.4f dB, want about 0 (zero-mean scatter)", m)
+	}
 	hasAmbient := func(b Budget) bool {
 		for _, term := range b.Terms {
 			if strings.HasPrefix(term.Name, "Ambient temperature") {
