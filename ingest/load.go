@@ -31,6 +31,9 @@ import (
 // range_reference.parameter (S21 by default) for every transmission file
 // of the run; for a 2-port file AntennaMatch is |S_ii| of the receiving
 // port i of S_ij (|S22| for S21).
+//
+// Load only reads the archive and a, so several goroutines may call it at
+// once.
 func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 	l := &loader{fs: newArchiveFS(a.Root), run: r, inputs: map[string]InputFile{}}
 	d := &RunData{Beams: make([]BeamData, len(r.Beams))}
