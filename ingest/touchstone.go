@@ -812,7 +812,11 @@ func (t *tsReader) begin() error {
 	if t.nfreq > 0 {
 		// Trust the declared count only as far as a modest allocation:
 		// a corrupt header must not reserve gigabytes.
-		c := min(t.nfreq, 1<<20/(t.ports*t.ports)+1)
+		c := min(t.nfreq, 1<<16/(t.ports*t.ports)+1)
+		if t.sizeHint > 0 {
+			// A point takes at least two bytes a value.
+			c = min(c, int(t.sizeHint/int64(2*(1+2*t.ports*t.ports)))+1)
+		}
 		n.FrequencyHz = make([]float64, 0, c)
 		n.S = make([]complex128, 0, c*t.ports*t.ports)
 	}
