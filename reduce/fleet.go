@@ -86,10 +86,18 @@ type GoldenBand struct {
 	LowDB  []float64 `json:"low_db_per_k"`
 	HighDB []float64 `json:"high_db_per_k"`
 	Units  int       `json:"units"`
+	// SmoothingPoints is the width of the centred moving average applied
+	// to every unit's trace, and to the band's half-width, before the band
+	// and the watch list are made: point-to-point measurement scatter
+	// would otherwise put every unit on the watch list somewhere.
+	SmoothingPoints int `json:"smoothing_points"`
 }
 
 // WatchEntry is a passing unit whose boresight G/T leaves the band.
 type WatchEntry struct {
 	Serial        string    `json:"serial"`
 	FrequenciesHz []float64 `json:"frequencies_hz"`
+	// RangesHz groups FrequenciesHz into runs of neighbouring grid points,
+	// [first, last] each.
+	RangesHz [][2]float64 `json:"ranges_hz"`
 }

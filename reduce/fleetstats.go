@@ -210,6 +210,7 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 		return nil, watch
 	}
 	grid := traced[0].Boresight.FrequencyHz
+	smooth := bandSmoothingPoints(len(grid))
 	// on[i][k] is unit i's G/T at grid[k]; NaN outside its span.
 	on := make([][]float64, len(traced))
 	for i, u := range traced {
@@ -227,8 +228,9 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 		for j, v := range diagOnto(fs, gt, inside) {
 			on[i][at[j]] = v
 		}
+		on[i] = movingAverageNaN(on[i], smooth)
 	}
-	band := &GoldenBand{Units: len(traced)}
+	band := &GoldenBand{Units: len(traced), SmoothingPoints: smooth}
 	var kept []int
 	for k, g := range grid {
 		var col []float64
@@ -251,19 +253,37 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 	if len(kept) == 0 {
 		return nil, watch
 	}
+	// The per-frequency MAD of a handful of units scatters as much as the
+	// traces do: smooth the half-width over the same window.
+	half := make([]float64, len(kept))
+	for j := range kept {
+		half[j] = (band.HighDB[j] - band.LowDB[j]) / 2
+	}
+	half = movingAverageNaN(half, smooth)
+	for j := range kept {
+		band.LowDB[j], band.HighDB[j] = band.MedianDB[j]-half[j], band.MedianDB[j]+half[j]
+	}
 	for i, u := range traced {
 		if u.Verdict != VerdictPass && u.Verdict != VerdictConditionalPass {
 			continue
 		}
 		var out []float64
+		var ranges [][2]float64
+		prev := -2
 		for j, k := range kept {
 			v := on[i][k]
 			if !math.IsNaN(v) && (v < band.LowDB[j] || v > band.HighDB[j]) {
 				out = append(out, grid[k])
+				if j == prev+1 {
+					ranges[len(ranges)-1][1] = grid[k]
+				} else {
+					ranges = append(ranges, [2]float64{grid[k], grid[k]})
+				}
+				prev = j
 			}
 		}
 		if len(out) > 0 {
-			watch = append(watch, WatchEntry{Serial: u.Serial, FrequenciesHz: out})
+			watch = append(watch, WatchEntry{Serial: u.Serial, FrequenciesHz: out, RangesHz: ranges})
 		}
 	}
 	return band, watch
@@ -308,4 +328,40 @@ func fleetTestBefore(a, b *UnitSummary) bool {
 		return false
 	}
 	return a.Started < b.Started
+}
+
+// bandSmoothingPoints is the moving-average width used for the golden
+// band: about 1/40 of the grid, odd, at least 1 (801 points: 21).
+func bandSmoothingPoints(n int) int {
+	w := n / 40
+	if w%2 == 0 {
+		w++
+	}
+	return w
+}
+
+// movingAverageNaN is a centred moving average of width w (odd) that skips
+// NaN values and shrinks at the ends; a NaN input stays NaN.
+func movingAverageNaN(x []float64, w int) []float64 {
+	if w <= 1 {
+		return x
+	}
+	out := make([]float64, len(x))
+	h := w / 2
+	for i := range x {
+		if math.IsNaN(x[i]) {
+			out[i] = math.NaN()
+			continue
+		}
+		var s float64
+		var n int
+		for j := max(0, i-h); j <= min(len(x)-1, i+h); j++ {
+			if !math.IsNaN(x[j]) {
+				s += x[j]
+				n++
+			}
+		}
+		out[i] = s / float64(n)
+	}
+	return out
 }

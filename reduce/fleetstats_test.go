@@ -216,6 +216,10 @@ func TestFleetGoldenBandAndWatch(t *testing.T) {
 		}
 	}
 
+	if r := p.Watch[0].RangesHz; len(r) != 1 || math.Abs(r[0][0]-11.3e9) > 1 || math.Abs(r[0][1]-11.5e9) > 1 {
+		t.Errorf("U04 watch ranges %v, want one range 11.3 to 11.5 GHz", r)
+	}
+
 	// Units out in serial order, without boresight traces.
 	for i, u := range f.Units {
 		if u.Serial != fmt.Sprintf("U%02d", i) || u.Boresight != nil {
@@ -282,5 +286,40 @@ func BenchmarkComputeFleet(b *testing.B) {
 	}
 	for b.Loop() {
 		ComputeFleet(us)
+	}
+}
+
+// On a fine grid the traces and the band are smoothed (1/40 of the grid):
+// point-to-point scatter alone puts no unit on the watch list, a shift over
+// a stretch of the band does, as one range.
+func TestFleetWatchIgnoresPointScatter(t *testing.T) {
+	fs := gridHz(10, 12, 0.0025) // 801 points: window 21
+	var us []UnitSummary
+	for u := range 8 {
+		tr := &BoresightTrace{Beam: "b00"}
+		for k, f := range fs {
+			// Each unit: a small offset and +/-0.3 dB alternating scatter, zero mean.
+			scatter := 0.3 * float64(1-2*((k+u)%2))
+			tr.FrequencyHz = append(tr.FrequencyHz, f)
+			tr.GTdBPerK = append(tr.GTdBPerK, 3+0.02*float64(u%4)+scatter)
+		}
+		us = append(us, UnitSummary{Serial: fmt.Sprintf("W%02d", u), Product: "P", Verdict: VerdictPass,
+			Started: fmt.Sprintf("2026-10-%02dT08:00:00Z", 1+u), Boresight: tr})
+	}
+	// W05 is 1 dB low from 11.0 to 11.25 GHz (points 400..500).
+	for k := 400; k <= 500; k++ {
+		us[5].Boresight.GTdBPerK[k] -= 1
+	}
+	p := ComputeFleet(us).Products[0]
+	if p.Band == nil || p.Band.SmoothingPoints != 21 {
+		t.Fatalf("band %+v, want one smoothed over 21 points", p.Band)
+	}
+	if len(p.Watch) != 1 || p.Watch[0].Serial != "W05" || len(p.Watch[0].RangesHz) != 1 {
+		t.Fatalf("watch %+v, want W05 alone with one range", p.Watch)
+	}
+	r := p.Watch[0].RangesHz[0]
+	// The smoothed step leaves the band within half a window of its edges.
+	if r[0] < 10.97e9 || r[0] > 11.03e9 || r[1] < 11.22e9 || r[1] > 11.28e9 {
+		t.Errorf("W05 watched from %.4g to %.4g Hz, want about 11.0 to 11.25 GHz", r[0], r[1])
 	}
 }

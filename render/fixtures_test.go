@@ -389,7 +389,7 @@ func fixtureFleet(t testing.TB) *reduce.Fleet {
 	}
 	fl.Products = []reduce.ProductFleet{
 		{Product: "KU-PANEL-16", Units: n, VerdictCounts: verdicts, Limits: []reduce.LimitStats{gt, stats("Gain at boresight", gainMs)},
-			Band: band, Watch: []reduce.WatchEntry{{Serial: serials[3], FrequenciesHz: []float64{12.1e9, 12.2e9}}}},
+			Band: band, Watch: []reduce.WatchEntry{{Serial: serials[3], FrequenciesHz: []float64{12.1e9, 12.2e9, 12.4e9}, RangesHz: [][2]float64{{12.1e9, 12.2e9}, {12.4e9, 12.4e9}}}}},
 		{Product: "X-BAND-4", Units: 1, VerdictCounts: map[string]int{reduce.VerdictFail: 1},
 			Limits: []reduce.LimitStats{{Name: "G/T at boresight", Units: 1, Passed: 0, Yield: 0, MeanMarginDB: -0.31,
 				Chart: reduce.ControlChart{Serials: []string{"XB4-00001"}, Started: []string{"2026-11-20T10:00:00Z"}, ValuesDB: []float64{-0.31}, CentreDB: -0.31, UpperDB: -0.31, LowerDB: -0.31}}},

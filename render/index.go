@@ -283,5 +283,5 @@ func bandChart(id string, b *reduce.GoldenBand) (chartSpec, error) {
 		charts.WithLineStyleOpts(opts.LineStyle{Color: "#1b4f72", Width: 2}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#1b4f72"}))
 	opt, err := finish(c, map[string]any{"unit": "dB/K", "bandName": "half-width of the band"}, nil)
 	return chartSpec{ID: id, Title: "Golden band of boresight G/T", Height: 300, Option: opt,
-		Caption: fmt.Sprintf("Median boresight G/T of %d units per frequency, with the band median ± 3 × 1.4826 × MAD; a passing unit that leaves it is on the watch list.", b.Units)}, err
+		Caption: fmt.Sprintf("Median boresight G/T of %d units per frequency, with the band median ± 3 × 1.4826 × MAD, every trace and the band's half-width smoothed over %d points; a passing unit that leaves it is on the watch list.", b.Units, b.SmoothingPoints)}, err
 }

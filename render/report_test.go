@@ -409,7 +409,7 @@ func TestIndex(t *testing.T) {
 		"<td class=\"num\">95.8 %</td>",
 		fmt.Sprintf("<td class=\"num\">%s</td>", fmtFixed(gt.MeanMarginDB/(3*gt.StdMarginDB), 2)),
 		"KP16-00010 (-0.80 dB, z = -5.2)",
-		"<td>KP16-00004</td><td>12.1, 12.2</td>",
+		"<td>KP16-00004</td><td>12.1 to 12.2, 12.4</td>", // ranges of neighbouring points, a single point alone
 		`<span class="tag v-pass">PASS</span><b>21</b>`,
 		`<span class="tag v-fail">FAIL</span><b>2</b>`,
 		"(1 unit)",

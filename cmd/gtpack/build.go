@@ -151,7 +151,7 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	var built, skipped, incomplete, failed int
 	for out := range outcomes {
 		for _, p := range out.problems {
-			prog.println(p.Error())
+			prog.println(fmt.Sprintf("%s (unit %s)", p.Error(), out.serial))
 			refused = true
 		}
 		switch {
