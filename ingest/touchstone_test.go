@@ -243,7 +243,8 @@ func TestReadTouchstoneCorpus(t *testing.T) {
 	}
 }
 
-func readCorpusFile(t *testing.T, name string) *Network {
+// corpusBytes returns a corpus file's content by base name.
+func corpusBytes(t *testing.T, name string) []byte {
 	t.Helper()
 	matches, _ := filepath.Glob(filepath.Join(corpusDir, "*", name))
 	if len(matches) != 1 {
@@ -252,12 +253,16 @@ func readCorpusFile(t *testing.T, name string) *Network {
 		}
 		t.Skipf("corpus file %s missing", name)
 	}
-	f, err := os.Open(matches[0])
+	data, err := os.ReadFile(matches[0])
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer f.Close()
-	n, err := ReadTouchstone(f, name)
+	return data
+}
+
+func readCorpusFile(t *testing.T, name string) *Network {
+	t.Helper()
+	n, err := ReadTouchstone(bytes.NewReader(corpusBytes(t, name)), name)
 	if err != nil {
 		t.Fatalf("%s: %v", name, err)
 	}
@@ -480,9 +485,7 @@ func TestTouchstoneSpecExamples(t *testing.T) {
 		{"ex_16.ts", "mixed-mode data is not supported"},
 	} {
 		t.Run(tc.name+" refused", func(t *testing.T) {
-			p, _ := filepath.Glob(filepath.Join(corpusDir, "*", tc.name))
-			data, _ := os.ReadFile(p[0])
-			_, err := ReadTouchstone(bytes.NewReader(data), tc.name)
+			_, err := ReadTouchstone(bytes.NewReader(corpusBytes(t, tc.name)), tc.name)
 			var prob *Problem
 			if !errors.As(err, &prob) || !strings.Contains(prob.Message, tc.msg) {
 				t.Errorf("got %v, want a *Problem saying %q", err, tc.msg)
@@ -492,17 +495,14 @@ func TestTouchstoneSpecExamples(t *testing.T) {
 	t.Run("ex_3 reads once the noise declaration goes", func(t *testing.T) {
 		// Without the declaration, ex_3 is valid: order 21_12 puts the
 		// second pair in S21 (EXPECTED.md: S11=111, S21=121, S12=112, S22=122).
-		p, _ := filepath.Glob(filepath.Join(corpusDir, "*", "ex_3.ts"))
-		data, _ := os.ReadFile(p[0])
-		data = bytes.Replace(data, []byte("[Number of Noise Frequencies] 2"), nil, 1)
+		data := bytes.Replace(corpusBytes(t, "ex_3.ts"), []byte("[Number of Noise Frequencies] 2"), nil, 1)
 		n, err := ReadTouchstone(bytes.NewReader(data), "ex_3.ts")
 		if err != nil {
 			t.Fatal(err)
 		}
 		for k, base := range []float64{100, 200} {
-			for i, ij := range [][2]int{{1, 1}, {1, 2}, {2, 1}, {2, 2}} {
+			for _, ij := range [][2]int{{1, 1}, {1, 2}, {2, 1}, {2, 2}} {
 				w := base + 11 + float64(10*(ij[0]-1)+ij[1]-1)
-				_ = i
 				check(fmt.Sprintf("k%d S%d%d", k, ij[0], ij[1]), n.At(k, ij[0]-1, ij[1]-1), complex(w, 0))
 			}
 		}
