@@ -271,8 +271,9 @@ func readCorpusFile(t *testing.T, name string) *Network {
 
 func ma(mag, deg float64) complex128 { return cmplx.Rect(mag, deg*math.Pi/180) }
 
-// zFromS returns Z in ohms from S and real z0, by the formula independent
-// of the reader's: Z = D^-1 (I - S)^-1 (I + S) D^-1 for 1 port written out.
+// z1FromS is the 1-port impedance in ohms of reflection s at reference z0,
+// Z = z0 (1 + s) / (1 - s) (general knowledge), written out independently
+// of the reader's matrix code.
 func z1FromS(s complex128, z0 float64) complex128 { return complex(z0, 0) * (1 + s) / (1 - s) }
 
 // TestTouchstoneSpecExamples checks the version-2 (and version-1) examples
