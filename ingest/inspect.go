@@ -121,9 +121,9 @@ func inspectCSV(path string, data []byte) (string, any, error) {
 	}
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s: trace CSV, value column %q, %d points from %s to %s\n", path, t.Column, len(t.FrequencyHz), ghzText(t.FrequencyHz[0]), ghzText(t.FrequencyHz[len(t.FrequencyHz)-1]))
-	fmt.Fprintf(&b, "%16s  %s\n", "frequency_hz", t.Column)
+	fmt.Fprintf(&b, "%14s  %s\n", "frequency_ghz", t.Column)
 	for i, f := range t.FrequencyHz {
-		fmt.Fprintf(&b, "%16.10g  %.10g\n", f, t.Values[i])
+		fmt.Fprintf(&b, "%14.9f  %.10g\n", f/1e9, t.Values[i])
 	}
 	return b.String(), traceJSON{Kind: "trace", File: t.File, Column: t.Column, FrequencyHz: t.FrequencyHz, Values: t.Values}, nil
 }
@@ -154,7 +154,7 @@ func describeNetwork(path string, n *Network) string {
 		b.WriteString("as a transmission file: S21 in dB, |S22|\n")
 		for k, f := range n.FrequencyHz {
 			s21, s22 := cmplx.Abs(n.At(k, 1, 0)), cmplx.Abs(n.At(k, 1, 1))
-			fmt.Fprintf(&b, "%16.10g  %10.4f dB  %.4f\n", f, 20*math.Log10(s21), s22)
+			fmt.Fprintf(&b, "%14.9f  %10.4f dB  %.4f\n", f/1e9, 20*math.Log10(s21), s22)
 		}
 	} else {
 		b.WriteString("one port only: not usable as a transmission file (needs at least 2 ports)\n")
@@ -248,9 +248,9 @@ func tableJSON(t []ReferencePoint) []tablePointJSON {
 }
 
 func writeTable(b *strings.Builder, t []ReferencePoint) {
-	fmt.Fprintf(b, "%16s %10s %10s\n", "frequency_hz", "gain_dbi", "U_db")
+	fmt.Fprintf(b, "%14s %10s %10s\n", "frequency_ghz", "gain_dbi", "U_db")
 	for _, p := range t {
-		fmt.Fprintf(b, "%16.10g %10.4f %10.4f\n", p.FrequencyHz, p.GainDBi, p.ExpandedUncertaintyDB)
+		fmt.Fprintf(b, "%14.9f %10.4f %10.4f\n", p.FrequencyHz/1e9, p.GainDBi, p.ExpandedUncertaintyDB)
 	}
 }
 
