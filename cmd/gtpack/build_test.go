@@ -275,3 +275,79 @@ func TestShardOfIsFNV1a(t *testing.T) {
 		}
 	}
 }
+
+// `check` on the broken archive lists one problem per broken unit as
+// file:line: message, and exits 1; `build` still builds every unit.
+func TestCheckAndBuildBrokenArchive(t *testing.T) {
+	var out, errb bytes.Buffer
+	if code := run([]string{"check", "../../testdata/broken"}, &out, &errb); code != exitRefused {
+		t.Fatalf("check exited %d, want %d\n%s%s", code, exitRefused, out.String(), errb.String())
+	}
+	want := []string{
+		"units/BRK-DECREASING/b00-noise.csv:5: ",
+		"units/BRK-EMPTY/b00-noise.csv: ",
+		"units/BRK-ESCAPE/run.yaml:14: ",
+		"units/BRK-LINK/run.yaml:14: ",
+		"units/BRK-MISSING/run.yaml:16: ",
+		"units/BRK-PORTS/run.yaml:14: ",
+		"units/BRK-TEXT/b00.csv:4: ",
+		"units/BRK-TRUNCATED/b00-noise.csv:7: ",
+		"units/BRK-UNKNOWN-KEY/run.yaml:9: ",
+	}
+	lines := strings.Split(strings.TrimSpace(out.String()), "\n")
+	if len(lines) != len(want)+1 {
+		t.Fatalf("check printed %d lines, want %d problems and a count:\n%s", len(lines), len(want), out.String())
+	}
+	for i, w := range want {
+		if !strings.HasPrefix(lines[i], w) {
+			t.Errorf("problem %d: %q, want it to start with %q", i, lines[i], w)
+		}
+	}
+
+	site := filepath.Join(t.TempDir(), "site")
+	out.Reset()
+	errb.Reset()
+	if code := run([]string{"build", "../../testdata/broken", "-o", site, "--quiet"}, &out, &errb); code != exitRefused {
+		t.Fatalf("build exited %d, want %d (inputs refused, the rest built)", code, exitRefused)
+	}
+	if _, err := os.Stat(filepath.Join(site, "units", "BRK-GOOD", "report.html")); err != nil {
+		t.Fatalf("the good unit of the broken archive was not built: %v", err)
+	}
+	var res struct {
+		Verdict  string `json:"verdict"`
+		Problems []struct {
+			File string `json:"file"`
+			Line int    `json:"line"`
+		} `json:"problems"`
+	}
+	data, err := os.ReadFile(filepath.Join(site, "units", "BRK-DECREASING", "result.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &res); err != nil {
+		t.Fatal(err)
+	}
+	if res.Verdict != "incomplete" || len(res.Problems) == 0 ||
+		res.Problems[0].File != "units/BRK-DECREASING/b00-noise.csv" || res.Problems[0].Line != 5 {
+		t.Errorf("BRK-DECREASING result: verdict %s, problems %+v; want incomplete with b00-noise.csv:5 first", res.Verdict, res.Problems)
+	}
+}
+
+// Two builds of sample-archive/ are byte-identical (the site contract's
+// determinism, on the committed sample).
+func TestSampleArchiveBuildsAreIdentical(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the sample archive twice")
+	}
+	a := filepath.Join(t.TempDir(), "a")
+	b := filepath.Join(t.TempDir(), "b")
+	if code := runQuiet(t, "build", "../../sample-archive", "-o", a, "--quiet"); code != exitOK {
+		t.Fatalf("build of sample-archive exited %d", code)
+	}
+	runQuiet(t, "build", "../../sample-archive", "-o", b, "--quiet")
+	da := siteDigest(t, a)
+	if len(da) != 8*3+5 {
+		t.Errorf("sample site has %d files, want 8 units x 3 files + 5 fleet files", len(da))
+	}
+	sameSite(t, "two builds of sample-archive", da, siteDigest(t, b))
+}
