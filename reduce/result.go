@@ -168,8 +168,10 @@ type BudgetTerm struct {
 	Distribution string  `json:"distribution"`
 	Divisor      float64 `json:"divisor"`
 	// ValueDB is the stated value (expanded U, or half-width) per point;
-	// StandardDB is ValueDB/Divisor.
-	ValueDB    []float64 `json:"value_db"`
+	// StandardDB is ValueDB/Divisor. result.json leaves ValueDB out, as it
+	// follows from the two fields it keeps; render.ParseResultJSON puts it
+	// back as StandardDB*Divisor.
+	ValueDB    []float64 `json:"-"`
 	StandardDB []float64 `json:"standard_db"`
 }
 

@@ -11,6 +11,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
@@ -62,11 +63,30 @@ func ParseResultJSON(data []byte) (*reduce.Unit, error) {
 		if err := checkBeamLengths(&u.Beams[i]); err != nil {
 			return nil, ingest.Problemf(file, 0, "beams[%d] (%q): %v", i, u.Beams[i].ID, err)
 		}
+		restoreBudgetValues(&u.Beams[i].GainBudget)
+		restoreBudgetValues(&u.Beams[i].GTBudget)
 	}
 	if err := checkUnitShapes(u); err != nil {
 		return nil, ingest.Problemf(file, 0, "%v", err)
 	}
 	return u, nil
+}
+
+// restoreBudgetValues fills each term's stated values, which result.json
+// leaves out because they follow from what it keeps: reduce makes
+// StandardDB = |ValueDB| / Divisor, so ValueDB = StandardDB * Divisor (the
+// stated values are magnitudes, never negative).
+func restoreBudgetValues(b *reduce.Budget) {
+	for i := range b.Terms {
+		t := &b.Terms[i]
+		if t.StandardDB == nil {
+			continue
+		}
+		t.ValueDB = make([]float64, len(t.StandardDB))
+		for k, s := range t.StandardDB {
+			t.ValueDB[k] = s * t.Divisor
+		}
+	}
 }
 
 // checkUnitShapes verifies the scan and element lists against their own
@@ -162,16 +182,29 @@ func checkBudgetLengths(b *reduce.Budget, n int) error {
 	return nil
 }
 
-// encodeIndented writes v as JSON with two-space indentation (the layout of
-// json.MarshalIndent(v, "", "  ")) and a final newline; non-finite floats
-// become null.
+// encodeIndented writes v as JSON indented by two spaces per level (the
+// layout of json.MarshalIndent(v, "", "  ")), except that a list of
+// numbers or booleans stands on one line, and with a final newline;
+// numbers are rounded as appendJSONFloat says, non-finite floats become
+// null.
 func encodeIndented(v any) ([]byte, error) {
-	b, err := appendJSON(make([]byte, 0, 1<<16), reflect.ValueOf(v), 0)
+	scratch := jsonScratch.Get().(*[]byte)
+	defer jsonScratch.Put(scratch)
+	b, err := appendJSON((*scratch)[:0], reflect.ValueOf(v), 0)
 	if err != nil {
 		return nil, err
 	}
-	return append(b, '\n'), nil
+	*scratch = b[:0]
+	out := make([]byte, len(b)+1)
+	copy(out, b)
+	out[len(b)] = '\n'
+	return out, nil
 }
+
+// jsonScratch holds the buffers results are encoded into: a result.json
+// of 16 beams is some 4 MB, and growing a fresh buffer to that size by
+// doubling cost more than the encoding.
+var jsonScratch = sync.Pool{New: func() any { return new([]byte) }}
 
 // appendNewline starts a new line indented to depth.
 func appendNewline(b []byte, depth int) []byte {
@@ -182,10 +215,16 @@ func appendNewline(b []byte, depth int) []byte {
 	return b
 }
 
+var (
+	jsonMarshaler    = reflect.TypeFor[json.Marshaler]()
+	float64SliceType = reflect.TypeFor[[]float64]()
+)
+
 // appendJSON encodes like encoding/json (field names and omitempty from
-// the json tags, map keys sorted, the same float format), indented at
-// depth, except that a non-finite float is null and a nil slice or map
-// outside omitempty is an empty list or object.
+// the json tags, map keys sorted), indented at depth, except that a
+// non-finite float is null, a nil slice or map outside omitempty is an
+// empty list or object, a list of scalars (numbers, booleans) is written
+// on one line, and floats are rounded (appendJSONFloat).
 func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
 	// A type with its own JSON form (none in the model today) keeps it.
 	if k := v.Kind(); (k == reflect.Struct || k == reflect.Pointer && !v.IsNil()) && v.Type().Implements(jsonMarshaler) {
@@ -244,6 +283,23 @@ func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
 		if v.Kind() == reflect.Slice && v.Type().Elem().Kind() == reflect.Uint8 {
 			return nil, fmt.Errorf("render: byte slices are not part of the result model")
 		}
+		if v.Type() == float64SliceType {
+			// The bulk of a result: per-frequency lists, without reflection.
+			return appendFloatList(b, v.Interface().([]float64)), nil
+		}
+		if isScalarKind(v.Type().Elem().Kind()) {
+			b = append(b, '[')
+			for i := 0; i < v.Len(); i++ {
+				if i > 0 {
+					b = append(b, ',', ' ')
+				}
+				var err error
+				if b, err = appendJSON(b, v.Index(i), depth+1); err != nil {
+					return nil, err
+				}
+			}
+			return append(b, ']'), nil
+		}
 		b = append(b, '[')
 		for i := 0; i < v.Len(); i++ {
 			if i > 0 {
@@ -294,12 +350,32 @@ func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
 	case reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
 		return strconv.AppendUint(b, v.Uint(), 10), nil
 	case reflect.Float32, reflect.Float64:
-		return appendJSONFloat(b, v.Float(), v.Type().Bits()), nil
+		return appendJSONFloat(b, v.Float()), nil
 	}
 	return nil, fmt.Errorf("render: cannot encode %s as JSON", v.Type())
 }
 
-var jsonMarshaler = reflect.TypeFor[json.Marshaler]()
+// isScalarKind says whether a list of this kind is written on one line.
+func isScalarKind(k reflect.Kind) bool {
+	switch k {
+	case reflect.Bool, reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint16, reflect.Uint32, reflect.Uint64, reflect.Float32, reflect.Float64:
+		return true
+	}
+	return false
+}
+
+// appendFloatList writes a list of floats on one line.
+func appendFloatList(b []byte, xs []float64) []byte {
+	b = append(b, '[')
+	for i, x := range xs {
+		if i > 0 {
+			b = append(b, ',', ' ')
+		}
+		b = appendJSONFloat(b, x)
+	}
+	return append(b, ']')
+}
 
 // jsonField reads a struct field's json tag.
 func jsonField(sf reflect.StructField) (name string, omitEmpty, skip bool) {
@@ -333,33 +409,74 @@ func isEmptyValue(v reflect.Value) bool {
 }
 
 func appendJSONString(b []byte, s string) []byte {
-	q, _ := json.Marshal(s) // a string always marshals; HTML characters are escaped
-	return append(b, q...)
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c < 0x20 || c >= 0x7f || c == '"' || c == '\\' || c == '<' || c == '>' || c == '&' {
+			q, _ := json.Marshal(s) // a string always marshals; HTML characters are escaped
+			return append(b, q...)
+		}
+	}
+	b = append(b, '"')
+	b = append(b, s...)
+	return append(b, '"')
 }
 
-// appendJSONFloat formats f as encoding/json does ('f' in [1e-6, 1e21),
-// otherwise 'e' with a short exponent); null when not finite.
-func appendJSONFloat(b []byte, f float64, bits int) []byte {
+// appendJSONFloat writes f rounded to 6 decimal places, in the shortest
+// form of the rounded value, without exponent: 1e-6 dB (or degree, or
+// kelvin) is far below the uncertainty of any range measurement (tenths of
+// a dB), and the full float64 digits tripled the size of result.json.
+// From 1e9 up (frequencies in Hz) 6 decimals would be finer than a float64
+// holds, so there the value is rounded to 15 significant digits instead,
+// which makes a frequency grid computed in floating point come out as the
+// whole hertz it stands for. A value of 1e21 or more, which the model does
+// not hold, is written as encoding/json writes it. NaN and infinities are
+// null.
+func appendJSONFloat(b []byte, f float64) []byte {
 	if math.IsNaN(f) || math.IsInf(f, 0) {
 		return append(b, "null"...)
 	}
 	abs := math.Abs(f)
-	format := byte('f')
-	if abs != 0 {
-		if bits == 64 && (abs < 1e-6 || abs >= 1e21) || bits == 32 && (float32(abs) < 1e-6 || float32(abs) >= 1e21) {
-			format = 'e'
+	switch {
+	case abs < 1<<53 && f == math.Trunc(f):
+		// A whole number (a frequency grid in Hz, mostly) is its own
+		// rounding.
+		return strconv.AppendInt(b, int64(f), 10)
+	case abs < 1e9:
+		// n/1e6 with |n| < 1e15 < 2^53: n is exact, and the decimal n/1e6,
+		// of at most 15 significant digits, is the shortest text that reads
+		// back to the float64 nearest it.
+		n := int64(math.Round(f * 1e6))
+		if n == 0 {
+			return append(b, '0')
 		}
-	}
-	b = strconv.AppendFloat(b, f, format, -1, bits)
-	if format == 'e' {
-		// clean up e-09 to e-9
-		n := len(b)
-		if n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
-			b[n-2] = b[n-1]
-			b = b[:n-1]
+		if n < 0 {
+			b = append(b, '-')
+			n = -n
 		}
+		b = strconv.AppendInt(b, n/1e6, 10)
+		frac := n % 1e6
+		if frac == 0 {
+			return b
+		}
+		var d [7]byte
+		d[0] = '.'
+		for i := 6; i >= 1; i-- {
+			d[i] = byte('0' + frac%10)
+			frac /= 10
+		}
+		end := 7
+		for d[end-1] == '0' {
+			end--
+		}
+		return append(b, d[:end]...)
+	case abs < 1e21:
+		var tmp [32]byte
+		r, err := strconv.ParseFloat(string(strconv.AppendFloat(tmp[:0], f, 'e', 14, 64)), 64)
+		if err != nil { // cannot happen: the text was just formatted
+			r = f
+		}
+		return strconv.AppendFloat(b, r, 'f', -1, 64)
 	}
-	return b
+	return strconv.AppendFloat(b, f, 'e', -1, 64)
 }
 
 // decodeWithNaN unmarshals data into v and then sets every float64 that
