@@ -11,6 +11,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/xuri/excelize/v2"
@@ -65,16 +66,21 @@ type xlBook struct {
 	verdictDXF []int
 	used       map[string]bool // lower-case sheet names taken
 	sheets     int
+	// bulk holds the tables written into their sheets at save time, by
+	// sheet name (see xlsxrows.go).
+	bulk map[string]*bulkSheet
 }
 
 // sortedZip is the zip writer given to excelize: it holds the entries
 // until Close and then writes them sorted by name, all with the same
-// modification time. excelize writes streamed sheets in map order, and
-// archive/zip would otherwise leave the time to the caller.
+// modification time, each sheet of book.bulk with its table added.
+// excelize writes streamed sheets in map order, and archive/zip would
+// otherwise leave the time to the caller.
 type sortedZip struct {
 	w        *zip.Writer
 	modified time.Time
 	entries  []*zipEntry
+	book     *xlBook
 }
 
 type zipEntry struct {
@@ -92,8 +98,32 @@ func (z *sortedZip) AddFS(fs.FS) error {
 	return errors.New("render: adding a file system to a workbook is not supported")
 }
 
+// deflaters holds compressors between workbooks: a new one costs more to
+// set up (some 1 MB of tables) than most parts cost to compress.
+var deflaters = sync.Pool{New: func() any {
+	w, _ := flate.NewWriter(io.Discard, flate.BestSpeed) // a valid level never fails
+	return w
+}}
+
+// reusedDeflater is one compressor reset for each part in turn: zip.Writer
+// closes a part's compressor before it starts the next.
+type reusedDeflater struct{ *flate.Writer }
+
 func (z *sortedZip) Close() error {
+	// The fastest deflate level: compression takes most of the time of a
+	// large workbook otherwise; the file is some 25 % larger than at the
+	// default level.
+	d := deflaters.Get().(*flate.Writer)
+	defer deflaters.Put(d)
+	z.w.RegisterCompressor(zip.Deflate, func(out io.Writer) (io.WriteCloser, error) {
+		d.Reset(out)
+		return reusedDeflater{d}, nil
+	})
 	sort.SliceStable(z.entries, func(i, j int) bool { return z.entries[i].name < z.entries[j].name })
+	parts, err := bulkParts(z.book.bulk, z.entries)
+	if err != nil {
+		return err
+	}
 	for i, e := range z.entries {
 		if i > 0 && e.name == z.entries[i-1].name {
 			return fmt.Errorf("render: workbook part %s written twice", e.name)
@@ -102,7 +132,12 @@ func (z *sortedZip) Close() error {
 		if err != nil {
 			return err
 		}
-		if _, err := w.Write(e.data.Bytes()); err != nil {
+		if t := parts[e.name]; t != nil {
+			err = writeBulkSheet(w, e.data.Bytes(), t)
+		} else {
+			_, err = w.Write(e.data.Bytes())
+		}
+		if err != nil {
 			return err
 		}
 	}
@@ -113,14 +148,7 @@ func (z *sortedZip) Close() error {
 func newXLBook(title, subject string, created time.Time) *xlBook {
 	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
 	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
-		zw := zip.NewWriter(w)
-		// The fastest deflate level: compression takes most of the time of
-		// a large workbook otherwise; the file is some 25 % larger than at the
-		// default level.
-		zw.RegisterCompressor(zip.Deflate, func(out io.Writer) (io.WriteCloser, error) {
-			return flate.NewWriter(out, flate.BestSpeed)
-		})
-		return &sortedZip{w: zw, modified: created}
+		return &sortedZip{w: zip.NewWriter(w), modified: created, book: b}
 	})
 	stamp := created.UTC().Format(time.RFC3339)
 	b.check(b.f.SetDocProps(&excelize.DocProperties{
@@ -692,8 +720,6 @@ func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.Li
 	cols := beamColumns(bm, limits)
 	n := len(bm.FrequencyHz)
 	gt := ""
-	// The chart goes in first: the stream writer below writes the sheet's
-	// drawing reference when it is flushed.
 	if n > 0 {
 		// Series names are formulas: they point at the header cells.
 		categories := xlRef(sheet, 1, 2, n+1)
@@ -710,38 +736,23 @@ func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.Li
 	if b.err != nil {
 		return ""
 	}
-	// The frequency table is the bulk of the workbook: it is streamed,
-	// row by row.
-	sw, err := b.f.NewStreamWriter(sheet)
-	if err != nil {
-		b.check(err)
-		return ""
-	}
-	styles := make([]int, len(cols))
-	head := make([]any, len(cols))
+	// The header row, widths and panes through excelize; the frequency
+	// table, the bulk of the workbook, is written at save time.
+	t := &bulkSheet{rows: n, cols: make([]bulkColumn, len(cols))}
 	for i, c := range cols {
-		b.check(sw.SetColWidth(i+1, i+1, c.width))
-		styles[i] = b.numStyle(c.format)
-		head[i] = excelize.Cell{StyleID: b.header, Value: c.header}
+		name := xlCol(i + 1)
+		b.check(b.f.SetColWidth(sheet, name, name, c.width))
+		b.set(sheet, i+1, 1, c.header)
+		t.cols[i] = bulkColumn{values: c.values, start: c.start, style: b.numStyle(c.format)}
 	}
-	b.check(sw.SetPanes(&excelize.Panes{
+	if len(cols) > 0 {
+		b.check(b.f.SetCellStyle(sheet, "A1", xlCell(len(cols), 1), b.header))
+	}
+	b.check(b.f.SetPanes(sheet, &excelize.Panes{
 		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
 		Selection: []excelize.Selection{{SQRef: "A2", ActiveCell: "A2", Pane: "bottomLeft"}},
 	}))
-	b.check(sw.SetRow("A1", head))
-	row := make([]any, len(cols))
-	for k := 0; k < n && b.err == nil; k++ {
-		for ci, c := range cols {
-			v := valueAt(c.values, k-c.start)
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				row[ci] = nil
-			} else {
-				row[ci] = excelize.Cell{StyleID: styles[ci], Value: v}
-			}
-		}
-		b.check(sw.SetRow(xlCell(1, k+2), row))
-	}
-	b.check(sw.Flush())
+	b.addBulk(sheet, t)
 	return gt
 }
 

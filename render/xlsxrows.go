@@ -1,0 +1,263 @@
+package render
+
+import (
+	"bytes"
+	"encoding/xml"
+	"fmt"
+	"io"
+	"math"
+	"path"
+	"strconv"
+	"strings"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// The frequency tables of the beam sheets are most of a unit workbook (16
+// beams x 801 points x some 16 columns: 200,000 cells). excelize spends
+// about 2 us on a cell, through its stream writer as well, so these rows
+// are written here instead: excelize makes the sheet with its header row,
+// widths, panes and chart, and when the package is saved the rows below
+// the header are spliced into that sheet's XML, numbers only, straight
+// into the compressor.
+//
+// A cell that follows the previous one of its row leaves out its r
+// attribute (optional in ECMA-376 Part 1, 18.3.1.4: a reader places such a
+// cell in the next column); a cell after a gap states it.
+
+// bulkSheet is the table of a sheet below its header row: row 2 holds
+// index 0 of every column.
+type bulkSheet struct {
+	cols []bulkColumn
+	rows int
+}
+
+// bulkColumn is one numeric column: values[k-start] is on data row k, an
+// index outside values or a non-finite value is an empty cell.
+type bulkColumn struct {
+	values []float64
+	start  int
+	style  int
+}
+
+// addBulk registers the table of sheet, to be written at save time.
+func (b *xlBook) addBulk(sheet string, t *bulkSheet) {
+	if b.bulk == nil {
+		b.bulk = map[string]*bulkSheet{}
+	}
+	b.bulk[sheet] = t
+}
+
+// bulkParts maps the zip part of each bulk sheet to its table, reading the
+// sheet names and their parts from xl/workbook.xml and its relationships.
+func bulkParts(bulk map[string]*bulkSheet, entries []*zipEntry) (map[string]*bulkSheet, error) {
+	if len(bulk) == 0 {
+		return nil, nil
+	}
+	var workbook, rels []byte
+	for _, e := range entries {
+		switch e.name {
+		case "xl/workbook.xml":
+			workbook = e.data.Bytes()
+		case "xl/_rels/workbook.xml.rels":
+			rels = e.data.Bytes()
+		}
+	}
+	var wb struct {
+		Sheets []struct {
+			Name string `xml:"name,attr"`
+			ID   string `xml:"http://schemas.openxmlformats.org/officeDocument/2006/relationships id,attr"`
+		} `xml:"sheets>sheet"`
+	}
+	if err := xml.Unmarshal(workbook, &wb); err != nil {
+		return nil, fmt.Errorf("render: reading the workbook part: %v", err)
+	}
+	var rs struct {
+		Rel []struct {
+			ID     string `xml:"Id,attr"`
+			Target string `xml:"Target,attr"`
+		} `xml:"Relationship"`
+	}
+	if err := xml.Unmarshal(rels, &rs); err != nil {
+		return nil, fmt.Errorf("render: reading the workbook relationships: %v", err)
+	}
+	target := map[string]string{}
+	for _, r := range rs.Rel {
+		if strings.HasPrefix(r.Target, "/") {
+			target[r.ID] = strings.TrimPrefix(r.Target, "/")
+		} else {
+			target[r.ID] = path.Join("xl", r.Target)
+		}
+	}
+	parts := map[string]*bulkSheet{}
+	for _, s := range wb.Sheets {
+		if t, ok := bulk[s.Name]; ok {
+			parts[target[s.ID]] = t
+		}
+	}
+	if len(parts) != len(bulk) {
+		return nil, fmt.Errorf("render: %d of %d tables have no sheet part", len(bulk)-len(parts), len(bulk))
+	}
+	return parts, nil
+}
+
+// writeBulkSheet writes the sheet XML that excelize made, with the rows of
+// t added after its header row and the dimension widened to cover them.
+func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
+	end := []byte("</sheetData>")
+	at := bytes.Index(sheetXML, end)
+	if at < 0 {
+		return fmt.Errorf("render: sheet part without sheetData")
+	}
+	head, tail := sheetXML[:at], sheetXML[at:]
+	if d := bytes.Index(head, []byte(`<dimension ref="`)); d >= 0 {
+		d += len(`<dimension ref="`)
+		if q := bytes.IndexByte(head[d:], '"'); q >= 0 {
+			last, _ := excelize.CoordinatesToCellName(max(len(t.cols), 1), t.rows+1)
+			if _, err := w.Write(head[:d]); err != nil {
+				return err
+			}
+			if _, err := io.WriteString(w, "A1:"+last); err != nil {
+				return err
+			}
+			head = head[d+q:]
+		}
+	}
+	if _, err := w.Write(head); err != nil {
+		return err
+	}
+	if err := writeBulkRows(w, t); err != nil {
+		return err
+	}
+	_, err := w.Write(tail)
+	return err
+}
+
+// writeBulkRows writes the data rows of t, from row 2, in pieces of some
+// 64 kB.
+func writeBulkRows(w io.Writer, t *bulkSheet) error {
+	// The opening of each column's cell without and with its reference.
+	open := make([]string, len(t.cols))
+	names := make([]string, len(t.cols))
+	for i, c := range t.cols {
+		open[i] = `<c s="` + strconv.Itoa(c.style) + `"><v>`
+		names[i], _ = excelize.ColumnNumberToName(i + 1)
+	}
+	buf := make([]byte, 0, 72<<10)
+	for k := 0; k < t.rows; k++ {
+		row := k + 2
+		buf = append(buf, `<row r="`...)
+		buf = strconv.AppendInt(buf, int64(row), 10)
+		buf = append(buf, `">`...)
+		next := 0
+		for i, c := range t.cols {
+			j := k - c.start
+			if j < 0 || j >= len(c.values) {
+				continue
+			}
+			v := c.values[j]
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				continue
+			}
+			if i == next {
+				buf = append(buf, open[i]...)
+			} else {
+				buf = append(buf, `<c r="`...)
+				buf = append(buf, names[i]...)
+				buf = strconv.AppendInt(buf, int64(row), 10)
+				buf = append(buf, `" s="`...)
+				buf = strconv.AppendInt(buf, int64(c.style), 10)
+				buf = append(buf, `"><v>`...)
+			}
+			buf = appendXLNumber(buf, v)
+			buf = append(buf, `</v></c>`...)
+			next = i + 1
+		}
+		buf = append(buf, `</row>`...)
+		if len(buf) >= 64<<10 {
+			if _, err := w.Write(buf); err != nil {
+				return err
+			}
+			buf = buf[:0]
+		}
+	}
+	_, err := w.Write(buf)
+	return err
+}
+
+// pow10 holds 1e0 to 1e22, the powers of ten a float64 holds exactly;
+// decade[i] is 10^(i-5) for i in 0..20 (from 1e-5, the float64 nearest).
+var pow10, decade = func() (p [23]float64, d [21]float64) {
+	p[0] = 1
+	for i := 1; i < len(p); i++ {
+		p[i] = p[i-1] * 10
+	}
+	for i := range d {
+		if i < 5 {
+			d[i] = 1 / p[5-i]
+		} else {
+			d[i] = p[i-5]
+		}
+	}
+	return p, d
+}()
+
+// appendXLNumber writes a finite v to 15 significant digits (the precision
+// of a spreadsheet number), without trailing zeros. Between 1e-5 and 1e15,
+// where all the tables' values lie, the digits come from one exact scaling
+// and one rounded product: the stored number is within 0.6 units of the
+// 15th digit of v (0.5 when not near a tie). Elsewhere strconv formats it.
+func appendXLNumber(b []byte, v float64) []byte {
+	if v == 0 {
+		return append(b, '0')
+	}
+	a := math.Abs(v)
+	if a < 1e-5 || a >= 1e15 {
+		return strconv.AppendFloat(b, v, 'g', 15, 64)
+	}
+	// e = floor(log10(a)) in -5..14, from the binary exponent, then
+	// corrected against the decades.
+	_, e2 := math.Frexp(a) // a = f * 2^e2, f in [0.5, 1)
+	e := min(max(int(math.Floor(float64(e2-1)*0.30102999566398120)), -5), 14)
+	for e < 14 && a >= decade[e+6] {
+		e++
+	}
+	for e > -5 && a < decade[e+5] {
+		e--
+	}
+	// m holds the 15 significant digits: a * 10^(14-e), 14-e in 0..19.
+	m := int64(math.Round(a * pow10[14-e]))
+	if m >= 1e15 { // rounded up to the next power of ten
+		m /= 10
+		e++
+	}
+	if v < 0 {
+		b = append(b, '-')
+	}
+	var d [15]byte
+	for i := 14; i >= 0; i-- {
+		d[i] = byte('0' + m%10)
+		m /= 10
+	}
+	n := 15
+	for n > 1 && d[n-1] == '0' {
+		n--
+	}
+	switch {
+	case e < 0: // 0.000ddd
+		b = append(b, '0', '.')
+		for i := -1; i > e; i-- {
+			b = append(b, '0')
+		}
+		return append(b, d[:n]...)
+	case e+1 >= n: // a whole number
+		b = append(b, d[:n]...)
+		for i := n; i <= e; i++ {
+			b = append(b, '0')
+		}
+		return b
+	}
+	b = append(b, d[:e+1]...)
+	b = append(b, '.')
+	return append(b, d[e+1:n]...)
+}
