@@ -3,7 +3,6 @@ package render
 import (
 	"archive/zip"
 	"bytes"
-	"compress/flate"
 	"errors"
 	"fmt"
 	"io"
@@ -14,6 +13,7 @@ import (
 	"sync"
 	"time"
 
+	"github.com/klauspost/compress/flate"
 	"github.com/xuri/excelize/v2"
 	"gonum.org/v1/gonum/interp"
 

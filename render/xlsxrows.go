@@ -215,18 +215,19 @@ func appendXLNumber(b []byte, v float64) []byte {
 	if a < 1e-5 || a >= 1e15 {
 		return strconv.AppendFloat(b, v, 'g', 15, 64)
 	}
-	// e = floor(log10(a)) in -5..14, from the binary exponent, then
-	// corrected against the decades.
-	_, e2 := math.Frexp(a) // a = f * 2^e2, f in [0.5, 1)
-	e := min(max(int(math.Floor(float64(e2-1)*0.30102999566398120)), -5), 14)
-	for e < 14 && a >= decade[e+6] {
+	// e = floor(log10(a)) in -5..14: log10(2) is about 78913/2^18, which
+	// gives it from the binary exponent to within one, then the decades
+	// correct it.
+	e2 := int(math.Float64bits(a)>>52&0x7ff) - 1023
+	e := min(max((e2*78913)>>18, -5), 14)
+	if a >= decade[e+6] && e < 14 {
 		e++
-	}
-	for e > -5 && a < decade[e+5] {
+	} else if a < decade[e+5] && e > -5 {
 		e--
 	}
-	// m holds the 15 significant digits: a * 10^(14-e), 14-e in 0..19.
-	m := int64(math.Round(a * pow10[14-e]))
+	// m holds the 15 significant digits: a * 10^(14-e), 14-e in 0..19,
+	// rounded half up (a * 10^(14-e) < 1e15, where adding 0.5 is exact).
+	m := int64(a*pow10[14-e] + 0.5)
 	if m >= 1e15 { // rounded up to the next power of ten
 		m /= 10
 		e++
@@ -235,10 +236,8 @@ func appendXLNumber(b []byte, v float64) []byte {
 		b = append(b, '-')
 	}
 	var d [15]byte
-	for i := 14; i >= 0; i-- {
-		d[i] = byte('0' + m%10)
-		m /= 10
-	}
+	putDigits(d[7:15], uint32(m%1e8), 8)
+	putDigits(d[0:7], uint32(m/1e8), 7)
 	n := 15
 	for n > 1 && d[n-1] == '0' {
 		n--
@@ -260,4 +259,23 @@ func appendXLNumber(b []byte, v float64) []byte {
 	b = append(b, d[:e+1]...)
 	b = append(b, '.')
 	return append(b, d[e+1:n]...)
+}
+
+const digitPairs = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
+	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +
+	"8081828384858687888990919293949596979899"
+
+// putDigits writes the last n decimal digits of x into d[:n], two at a
+// time.
+func putDigits(d []byte, x uint32, n int) {
+	i := n
+	for i >= 2 {
+		r := x % 100
+		x /= 100
+		d[i-1], d[i-2] = digitPairs[2*r+1], digitPairs[2*r]
+		i -= 2
+	}
+	if i == 1 {
+		d[0] = byte('0' + x%10)
+	}
 }
