@@ -736,24 +736,34 @@ func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.Li
 	if b.err != nil {
 		return ""
 	}
-	// The header row, widths and panes through excelize; the frequency
-	// table, the bulk of the workbook, is written at save time.
-	t := &bulkSheet{rows: n, cols: make([]bulkColumn, len(cols))}
+	// Widths and panes through excelize; the header row and the frequency
+	// table, the bulk of the workbook, are written at save time.
+	t := &bulkSheet{first: 1, n: n, width: len(cols), rows: [][]bulkCell{make([]bulkCell, len(cols))},
+		cols: make([]bulkColumn, len(cols))}
 	for i, c := range cols {
-		name := xlCol(i + 1)
-		b.check(b.f.SetColWidth(sheet, name, name, c.width))
-		b.set(sheet, i+1, 1, c.header)
+		t.rows[0][i] = textCell(c.header, b.header)
 		t.cols[i] = bulkColumn{values: c.values, start: c.start, style: b.numStyle(c.format)}
 	}
-	if len(cols) > 0 {
-		b.check(b.f.SetCellStyle(sheet, "A1", xlCell(len(cols), 1), b.header))
-	}
+	b.colWidths(sheet, cols)
 	b.check(b.f.SetPanes(sheet, &excelize.Panes{
 		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
 		Selection: []excelize.Selection{{SQRef: "A2", ActiveCell: "A2", Pane: "bottomLeft"}},
 	}))
 	b.addBulk(sheet, t)
 	return gt
+}
+
+// colWidths sets the widths of a beam sheet's columns, one call for each
+// run of equal widths.
+func (b *xlBook) colWidths(sheet string, cols []beamColumn) {
+	for i := 0; i < len(cols); {
+		j := i + 1
+		for j < len(cols) && cols[j].width == cols[i].width {
+			j++
+		}
+		b.check(b.f.SetColWidth(sheet, xlCol(i+1), xlCol(j), cols[i].width))
+		i = j
+	}
 }
 
 func writeLimitsSheet(b *xlBook, sheet string, limits []reduce.LimitResult) {
@@ -811,12 +821,16 @@ func nearestIndex(grid []float64, f float64) int {
 }
 
 func writeUncertaintySheet(b *xlBook, sheet string, u *reduce.Unit) {
-	b.table(sheet, 1, []xlColumn{
+	cols := []xlColumn{
 		{"Beam", "", 9}, {"Budget", "", 8}, {"Frequency (GHz)", nfGHz, 14}, {"Chosen at", "", 30},
 		{"Term", "", 34}, {"Source", "", 9}, {"Distribution", "", 12}, {"Divisor", nfDiv, 9},
 		{"Value (dB)", nfDB, 11}, {"u (dB)", nfDB, 11},
-	}, true)
-	row := 2
+	}
+	b.table(sheet, 1, cols, true)
+	// The rows, one per budget term of every beam, are written at save
+	// time, each number with its column's format.
+	styles := b.columnStyles(cols)
+	t := &bulkSheet{first: 2, width: len(cols)}
 	for i := range u.Beams {
 		bm := &u.Beams[i]
 		for _, part := range []struct {
@@ -828,20 +842,52 @@ func writeUncertaintySheet(b *xlBook, sheet string, u *reduce.Unit) {
 				continue
 			}
 			f := toGHz(bm.FrequencyHz[k])
-			for _, t := range part.bud.Terms {
-				b.setRow(sheet, row, bm.ID, part.name, f, basis, t.Name, t.Source, t.Distribution, t.Divisor,
-					valueAt(t.ValueDB, k), valueAt(t.StandardDB, k))
-				row++
+			for _, tm := range part.bud.Terms {
+				t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis, tm.Name, tm.Source, tm.Distribution, tm.Divisor,
+					valueAt(tm.ValueDB, k), valueAt(tm.StandardDB, k)))
 			}
-			b.setRow(sheet, row, bm.ID, part.name, f, basis, "Combined standard uncertainty u_c", nil, nil, nil,
-				nil, valueAt(part.bud.CombinedDB, k))
-			row++
-			b.setRow(sheet, row, bm.ID, part.name, f, basis,
+			t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis, "Combined standard uncertainty u_c", nil, nil, nil,
+				nil, valueAt(part.bud.CombinedDB, k)))
+			t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis,
 				fmt.Sprintf("Expanded uncertainty U (k = %g)", part.bud.CoverageK), nil, nil, nil,
-				valueAt(part.bud.ExpandedDB, k), nil)
-			row++
+				valueAt(part.bud.ExpandedDB, k), nil))
 		}
 	}
+	b.addBulk(sheet, t)
+}
+
+// columnStyles are the styles of a table's columns: the number format's,
+// or 0 (none) for a text column.
+func (b *xlBook) columnStyles(cols []xlColumn) []int {
+	styles := make([]int, len(cols))
+	for i, c := range cols {
+		if c.format != "" {
+			styles[i] = b.numStyle(c.format)
+		}
+	}
+	return styles
+}
+
+// bulkRow makes a row of cells from values as set writes them: nil, an
+// empty text and a non-finite number are empty cells; numbers (float64,
+// int) take the column's style.
+func bulkRow(styles []int, values ...any) []bulkCell {
+	row := make([]bulkCell, len(values))
+	for i, v := range values {
+		style := 0
+		if i < len(styles) {
+			style = styles[i]
+		}
+		switch x := v.(type) {
+		case float64:
+			row[i] = numCell(x, style)
+		case int:
+			row[i] = numCell(float64(x), style)
+		case string:
+			row[i] = textCell(x, style)
+		}
+	}
+	return row
 }
 
 func writeFlagsSheet(b *xlBook, sheet string, u *reduce.Unit) {

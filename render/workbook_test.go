@@ -921,29 +921,44 @@ func TestAppendXLNumber(t *testing.T) {
 }
 
 // The rows written into a sheet: a cell after an empty one states its
-// reference (ECMA-376 Part 1, 18.3.1.4), the others follow on; the
-// dimension covers the table. Expected XML written out by hand.
+// reference (ECMA-376 Part 1, 18.3.1.4), the others follow on; text is an
+// inline string, escaped for XML 1.0; the dimension covers the table.
+// Expected XML written out by hand.
 func TestWriteBulkSheet(t *testing.T) {
-	tbl := &bulkSheet{rows: 3, cols: []bulkColumn{
-		{values: []float64{10.7, 10.75, 10.8}, style: 3},
-		{values: []float64{1.5, math.NaN(), -2}, style: 4},
-		{values: []float64{7}, start: 1, style: 4},
-	}}
+	tbl := &bulkSheet{first: 2, n: 3, width: 3,
+		rows: [][]bulkCell{
+			{textCell("a<b & c>", 1), {}, textCell(" =SUM(A1) ", 0)},
+			{numCell(math.NaN(), 4), textCell("x\x01y_x0041_\r", 0), numCell(-0.5, 4)},
+		},
+		cols: []bulkColumn{
+			{values: []float64{10.7, 10.75, 10.8}, style: 3},
+			{values: []float64{1.5, math.NaN(), -2}, style: 4},
+			{values: []float64{7}, start: 1, style: 4},
+		}}
 	sheet := []byte(`<worksheet><dimension ref="A1"></dimension><sheetData><row r="1"><c r="A1" t="s"><v>0</v></c></row></sheetData><drawing r:id="rId1"></drawing></worksheet>`)
 	var out bytes.Buffer
 	if err := writeBulkSheet(&out, sheet, tbl); err != nil {
 		t.Fatal(err)
 	}
-	want := `<worksheet><dimension ref="A1:C4"></dimension><sheetData><row r="1"><c r="A1" t="s"><v>0</v></c></row>` +
-		`<row r="2"><c s="3"><v>10.7</v></c><c s="4"><v>1.5</v></c></row>` +
-		`<row r="3"><c s="3"><v>10.75</v></c><c r="C3" s="4"><v>7</v></c></row>` +
-		`<row r="4"><c s="3"><v>10.8</v></c><c s="4"><v>-2</v></c></row>` +
+	want := `<worksheet><dimension ref="A1:C6"></dimension><sheetData><row r="1"><c r="A1" t="s"><v>0</v></c></row>` +
+		`<row r="2"><c s="1" t="inlineStr"><is><t>a&lt;b &amp; c&gt;</t></is></c><c r="C2" t="inlineStr"><is><t xml:space="preserve"> =SUM(A1) </t></is></c></row>` +
+		`<row r="3"><c r="B3" t="inlineStr"><is><t xml:space="preserve">x` + "\uFFFD" + `y_x005F_x0041_&#xD;</t></is></c><c s="4"><v>-0.5</v></c></row>` +
+		`<row r="4"><c s="3"><v>10.7</v></c><c s="4"><v>1.5</v></c></row>` +
+		`<row r="5"><c s="3"><v>10.75</v></c><c r="C5" s="4"><v>7</v></c></row>` +
+		`<row r="6"><c s="3"><v>10.8</v></c><c s="4"><v>-2</v></c></row>` +
 		`</sheetData><drawing r:id="rId1"></drawing></worksheet>`
 	if out.String() != want {
 		t.Errorf("got\n%s\nwant\n%s", out.String(), want)
 	}
-	if err := writeBulkSheet(io.Discard, []byte(`<worksheet><sheetData/></worksheet>`), tbl); err == nil {
-		t.Error("a sheet without </sheetData> was accepted")
+	out.Reset()
+	if err := writeBulkSheet(&out, []byte(`<worksheet><sheetData/></worksheet>`), &bulkSheet{first: 1, rows: [][]bulkCell{{numCell(1, 0)}}}); err != nil {
+		t.Fatal(err)
+	}
+	if want := `<worksheet><sheetData><row r="1"><c><v>1</v></c></row></sheetData></worksheet>`; out.String() != want {
+		t.Errorf("got %s, want %s", out.String(), want)
+	}
+	if err := writeBulkSheet(io.Discard, []byte(`<worksheet></worksheet>`), tbl); err == nil {
+		t.Error("a sheet without sheetData was accepted")
 	}
 }
 

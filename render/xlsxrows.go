@@ -7,8 +7,11 @@ import (
 	"io"
 	"math"
 	"path"
+	"regexp"
 	"strconv"
 	"strings"
+	"unicode/utf16"
+	"unicode/utf8"
 
 	"github.com/xuri/excelize/v2"
 )
@@ -25,22 +28,50 @@ import (
 // attribute (optional in ECMA-376 Part 1, 18.3.1.4: a reader places such a
 // cell in the next column); a cell after a gap states it.
 
-// bulkSheet is the table of a sheet below its header row: row 2 holds
-// index 0 of every column.
+// bulkSheet is what is written into a sheet at save time: rows of cells
+// from row first on, then one row per index of the numeric columns.
 type bulkSheet struct {
-	cols []bulkColumn
-	rows int
+	first int
+	rows  [][]bulkCell
+	cols  []bulkColumn
+	n     int // rows of cols
+	width int // columns, for the dimension
 }
 
-// bulkColumn is one numeric column: values[k-start] is on data row k, an
-// index outside values or a non-finite value is an empty cell.
+// bulkCell is one cell of a bulk row: empty, a number or a text.
+type bulkCell struct {
+	kind  byte // 0: empty, 'n': number, 's': text
+	num   float64
+	text  string
+	style int
+}
+
+// bulkColumn is one numeric column: values[k-start] is on row k of the
+// column rows, an index outside values or a non-finite value is an empty
+// cell.
 type bulkColumn struct {
 	values []float64
 	start  int
 	style  int
 }
 
-// addBulk registers the table of sheet, to be written at save time.
+// numCell is a number cell, empty when v is not finite.
+func numCell(v float64, style int) bulkCell {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return bulkCell{}
+	}
+	return bulkCell{kind: 'n', num: v, style: style}
+}
+
+// textCell is a text cell, empty when s is.
+func textCell(s string, style int) bulkCell {
+	if s == "" {
+		return bulkCell{}
+	}
+	return bulkCell{kind: 's', text: s, style: style}
+}
+
+// addBulk registers what is written into sheet at save time.
 func (b *xlBook) addBulk(sheet string, t *bulkSheet) {
 	if b.bulk == nil {
 		b.bulk = map[string]*bulkSheet{}
@@ -102,18 +133,21 @@ func bulkParts(bulk map[string]*bulkSheet, entries []*zipEntry) (map[string]*bul
 }
 
 // writeBulkSheet writes the sheet XML that excelize made, with the rows of
-// t added after its header row and the dimension widened to cover them.
+// t added at the end of its sheetData and the dimension set to cover them.
 func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
-	end := []byte("</sheetData>")
-	at := bytes.Index(sheetXML, end)
-	if at < 0 {
+	head, tail, ok := bytes.Cut(sheetXML, []byte("</sheetData>"))
+	if ok {
+		tail = sheetXML[len(head):]
+	} else if head, tail, ok = bytes.Cut(sheetXML, []byte("<sheetData/>")); ok {
+		head = append(head[:len(head):len(head)], "<sheetData>"...)
+		tail = append([]byte("</sheetData>"), tail...)
+	} else {
 		return fmt.Errorf("render: sheet part without sheetData")
 	}
-	head, tail := sheetXML[:at], sheetXML[at:]
 	if d := bytes.Index(head, []byte(`<dimension ref="`)); d >= 0 {
 		d += len(`<dimension ref="`)
 		if q := bytes.IndexByte(head[d:], '"'); q >= 0 {
-			last, _ := excelize.CoordinatesToCellName(max(len(t.cols), 1), t.rows+1)
+			last, _ := excelize.CoordinatesToCellName(max(t.width, 1), max(t.first+len(t.rows)+t.n-1, 1))
 			if _, err := w.Write(head[:d]); err != nil {
 				return err
 			}
@@ -133,23 +167,85 @@ func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
 	return err
 }
 
-// writeBulkRows writes the data rows of t, from row 2, in pieces of some
-// 64 kB.
-func writeBulkRows(w io.Writer, t *bulkSheet) error {
-	// The opening of each column's cell without and with its reference.
-	open := make([]string, len(t.cols))
-	names := make([]string, len(t.cols))
-	for i, c := range t.cols {
-		open[i] = `<c s="` + strconv.Itoa(c.style) + `"><v>`
-		names[i], _ = excelize.ColumnNumberToName(i + 1)
+// cellWriter appends the cells of one row, stating a cell's reference
+// only after a gap.
+type cellWriter struct {
+	names []string // column names, from A
+	row   int
+	next  int // index of the column that follows without a reference
+}
+
+func (c *cellWriter) open(buf []byte, col, style int, text bool) []byte {
+	buf = append(buf, `<c`...)
+	if col != c.next {
+		for len(c.names) <= col {
+			name, _ := excelize.ColumnNumberToName(len(c.names) + 1)
+			c.names = append(c.names, name)
+		}
+		buf = append(buf, ` r="`...)
+		buf = append(buf, c.names[col]...)
+		buf = strconv.AppendInt(buf, int64(c.row), 10)
+		buf = append(buf, '"')
 	}
+	c.next = col + 1
+	if style != 0 {
+		buf = append(buf, ` s="`...)
+		buf = strconv.AppendInt(buf, int64(style), 10)
+		buf = append(buf, '"')
+	}
+	if text {
+		return append(buf, ` t="inlineStr"><is><t`...)
+	}
+	return append(buf, `><v>`...)
+}
+
+// writeBulkRows writes the rows of t in pieces of some 64 kB.
+func writeBulkRows(w io.Writer, t *bulkSheet) error {
 	buf := make([]byte, 0, 72<<10)
-	for k := 0; k < t.rows; k++ {
-		row := k + 2
+	cw := &cellWriter{}
+	startRow := func(row int) {
 		buf = append(buf, `<row r="`...)
 		buf = strconv.AppendInt(buf, int64(row), 10)
 		buf = append(buf, `">`...)
-		next := 0
+		cw.row, cw.next = row, 0
+	}
+	flush := func() error {
+		if len(buf) < 64<<10 {
+			return nil
+		}
+		_, err := w.Write(buf)
+		buf = buf[:0]
+		return err
+	}
+	row := t.first
+	for _, cells := range t.rows {
+		startRow(row)
+		for i, c := range cells {
+			switch c.kind {
+			case 'n':
+				buf = cw.open(buf, i, c.style, false)
+				buf = appendXLNumber(buf, c.num)
+				buf = append(buf, `</v></c>`...)
+			case 's':
+				buf = cw.open(buf, i, c.style, true)
+				buf = appendXLText(buf, c.text)
+				buf = append(buf, `</t></is></c>`...)
+			}
+		}
+		buf = append(buf, `</row>`...)
+		row++
+		if err := flush(); err != nil {
+			return err
+		}
+	}
+	// The numeric columns: the opening of each column's cell when it
+	// follows the previous one.
+	open := make([]string, len(t.cols))
+	for i, c := range t.cols {
+		open[i] = `<c s="` + strconv.Itoa(c.style) + `"><v>`
+	}
+	for k := 0; k < t.n; k++ {
+		startRow(row)
 		for i, c := range t.cols {
 			j := k - c.start
 			if j < 0 || j >= len(c.values) {
@@ -159,30 +255,83 @@ func writeBulkRows(w io.Writer, t *bulkSheet) error {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				continue
 			}
-			if i == next {
+			if i == cw.next {
 				buf = append(buf, open[i]...)
+				cw.next++
 			} else {
-				buf = append(buf, `<c r="`...)
-				buf = append(buf, names[i]...)
-				buf = strconv.AppendInt(buf, int64(row), 10)
-				buf = append(buf, `" s="`...)
-				buf = strconv.AppendInt(buf, int64(c.style), 10)
-				buf = append(buf, `"><v>`...)
+				buf = cw.open(buf, i, c.style, false)
 			}
 			buf = appendXLNumber(buf, v)
 			buf = append(buf, `</v></c>`...)
-			next = i + 1
 		}
 		buf = append(buf, `</row>`...)
-		if len(buf) >= 64<<10 {
-			if _, err := w.Write(buf); err != nil {
-				return err
-			}
-			buf = buf[:0]
+		row++
+		if err := flush(); err != nil {
+			return err
 		}
 	}
 	_, err := w.Write(buf)
 	return err
+}
+
+// xlEscapedChar matches the text ECMA-376 reads as an escaped character
+// (_xHHHH_); its underscore is escaped in turn, as _x005F_, so that the
+// text reads back as written.
+var xlEscapedChar = regexp.MustCompile(`_x[0-9A-Fa-f]{4}_`)
+
+// appendXLText writes the closing of a <t> start tag and s as its text:
+// XML-escaped, characters XML 1.0 does not allow replaced by U+FFFD (as
+// encoding/xml does), spaces kept at either end, at most 32,767 UTF-16
+// units (a cell's limit).
+func appendXLText(b []byte, s string) []byte {
+	if len(s) > 32767 {
+		units := 0
+		for i, r := range s {
+			units += utf16.RuneLen(r)
+			if units > 32767 {
+				s = s[:i]
+				break
+			}
+		}
+	}
+	if strings.Contains(s, "_x") {
+		s = xlEscapedChar.ReplaceAllString(s, "_x005F$0")
+	}
+	if c0, c1 := s[0], s[len(s)-1]; c0 == ' ' || c0 == '\t' || c0 == '\n' || c0 == '\r' || c1 == ' ' || c1 == '\t' || c1 == '\n' || c1 == '\r' {
+		b = append(b, ` xml:space="preserve">`...)
+	} else {
+		b = append(b, '>')
+	}
+	for i := 0; i < len(s); {
+		c := s[i]
+		if c >= 0x20 && c < 0x80 {
+			switch c {
+			case '&':
+				b = append(b, "&amp;"...)
+			case '<':
+				b = append(b, "&lt;"...)
+			case '>':
+				b = append(b, "&gt;"...)
+			default:
+				b = append(b, c)
+			}
+			i++
+			continue
+		}
+		r, size := utf8.DecodeRuneInString(s[i:])
+		switch {
+		case r == '\t' || r == '\n':
+			b = append(b, c)
+		case r == '\r':
+			b = append(b, "&#xD;"...)
+		case r == utf8.RuneError && size == 1, r < 0x20, r >= 0xD800 && r <= 0xDFFF, r == 0xFFFE, r == 0xFFFF:
+			b = utf8.AppendRune(b, '\uFFFD')
+		default:
+			b = append(b, s[i:i+size]...)
+		}
+		i += size
+	}
+	return b
 }
 
 // pow10 holds 1e0 to 1e22, the powers of ten a float64 holds exactly;
