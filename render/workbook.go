@@ -128,7 +128,11 @@ func (z *sortedZip) Close() error {
 		if i > 0 && e.name == z.entries[i-1].name {
 			return fmt.Errorf("render: workbook part %s written twice", e.name)
 		}
-		w, err := z.w.CreateHeader(&zip.FileHeader{Name: e.name, Method: zip.Deflate, Modified: z.modified})
+		method := zip.Deflate
+		if e.data.Len() < 512 && parts[e.name] == nil {
+			method = zip.Store // relationship parts and the like: not worth a compressor's start
+		}
+		w, err := z.w.CreateHeader(&zip.FileHeader{Name: e.name, Method: method, Modified: z.modified})
 		if err != nil {
 			return err
 		}
@@ -736,34 +740,23 @@ func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.Li
 	if b.err != nil {
 		return ""
 	}
-	// Widths and panes through excelize; the header row and the frequency
-	// table, the bulk of the workbook, are written at save time.
+	// The panes through excelize; the column widths, the header row and
+	// the frequency table, the bulk of the workbook, are written at save
+	// time.
 	t := &bulkSheet{first: 1, n: n, width: len(cols), rows: [][]bulkCell{make([]bulkCell, len(cols))},
 		cols: make([]bulkColumn, len(cols))}
+	t.widths = make([]float64, len(cols))
 	for i, c := range cols {
+		t.widths[i] = c.width
 		t.rows[0][i] = textCell(c.header, b.header)
 		t.cols[i] = bulkColumn{values: c.values, start: c.start, style: b.numStyle(c.format)}
 	}
-	b.colWidths(sheet, cols)
 	b.check(b.f.SetPanes(sheet, &excelize.Panes{
 		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
 		Selection: []excelize.Selection{{SQRef: "A2", ActiveCell: "A2", Pane: "bottomLeft"}},
 	}))
 	b.addBulk(sheet, t)
 	return gt
-}
-
-// colWidths sets the widths of a beam sheet's columns, one call for each
-// run of equal widths.
-func (b *xlBook) colWidths(sheet string, cols []beamColumn) {
-	for i := 0; i < len(cols); {
-		j := i + 1
-		for j < len(cols) && cols[j].width == cols[i].width {
-			j++
-		}
-		b.check(b.f.SetColWidth(sheet, xlCol(i+1), xlCol(j), cols[i].width))
-		i = j
-	}
 }
 
 func writeLimitsSheet(b *xlBook, sheet string, limits []reduce.LimitResult) {

@@ -60,8 +60,9 @@ for ws in wb.worksheets:
                 fill = (f.bgColor.rgb if f.bgColor is not None else None) or (f.fgColor.rgb if f.fgColor is not None else None)
             rules.append({"type": r.type, "operator": r.operator, "formula": list(r.formula), "fill": fill})
         cfs.append({"range": str(cf.sqref), "rules": rules})
+    widths = [[d.min, d.max, d.width] for d in ws.column_dimensions.values() if d.customWidth]
     out["sheets"].append({"title": ws.title, "rows": rows, "formats": fmts, "charts": charts,
-        "freeze": ws.freeze_panes, "cf": cfs})
+        "freeze": ws.freeze_panes, "cf": cfs, "widths": widths})
 with open(sys.argv[2], "w") as fh:
     json.dump(out, fh)
 `
@@ -82,6 +83,7 @@ type xlDumpSheet struct {
 		Series []struct{ Tx, Val, Cat string }
 	}
 	Freeze *string
+	Widths [][3]float64 // min and max column, width
 	CF     []struct {
 		Range string
 		Rules []struct {
@@ -449,6 +451,17 @@ func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
 	}
 	if s.Freeze == nil || *s.Freeze != "A2" {
 		t.Errorf("frozen at %v, want A2", s.Freeze)
+	}
+	for ci, c := range cols {
+		w := 0.0
+		for _, d := range s.Widths {
+			if int(d[0]) <= ci+1 && ci+1 <= int(d[1]) {
+				w = d[2]
+			}
+		}
+		if w != c.width {
+			t.Errorf("column %d (%s) width %v, want %v", ci+1, c.header, w, c.width)
+		}
 	}
 	if len(s.Charts) != 1 || s.Charts[0].Type != "LineChart" {
 		t.Fatalf("charts %+v, want one line chart", s.Charts)
@@ -955,6 +968,16 @@ func TestWriteBulkSheet(t *testing.T) {
 		t.Fatal(err)
 	}
 	if want := `<worksheet><sheetData><row r="1"><c><v>1</v></c></row></sheetData></worksheet>`; out.String() != want {
+		t.Errorf("got %s, want %s", out.String(), want)
+	}
+	out.Reset()
+	widths := &bulkSheet{widths: []float64{14, 11, 11, 0, 9.5}}
+	if err := writeBulkSheet(&out, []byte(`<worksheet><sheetViews></sheetViews><sheetData></sheetData></worksheet>`), widths); err != nil {
+		t.Fatal(err)
+	}
+	if want := `<worksheet><sheetViews></sheetViews><cols><col min="1" max="1" width="14" customWidth="1"/>` +
+		`<col min="2" max="3" width="11" customWidth="1"/><col min="5" max="5" width="9.5" customWidth="1"/></cols>` +
+		`<sheetData></sheetData></worksheet>`; out.String() != want {
 		t.Errorf("got %s, want %s", out.String(), want)
 	}
 	if err := writeBulkSheet(io.Discard, []byte(`<worksheet></worksheet>`), tbl); err == nil {

@@ -36,6 +36,9 @@ type bulkSheet struct {
 	cols  []bulkColumn
 	n     int // rows of cols
 	width int // columns, for the dimension
+	// widths are the column widths from column A (0: the default), for
+	// a sheet that excelize gave no widths.
+	widths []float64
 }
 
 // bulkCell is one cell of a bulk row: empty, a number or a text.
@@ -157,6 +160,19 @@ func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
 			head = head[d+q:]
 		}
 	}
+	if cols := colsXML(t.widths); cols != "" {
+		at := bytes.Index(head, []byte("<sheetData"))
+		if at < 0 || bytes.Contains(head, []byte("<cols>")) {
+			return fmt.Errorf("render: cannot place the column widths in the sheet part")
+		}
+		if _, err := w.Write(head[:at]); err != nil {
+			return err
+		}
+		if _, err := io.WriteString(w, cols); err != nil {
+			return err
+		}
+		head = head[at:]
+	}
 	if _, err := w.Write(head); err != nil {
 		return err
 	}
@@ -165,6 +181,26 @@ func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
 	}
 	_, err := w.Write(tail)
 	return err
+}
+
+// colsXML is the cols element of the widths, one col for each run of
+// equal widths; "" when every width is the default.
+func colsXML(widths []float64) string {
+	var b strings.Builder
+	for i := 0; i < len(widths); {
+		j := i + 1
+		for j < len(widths) && widths[j] == widths[i] {
+			j++
+		}
+		if widths[i] > 0 {
+			fmt.Fprintf(&b, `<col min="%d" max="%d" width="%s" customWidth="1"/>`, i+1, j, strconv.FormatFloat(widths[i], 'f', -1, 64))
+		}
+		i = j
+	}
+	if b.Len() == 0 {
+		return ""
+	}
+	return "<cols>" + b.String() + "</cols>"
 }
 
 // cellWriter appends the cells of one row, stating a cell's reference
