@@ -525,6 +525,22 @@ func tsParseNumber(b []byte) (float64, bool) {
 
 var tsSpaceTab = [256]bool{' ': true, '\t': true, '\r': true, '\n': true, '\v': true, '\f': true}
 
+// tsFields splits a data line the way tsScanLine does: at ASCII white
+// space only (bytes.Fields would also split at Unicode spaces such as
+// U+3000, and disagree with the scanner about which token is which).
+func tsFields(line []byte) [][]byte {
+	return bytes.FieldsFunc(line, func(r rune) bool { return r < 0x80 && tsSpaceTab[r] })
+}
+
+// tsField is the n-th field of tsFields, or the whole line when there are
+// fewer.
+func tsField(line []byte, n int) []byte {
+	if f := tsFields(line); n < len(f) {
+		return f[n]
+	}
+	return line
+}
+
 var tsPow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
@@ -874,7 +890,7 @@ func (t *tsReader) data(line []byte) error {
 	}
 	t.rec = rec
 	if bad >= 0 {
-		tok := bytes.Fields(line)[bad]
+		tok := tsField(line, bad)
 		switch {
 		case len(rec) == 0 && bad > 0:
 			return t.tooMany(line, bad)
@@ -894,7 +910,7 @@ func (t *tsReader) data(line []byte) error {
 // of it being the point's.
 func (t *tsReader) tooMany(line []byte, used int) error {
 	return t.errf(t.line, "line has %d values but the point that began at line %d needed only %d of them: %s; a new point starts on a new line",
-		len(bytes.Fields(line)), t.recStart, used, t.describeRecord())
+		len(tsFields(line)), t.recStart, used, t.describeRecord())
 }
 
 // tsScanLine appends the numbers of a line (which starts with a token) to
