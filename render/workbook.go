@@ -158,6 +158,9 @@ func (z *sortedZip) Close() error {
 func newXLBook(title, subject string, created time.Time) *xlBook {
 	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
 	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
+		if buf, ok := w.(*bytes.Buffer); ok {
+			buf.Grow(128<<10 + b.bulkSize()) // the workbook, written once
+		}
 		return &sortedZip{w: zip.NewWriter(w), modified: created, book: b}
 	})
 	stamp := created.UTC().Format(time.RFC3339)
