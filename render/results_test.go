@@ -533,13 +533,16 @@ func TestCSVGHz(t *testing.T) {
 func BenchmarkResultJSON16x801(b *testing.B) {
 	u := fixtureUnit(b, 16, 801)
 	b.ReportAllocs()
+	size := 0
 	for i := 0; i < b.N; i++ {
 		data, err := ResultJSON(u)
 		if err != nil {
 			b.Fatal(err)
 		}
 		b.SetBytes(int64(len(data)))
+		size = len(data)
 	}
+	b.ReportMetric(float64(size), "file-bytes")
 }
 
 // A field whose type has its own MarshalJSON (time.Time) is written as

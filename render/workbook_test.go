@@ -755,13 +755,16 @@ func TestUniqueSheetName(t *testing.T) {
 func BenchmarkUnitWorkbook16x801(b *testing.B) {
 	u := fixtureUnit(b, 16, 801)
 	b.ReportAllocs()
+	size := 0
 	for i := 0; i < b.N; i++ {
 		data, err := UnitWorkbook(u)
 		if err != nil {
 			b.Fatal(err)
 		}
 		b.SetBytes(int64(len(data)))
+		size = len(data)
 	}
+	b.ReportMetric(float64(size), "file-bytes")
 }
 
 // Text that looks like a formula stays text: a cell written from a user's
