@@ -231,7 +231,9 @@ type beamRow struct {
 	ToGHz      float64
 	MinGT      float64
 	OtherMaxDB float64
-	HasOther   bool
+	// OtherMeanDB is the band-mean difference the method tolerance judges.
+	OtherMeanDB float64
+	HasOther    bool
 }
 
 type projectionRow struct {
@@ -279,7 +281,7 @@ func reportModel(u *reduce.Unit) (*reportView, error) {
 			}
 		}
 		if b.OtherForm != nil {
-			r.HasOther, r.OtherMaxDB = true, b.OtherForm.MaxAbsDifferenceDB
+			r.HasOther, r.OtherMaxDB, r.OtherMeanDB = true, b.OtherForm.MaxAbsDifferenceDB, b.OtherForm.MeanDifferenceDB
 		}
 		v.Beams = append(v.Beams, r)
 		if p := b.Projection; p != nil {

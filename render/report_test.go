@@ -325,7 +325,7 @@ func TestReportSections(t *testing.T) {
 	}
 	for _, want := range []string{
 		"2026/11/KP16-00017/run-2/b07-noise.csv:17: frequency 11.2e9 is not above the previous 11.3e9; point skipped",
-		"2026/10/KP16-00017/run-1", "gtpack " + Version, "ISO/IEC 17025", "derived — passive gain 30.2 dBi",
+		"2026/10/KP16-00017/run-1", "gtpack " + Version, "ISO/IEC 17025", "<li><b>b00</b>: passive gain 30.2 dBi",
 		"row 3, column 5: 31.5 deg",
 	} {
 		if !strings.Contains(page, want) {
