@@ -11,7 +11,6 @@ import (
 	"sort"
 	"strconv"
 	"strings"
-	"sync"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
@@ -188,23 +187,61 @@ func checkBudgetLengths(b *reduce.Budget, n int) error {
 // numbers are rounded as appendJSONFloat says, non-finite floats become
 // null.
 func encodeIndented(v any) ([]byte, error) {
-	scratch := jsonScratch.Get().(*[]byte)
-	defer jsonScratch.Put(scratch)
-	b, err := appendJSON((*scratch)[:0], reflect.ValueOf(v), 0)
+	// A result.json of 16 beams is some 4 MB, nearly all of it lists of
+	// numbers: growing the buffer to that size by doubling cost more than
+	// the encoding, so it starts at a size that holds them.
+	rv := reflect.ValueOf(v)
+	b, err := appendJSON(make([]byte, 0, jsonSizeHint(rv)), rv, 0)
 	if err != nil {
 		return nil, err
 	}
-	*scratch = b[:0]
-	out := make([]byte, len(b)+1)
-	copy(out, b)
-	out[len(b)] = '\n'
-	return out, nil
+	return append(b, '\n'), nil
 }
 
-// jsonScratch holds the buffers results are encoded into: a result.json
-// of 16 beams is some 4 MB, and growing a fresh buffer to that size by
-// doubling cost more than the encoding.
-var jsonScratch = sync.Pool{New: func() any { return new([]byte) }}
+// jsonFloatSize is the room a float of a list takes in the common case, a
+// value of tens of dB to 6 decimals and the separator ("-12.345678, ").
+const jsonFloatSize = 12
+
+// jsonSizeHint is the room for the lists of floats in v (the walk through
+// pointers, lists and structs stops 16 levels deep), plus 64 kB for the
+// rest.
+func jsonSizeHint(v reflect.Value) int {
+	n := 0
+	var walk func(v reflect.Value, depth int)
+	walk = func(v reflect.Value, depth int) {
+		if depth > 16 {
+			return
+		}
+		switch v.Kind() {
+		case reflect.Pointer, reflect.Interface:
+			if !v.IsNil() {
+				walk(v.Elem(), depth+1)
+			}
+		case reflect.Struct:
+			for i := 0; i < v.NumField(); i++ {
+				walk(v.Field(i), depth+1)
+			}
+		case reflect.Slice, reflect.Array:
+			switch v.Type().Elem().Kind() {
+			case reflect.Float64, reflect.Float32:
+				n += v.Len()
+			case reflect.Struct, reflect.Pointer, reflect.Slice, reflect.Array, reflect.Interface, reflect.Map:
+				for i := 0; i < v.Len(); i++ {
+					walk(v.Index(i), depth+1)
+				}
+			}
+		case reflect.Map:
+			if k := v.Type().Elem().Kind(); k == reflect.Struct || k == reflect.Pointer || k == reflect.Slice {
+				it := v.MapRange()
+				for it.Next() {
+					walk(it.Value(), depth+1)
+				}
+			}
+		}
+	}
+	walk(v, 0)
+	return n*jsonFloatSize + 64<<10
+}
 
 // appendNewline starts a new line indented to depth.
 func appendNewline(b []byte, depth int) []byte {
@@ -439,35 +476,14 @@ func appendJSONFloat(b []byte, f float64) []byte {
 	case abs < 1<<53 && f == math.Trunc(f):
 		// A whole number (a frequency grid in Hz, mostly) is its own
 		// rounding.
-		return strconv.AppendInt(b, int64(f), 10)
+		if f < 0 {
+			return appendUint(append(b, '-'), uint64(-f))
+		}
+		return appendUint(b, uint64(f))
 	case abs < 1e9:
-		// n/1e6 with |n| < 1e15 < 2^53: n is exact, and the decimal n/1e6,
-		// of at most 15 significant digits, is the shortest text that reads
-		// back to the float64 nearest it.
-		n := int64(math.Round(f * 1e6))
-		if n == 0 {
-			return append(b, '0')
-		}
-		if n < 0 {
-			b = append(b, '-')
-			n = -n
-		}
-		b = strconv.AppendInt(b, n/1e6, 10)
-		frac := n % 1e6
-		if frac == 0 {
-			return b
-		}
-		var d [7]byte
-		d[0] = '.'
-		for i := 6; i >= 1; i-- {
-			d[i] = byte('0' + frac%10)
-			frac /= 10
-		}
-		end := 7
-		for d[end-1] == '0' {
-			end--
-		}
-		return append(b, d[:end]...)
+		// |f*1e6| < 1e15: appendDecimal writes the digits of the rounded
+		// value straight from the whole number of micro-units.
+		return appendDecimal(b, f, 6)
 	case abs < 1e21:
 		var tmp [32]byte
 		r, err := strconv.ParseFloat(string(strconv.AppendFloat(tmp[:0], f, 'e', 14, 64)), 64)
