@@ -157,12 +157,7 @@ func csvNumber(v float64, decimals int) string {
 	if !finite(v) {
 		return ""
 	}
-	p := math.Pow(10, float64(decimals))
-	r := math.Round(v*p) / p
-	if r == 0 {
-		r = 0
-	}
-	return strconv.FormatFloat(r, 'f', -1, 64)
+	return string(appendDecimal(nil, v, decimals))
 }
 
 var verdictOrder = []string{

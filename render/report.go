@@ -124,6 +124,7 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 		}
 	}
 	_ = w.Write(header)
+	w.Flush()
 
 	// Per beam, the index of each frequency on its grid.
 	index := make([]map[float64]int, len(u.Beams))
@@ -135,22 +136,33 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 			}
 		}
 	}
-	rec := make([]string, len(header))
+	vals := make([][]float64, len(columns))
+	for j, c := range columns {
+		vals[j] = c.get(&u.Beams[c.beam])
+	}
+	// The rows are numbers, which never need quoting: they are appended
+	// as encoding/csv would write them, fields joined by commas, each
+	// record ended by a newline. A value takes some 8 bytes.
+	out := buf.Bytes()
+	out = append(make([]byte, 0, len(out)+len(freqs)*(12+8*len(columns))), out...)
+	at := make([]int, len(u.Beams)) // the row's index on each beam's grid, -1: none
 	for _, f := range freqs {
-		rec[0] = strconv.FormatFloat(f, 'f', -1, 64)
-		for j, c := range columns {
-			rec[j+1] = ""
-			b := &u.Beams[c.beam]
-			if k, ok := index[c.beam][f]; ok {
-				if vals := c.get(b); k < len(vals) {
-					rec[j+1] = csvNumber(vals[k], c.decimals)
-				}
+		out = strconv.AppendFloat(out, f, 'f', -1, 64)
+		for i := range at {
+			at[i] = -1
+			if k, ok := index[i][f]; ok {
+				at[i] = k
 			}
 		}
-		_ = w.Write(rec)
+		for j, c := range columns {
+			out = append(out, ',')
+			if k := at[c.beam]; k >= 0 && k < len(vals[j]) && finite(vals[j][k]) {
+				out = appendDecimal(out, vals[j][k], c.decimals)
+			}
+		}
+		out = append(out, '\n')
 	}
-	w.Flush()
-	return buf.Bytes(), cols
+	return out, cols
 }
 
 // sharedRange is true when every beam has the same grid, range loss and

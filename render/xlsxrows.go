@@ -470,22 +470,3 @@ func appendXLNumber(b []byte, v float64) []byte {
 	b = append(b, '.')
 	return append(b, d[e+1:n]...)
 }
-
-const digitPairs = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
-	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +
-	"8081828384858687888990919293949596979899"
-
-// putDigits writes the last n decimal digits of x into d[:n], two at a
-// time.
-func putDigits(d []byte, x uint32, n int) {
-	i := n
-	for i >= 2 {
-		r := x % 100
-		x /= 100
-		d[i-1], d[i-2] = digitPairs[2*r+1], digitPairs[2*r]
-		i -= 2
-	}
-	if i == 1 {
-		d[0] = byte('0' + x%10)
-	}
-}

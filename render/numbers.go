@@ -1,0 +1,98 @@
+package render
+
+import (
+	"math"
+	"strconv"
+)
+
+// Number text shared by the writers: result.json (appendJSONFloat, to 1e-6),
+// the per-frequency CSV of the report (csvNumber, to 0.001 or 0.0001) and
+// the workbooks (appendXLNumber, 15 significant digits).
+
+// appendDecimal writes v rounded to the given decimals (0 to 6) in the
+// shortest form of the rounded value, without exponent or trailing zeros:
+// what strconv.FormatFloat(math.Round(v*10^d)/10^d, 'f', -1, 64) writes,
+// with "0" for a value that rounds to zero of either sign. v must be
+// finite; decimals from 7 to 22 go through strconv.
+//
+// When |v*10^d| < 1e15 the rounded value is n/10^d for a whole n of at
+// most 15 digits: n and 10^d are exact, the quotient is the float64 nearest
+// the decimal n/10^d, and that decimal, of at most 15 significant digits,
+// is the shortest text that reads back to it (two decimals of 15 digits
+// never share a float64), so its digits are written straight from n.
+// Larger values go through strconv.
+func appendDecimal(b []byte, v float64, decimals int) []byte {
+	p := pow10[decimals]
+	x := math.Round(v * p)
+	if decimals > 6 || !(math.Abs(x) < 1e15) {
+		r := x / p
+		if r == 0 {
+			r = 0
+		}
+		return strconv.AppendFloat(b, r, 'f', -1, 64)
+	}
+	n := int64(x)
+	if n == 0 {
+		return append(b, '0')
+	}
+	if n < 0 {
+		b = append(b, '-')
+		n = -n
+	}
+	scale := int64(p)
+	b = appendUint(b, uint64(n/scale))
+	frac := n % scale
+	if frac == 0 {
+		return b
+	}
+	var d [7]byte
+	d[0] = '.'
+	putDigits(d[1:1+decimals], uint32(frac), decimals)
+	end := 1 + decimals
+	for d[end-1] == '0' {
+		end--
+	}
+	return append(b, d[:end]...)
+}
+
+// appendUint writes x in decimal.
+func appendUint(b []byte, x uint64) []byte {
+	if x < 10 {
+		return append(b, byte('0'+x))
+	}
+	var d [20]byte
+	i := len(d)
+	for x >= 100 {
+		r := x % 100
+		x /= 100
+		i -= 2
+		d[i], d[i+1] = digitPairs[2*r], digitPairs[2*r+1]
+	}
+	if x >= 10 {
+		i -= 2
+		d[i], d[i+1] = digitPairs[2*x], digitPairs[2*x+1]
+	} else {
+		i--
+		d[i] = byte('0' + x)
+	}
+	return append(b, d[i:]...)
+}
+
+const digitPairs = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
+	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +
+	"8081828384858687888990919293949596979899"
+
+// putDigits writes the last n decimal digits of x into d[:n], two at a
+// time.
+func putDigits(d []byte, x uint32, n int) {
+	i := n
+	for i >= 2 {
+		r := x % 100
+		x /= 100
+		d[i-1], d[i-2] = digitPairs[2*r+1], digitPairs[2*r]
+		i -= 2
+	}
+	if i == 1 {
+		d[0] = byte('0' + x%10)
+	}
+}
