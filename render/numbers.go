@@ -2,6 +2,7 @@ package render
 
 import (
 	"math"
+	"slices"
 	"strconv"
 )
 
@@ -35,24 +36,56 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 	if n == 0 {
 		return append(b, '0')
 	}
-	if n < 0 {
-		b = append(b, '-')
+	neg := n < 0
+	if neg {
 		n = -n
 	}
-	scale := int64(p)
-	b = appendUint(b, uint64(n/scale))
-	frac := n % scale
-	if frac == 0 {
-		return b
+	// Division by a constant is a multiplication; by a variable it is
+	// one of the slowest instructions.
+	var whole, frac int64
+	switch decimals {
+	case 6:
+		whole, frac = n/1e6, n%1e6
+	case 3:
+		whole, frac = n/1e3, n%1e3
+	case 4:
+		whole, frac = n/1e4, n%1e4
+	default:
+		whole, frac = n/int64(p), n%int64(p)
 	}
-	var d [7]byte
-	d[0] = '.'
-	putDigits(d[1:1+decimals], uint32(frac), decimals)
-	end := 1 + decimals
-	for d[end-1] == '0' {
-		end--
+	// The text (at most 1 + 15 + 1 digits and signs) is written in place
+	// at the end of b: a call to copy a few bytes cost as much as making
+	// them.
+	if cap(b)-len(b) < 24 {
+		b = slices.Grow(b, 24)
 	}
-	return append(b, d[:end]...)
+	at := len(b)
+	d := b[at : at+24]
+	i := 0
+	if neg {
+		d[0] = '-'
+		i = 1
+	}
+	w := 1
+	for w < 15 && uint64(whole) >= uint64(pow10[w]) {
+		w++
+	}
+	if whole < 1e8 {
+		putDigits(d[i:i+w], uint32(whole), w)
+	} else { // below 1e15: 7 digits and 8
+		putDigits(d[i:i+w-8], uint32(whole/1e8), w-8)
+		putDigits(d[i+w-8:i+w], uint32(whole%1e8), 8)
+	}
+	i += w
+	if frac != 0 {
+		d[i] = '.'
+		putDigits(d[i+1:i+1+decimals], uint32(frac), decimals)
+		i += 1 + decimals
+		for d[i-1] == '0' {
+			i--
+		}
+	}
+	return b[:at+i]
 }
 
 // appendUint writes x in decimal.

@@ -37,8 +37,11 @@ func TestAppendDecimal(t *testing.T) {
 		{100, 4, "100"},
 		{-0.00125, 4, "-0.0013"}, // the half goes away from zero
 		{123456789.1234564, 6, "123456789.123456"},
-		{2e15, 3, "2000000000000000"}, // past 1e15 micro-units: strconv
-		{1.23456789, 8, "1.23456789"}, // more than 6 decimals: strconv
+		{99999999.5, 0, "100000000"},               // a ninth digit by rounding
+		{123456789012345, 0, "123456789012345"},    // 15 digits, the most written without strconv
+		{-98765432.1234567, 6, "-98765432.123457"}, // 14 digits and the sign
+		{2e15, 3, "2000000000000000"},              // past 1e15 units of the last decimal: strconv
+		{1.23456789, 8, "1.23456789"},              // more than 6 decimals: strconv
 	} {
 		if got := string(appendDecimal(nil, c.v, c.decimals)); got != c.want {
 			t.Errorf("appendDecimal(%v, %d) = %q, want %q", c.v, c.decimals, got, c.want)
@@ -51,7 +54,7 @@ func TestAppendDecimal(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	for i := 0; i < 200000; i++ {
 		d := rng.IntN(7)
-		v := (rng.Float64()*2 - 1) * math.Pow(10, float64(rng.IntN(17)-7))
+		v := (rng.Float64()*2 - 1) * math.Pow(10, float64(rng.IntN(23)-7))
 		if got, want := string(appendDecimal(nil, v, d)), decimalReference(v, d); got != want {
 			t.Fatalf("appendDecimal(%v, %d) = %q, strconv gives %q", v, d, got, want)
 		}
