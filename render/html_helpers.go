@@ -81,12 +81,18 @@ func inlineAssets() pageAssets {
 }
 
 func execute(name string, data any) ([]byte, error) {
+	return executeSized(name, data, 0)
+}
+
+// executeSized is execute with room for size bytes from the start, so that
+// a page of a megabyte is not copied over and over as its buffer grows.
+func executeSized(name string, data any, size int) ([]byte, error) {
 	t, err := loadPages()
 	if err != nil {
 		return nil, err
 	}
-	var buf bytes.Buffer
-	if err := t.ExecuteTemplate(&buf, name, data); err != nil {
+	buf := bytes.NewBuffer(make([]byte, 0, size))
+	if err := t.ExecuteTemplate(buf, name, data); err != nil {
 		return nil, fmt.Errorf("render: %s: %w", name, err)
 	}
 	return buf.Bytes(), nil

@@ -28,7 +28,8 @@ func Report(u *reduce.Unit) ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	return execute("report.tmpl", v)
+	// The embedded CSV and some 48 kB of charts and tables a beam.
+	return executeSized("report.tmpl", v, len(v.CSVHref)+len(u.Beams)*48<<10+128<<10)
 }
 
 // UnitCSV is the per-frequency numbers of every beam as CSV, the file the
