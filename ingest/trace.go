@@ -22,11 +22,13 @@ import (
 const maxLineBytes = 1 << 20
 
 // csvLines yields the non-comment, non-blank lines of a CSV file, split
-// into trimmed fields, with their 1-based line numbers.
+// into trimmed fields, with their 1-based line numbers. The slice of
+// fields is reused by the next line (the strings in it are not).
 type csvLines struct {
-	sc   *bufio.Scanner
-	name string
-	line int
+	sc     *bufio.Scanner
+	name   string
+	line   int
+	fields []string
 }
 
 func newCSVLines(r io.Reader, name string) *csvLines {
@@ -51,10 +53,17 @@ func (c *csvLines) next() ([]string, int, error) {
 		if !utf8.ValidString(t) {
 			return nil, c.line, Problemf(c.name, c.line, "line is not UTF-8 text; expected a comma-separated text line")
 		}
-		fields := strings.Split(t, ",")
-		for i := range fields {
-			fields[i] = strings.TrimSpace(fields[i])
+		// strings.Split, into the slice of the previous line.
+		fields := c.fields[:0]
+		for {
+			f, rest, more := strings.Cut(t, ",")
+			fields = append(fields, strings.TrimSpace(f))
+			if !more {
+				break
+			}
+			t = rest
 		}
+		c.fields = fields
 		return fields, c.line, nil
 	}
 	if err := c.sc.Err(); err != nil {
