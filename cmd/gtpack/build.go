@@ -5,7 +5,9 @@ import (
 	"fmt"
 	"hash/fnv"
 	"io"
+	"os"
 	"runtime"
+	"runtime/debug"
 	"strconv"
 	"strings"
 	"sync"
@@ -84,6 +86,15 @@ type unitOutcome struct {
 
 func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	start := time.Now()
+	// A unit allocates some 40 MB of short-lived buffers (its pages, its
+	// workbook, the parsed inputs) over a live heap of a few tens of MB.
+	// At the default GOGC of 100 the collector ran several times a unit,
+	// and stopping the workers for it took a fifth of the CPU of a build.
+	// Unless GOGC is set, a build collects at 400 % growth instead, which
+	// took the sample archive at -j 2 from 68 to 118 MB resident.
+	if os.Getenv("GOGC") == "" {
+		defer debug.SetGCPercent(debug.SetGCPercent(400))
+	}
 	archive, err := ingest.Open(o.archive)
 	if err != nil {
 		return exitRefused, err
