@@ -67,7 +67,7 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 		i = 1
 	}
 	w := 1
-	for w < 15 && uint64(whole) >= uint64(pow10[w]) {
+	for w < 15 && whole >= wholePow10[w] {
 		w++
 	}
 	if whole < 1e8 {
@@ -87,6 +87,9 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 	}
 	return b[:at+i]
 }
+
+// wholePow10 holds 10^0 to 10^15.
+var wholePow10 = [16]int64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}
 
 // appendUint writes x in decimal.
 func appendUint(b []byte, x uint64) []byte {
