@@ -7,8 +7,10 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"runtime"
 	"sort"
 	"strings"
+	"sync"
 )
 
 // Open discovers an archive: the stations, references and specs at the
@@ -134,17 +136,12 @@ func Open(root string) (*Archive, error) {
 	}
 
 	var runs []*Run
-	for _, rel := range fsys.runFiles(&a.Problems) {
-		data, p := fsys.read(rel, "", 0)
-		if p != nil {
-			a.Problems = append(a.Problems, p)
+	for _, parsed := range parseRuns(fsys, fsys.runFiles(&a.Problems)) {
+		if parsed.problems != nil {
+			a.Problems = append(a.Problems, parsed.problems...)
 			continue
 		}
-		r, err := ParseRun(data, rel)
-		if err != nil {
-			a.Problems = append(a.Problems, Problems(err)...)
-			continue
-		}
+		r := parsed.run
 		rootRelative(r)
 		check := func(key, kind, id, folder string, known bool, refused map[string]string) {
 			if known {
@@ -407,5 +404,41 @@ func (f *archiveFS) runFiles(probs *[]*Problem) []string {
 		return nil
 	})
 	sort.Strings(out)
+	return out
+}
+
+// parsedRun is one run.yaml read and parsed, or the problems that refused it.
+type parsedRun struct {
+	run      *Run
+	problems []*Problem
+}
+
+// parseRuns reads and parses run files on every core: on a large archive
+// the YAML parser is most of the time Open takes. The result is in the
+// order of files, whatever the order of the work.
+func parseRuns(fsys *archiveFS, files []string) []parsedRun {
+	out := make([]parsedRun, len(files))
+	workers := min(runtime.NumCPU(), len(files))
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func(w int) {
+			defer wg.Done()
+			for i := w; i < len(files); i += workers {
+				data, p := fsys.read(files[i], "", 0)
+				if p != nil {
+					out[i].problems = []*Problem{p}
+					continue
+				}
+				r, err := ParseRun(data, files[i])
+				if err != nil {
+					out[i].problems = Problems(err)
+					continue
+				}
+				out[i].run = r
+			}
+		}(w)
+	}
+	wg.Wait()
 	return out
 }

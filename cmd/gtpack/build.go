@@ -84,6 +84,10 @@ type unitOutcome struct {
 	err      error
 }
 
+// softMemoryLimit is the heap size above which a build collects garbage
+// whatever GOGC says.
+const softMemoryLimit = 200 << 20
+
 func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	start := time.Now()
 	// A unit allocates some 40 MB of short-lived buffers (its pages, its
@@ -91,9 +95,14 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	// At the default GOGC of 100 the collector ran several times a unit,
 	// and stopping the workers for it took a fifth of the CPU of a build.
 	// Unless GOGC is set, a build collects at 400 % growth instead, which
-	// took the sample archive at -j 2 from 68 to 118 MB resident.
+	// took the sample archive at -j 2 from 68 to 118 MB resident. A soft
+	// memory limit keeps that growth from reaching the machine's memory on a
+	// large archive: near it the collector runs as often as it must.
 	if os.Getenv("GOGC") == "" {
 		defer debug.SetGCPercent(debug.SetGCPercent(400))
+	}
+	if os.Getenv("GOMEMLIMIT") == "" {
+		defer debug.SetMemoryLimit(debug.SetMemoryLimit(softMemoryLimit))
 	}
 	archive, err := ingest.Open(o.archive)
 	if err != nil {
@@ -160,7 +169,11 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	}()
 
 	var built, skipped, incomplete, failed int
+	known := map[string]*unitState{}
 	for out := range outcomes {
+		if out.state != nil {
+			known[out.serial] = out.state
+		}
 		for _, p := range out.problems {
 			prog.println(fmt.Sprintf("%s (unit %s)", p.Error(), out.serial))
 			refused = true
@@ -183,7 +196,7 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	prog.finish()
 
 	if o.shardN == 0 {
-		if err := writeFleet(site); err != nil {
+		if err := writeFleet(site, known); err != nil {
 			return exitRefused, err
 		}
 	}
@@ -304,7 +317,7 @@ func cmdIndex(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return exitRefused, err
 	}
-	if err := writeFleet(site); err != nil {
+	if err := writeFleet(site, nil); err != nil {
 		return exitRefused, err
 	}
 	return exitOK, nil

@@ -10,8 +10,10 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"runtime"
 	"sort"
 	"strings"
+	"sync"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
@@ -201,23 +203,46 @@ func (s *site) removeUnitsExcept(keep func(serial string) bool) error {
 	return nil
 }
 
-// states reads every unit state of the site, sorted by serial.
-func (s *site) states() ([]*unitState, error) {
+// states returns every unit state of the site, sorted by serial: those in
+// known as they are, the others read from the site, two at a time.
+func (s *site) states(known map[string]*unitState) ([]*unitState, error) {
 	dir := filepath.Join(s.dir, stateDir, "units")
 	entries, err := os.ReadDir(dir)
 	if err != nil {
 		return nil, err
 	}
 	var out []*unitState
+	var toRead []string
 	for _, e := range entries {
-		if e.IsDir() || !strings.HasSuffix(e.Name(), ".json") {
+		serial, ok := strings.CutSuffix(e.Name(), ".json")
+		if e.IsDir() || !ok {
 			continue
 		}
-		st, err := s.readState(filepath.Join(dir, e.Name()))
-		if err != nil {
-			return nil, err
+		if st := known[serial]; st != nil {
+			out = append(out, st)
+		} else {
+			toRead = append(toRead, filepath.Join(dir, e.Name()))
 		}
-		out = append(out, st)
+	}
+	read := make([]*unitState, len(toRead))
+	errs := make([]error, len(toRead))
+	var wg sync.WaitGroup
+	workers := min(runtime.NumCPU(), len(toRead))
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func(w int) {
+			defer wg.Done()
+			for i := w; i < len(toRead); i += workers {
+				read[i], errs[i] = s.readState(toRead[i])
+			}
+		}(w)
+	}
+	wg.Wait()
+	for i := range toRead {
+		if errs[i] != nil {
+			return nil, errs[i]
+		}
+		out = append(out, read[i])
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Serial < out[j].Serial })
 	return out, nil
@@ -225,8 +250,10 @@ func (s *site) states() ([]*unitState, error) {
 
 // writeFleet writes the fleet pages and the manifest from the units'
 // states alone: it never needs every unit's full result in memory.
-func writeFleet(s *site) error {
-	states, err := s.states()
+//
+// known holds the states this build already has in memory.
+func writeFleet(s *site, known map[string]*unitState) error {
+	states, err := s.states(known)
 	if err != nil {
 		return err
 	}

@@ -40,7 +40,7 @@ sync
 measure floor "$work/floor" "$archive"
 measure full-build "$work/gtpack" build "$archive" -o "$site" --quiet
 measure no-change "$work/gtpack" build "$archive" -o "$site" --quiet
-first=$(find "$archive" -name run.yaml | sort | head -1)
+first=$(find "$archive" -name run.yaml | sort | sed -n 1p)
 echo "# touched by the benchmark" >> "$first"
 measure one-changed "$work/gtpack" build "$archive" -o "$site" --quiet
 sed -i '$ d' "$first"
