@@ -21,9 +21,12 @@ import (
 )
 
 // Workbooks: the unit workbook (units/<serial>/<serial>.xlsx) and the fleet
-// workbook (fleet.xlsx). Values are stored to 15 significant digits (the
-// precision of a spreadsheet number) and shown with a number format; a
-// non-finite value is an empty cell. The files are deterministic: fixed
+// workbook (fleet.xlsx). The unit workbook stores its numbers as
+// result.json holds them (resultValue: to 1e-6, 15 significant digits from
+// 1e9 up; frequencies the GHz of result.json's hertz, resultGHz), so that a
+// cell equals the value of result.json; the fleet workbook stores each
+// float64 as excelize writes it (its shortest text). Values are shown with
+// a number format; a non-finite value is an empty cell. The files are deterministic: fixed
 // document properties, fixed zip entry times, sheets and styles created in
 // a fixed order. excelize builds the workbook; the large tables (the beam
 // sheets' frequency tables, the Uncertainty rows) are written into their
@@ -155,7 +158,14 @@ func (z *sortedZip) Close() error {
 	return z.w.Close()
 }
 
+// newXLBook starts a workbook with the fleet workbook's description.
 func newXLBook(title, subject string, created time.Time) *xlBook {
+	return newXLBookDescribed(title, subject, created, "values to 15 significant digits, shown rounded.")
+}
+
+// newXLBookDescribed starts a workbook; precision says, in its
+// description, how its numbers are stored.
+func newXLBookDescribed(title, subject string, created time.Time, precision string) *xlBook {
 	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
 	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
 		if buf, ok := w.(*bytes.Buffer); ok {
@@ -167,7 +177,7 @@ func newXLBook(title, subject string, created time.Time) *xlBook {
 	b.check(b.f.SetDocProps(&excelize.DocProperties{
 		Title: title, Subject: subject, Creator: "gtpack", LastModifiedBy: "gtpack",
 		Created: stamp, Modified: stamp, Version: Version, Language: "en",
-		Description: "Written by gtpack " + Version + " from reduced results; values to 15 significant digits, shown rounded.",
+		Description: "Written by gtpack " + Version + " from reduced results; " + precision,
 	}))
 	b.check(b.f.SetAppProps(&excelize.AppProperties{Application: "gtpack", Company: ""}))
 	var err error
@@ -459,7 +469,8 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 	if u == nil {
 		return nil, fmt.Errorf("render: UnitWorkbook of a nil unit")
 	}
-	b := newXLBook("G/T acceptance workbook, unit "+u.Serial, "Unit "+u.Serial+", product "+u.Product, startedTime(u.Started))
+	b := newXLBookDescribed("G/T acceptance workbook, unit "+u.Serial, "Unit "+u.Serial+", product "+u.Product, startedTime(u.Started),
+		"values as result.json holds them (to 1e-6; frequencies to its hertz), shown rounded.")
 
 	summary := b.addSheet("Summary")
 	beamSheets := make([]string, len(u.Beams))
@@ -528,7 +539,7 @@ func writeSummary(b *xlBook, sheet string, u *reduce.Unit, beamSheets, gtValues 
 	for _, kv := range summaryFields(u) {
 		b.set(sheet, 1, row, kv[0])
 		if v, ok := kv[1].(float64); ok {
-			b.setNum(sheet, 2, row, v, nfTemp)
+			b.setNum(sheet, 2, row, resultValue(v), nfTemp)
 		} else {
 			b.set(sheet, 2, row, kv[1])
 		}
@@ -552,9 +563,9 @@ func writeSummary(b *xlBook, sheet string, u *reduce.Unit, beamSheets, gtValues 
 		row++
 		b.set(sheet, 1, row, l.Name)
 		b.set(sheet, 2, row, l.Beam)
-		b.setNum(sheet, 3, row, l.WorstMarginDB, nfDB)
-		b.setNum(sheet, 4, row, toGHz(l.AtFrequencyHz), nfGHz)
-		b.setNum(sheet, 5, row, l.ExpandedUncertaintyDB, nfDB)
+		b.setNum(sheet, 3, row, resultValue(l.WorstMarginDB), nfDB)
+		b.setNum(sheet, 4, row, resultGHz(l.AtFrequencyHz), nfGHz)
+		b.setNum(sheet, 5, row, resultValue(l.ExpandedUncertaintyDB), nfDB)
 		b.set(sheet, 6, row, l.Verdict)
 	}
 	if len(u.Limits) > 0 {
@@ -580,8 +591,8 @@ func writeSummary(b *xlBook, sheet string, u *reduce.Unit, beamSheets, gtValues 
 		}
 		b.set(sheet, 1, row, bm.ID)
 		b.set(sheet, 2, row, beamSheets[i])
-		b.setNum(sheet, 3, row, bm.ThetaDeg, nfDeg)
-		b.setNum(sheet, 4, row, bm.PhiDeg, nfDeg)
+		b.setNum(sheet, 3, row, resultValue(bm.ThetaDeg), nfDeg)
+		b.setNum(sheet, 4, row, resultValue(bm.PhiDeg), nfDeg)
 		b.set(sheet, 5, row, bm.Polarization)
 		b.set(sheet, 6, row, bm.GTForm)
 		b.set(sheet, 7, row, len(bm.FrequencyHz))
@@ -607,11 +618,12 @@ func sameGrid(a, b []float64) bool {
 }
 
 // beamColumn is a column of a beam sheet: values from index start of the
-// grid.
+// grid; frequencies in Hz, shown in GHz, when hz is set.
 type beamColumn struct {
 	xlColumn
 	values []float64
 	start  int
+	hz     bool
 }
 
 // beamLimitCurves are the limits on a beam's grid: Beam.LimitCurves when
@@ -681,47 +693,44 @@ func curveOnGrid(grid []float64, l reduce.LimitResult) (reduce.LimitCurve, bool)
 // definition of method.md section 7.
 func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 	cols := []beamColumn{
-		{xlColumn{"Frequency (GHz)", nfGHz, 14}, nil, 0},
-		{xlColumn{"S21 (dB)", nfDB, 11}, bm.S21DB, 0},
-		{xlColumn{"Range loss (dB)", nfDB, 11}, bm.RangeLossDB, 0},
-		{xlColumn{"Gain (dBi)", nfDB, 11}, bm.GainDBi, 0},
-		{xlColumn{"Gain U (dB)", nfDB, 11}, bm.GainExpandedUncertaintyDB, 0},
-		{xlColumn{"Noise above kT0 (dB)", nfDB, 12}, bm.NoiseRelativeKT0DB, 0},
-		{xlColumn{"G/T (dB/K)", nfDB, 11}, bm.GTdBPerK, 0},
-		{xlColumn{"G/T U (dB)", nfDB, 11}, bm.GTExpandedUncertaintyDB, 0},
+		{xlColumn{"Frequency (GHz)", nfGHz, 14}, bm.FrequencyHz, 0, true},
+		{xlColumn: xlColumn{"S21 (dB)", nfDB, 11}, values: bm.S21DB},
+		{xlColumn: xlColumn{"Range loss (dB)", nfDB, 11}, values: bm.RangeLossDB},
+		{xlColumn: xlColumn{"Gain (dBi)", nfDB, 11}, values: bm.GainDBi},
+		{xlColumn: xlColumn{"Gain U (dB)", nfDB, 11}, values: bm.GainExpandedUncertaintyDB},
+		{xlColumn: xlColumn{"Noise above kT0 (dB)", nfDB, 12}, values: bm.NoiseRelativeKT0DB},
+		{xlColumn: xlColumn{"G/T (dB/K)", nfDB, 11}, values: bm.GTdBPerK},
+		{xlColumn: xlColumn{"G/T U (dB)", nfDB, 11}, values: bm.GTExpandedUncertaintyDB},
 	}
-	freq := make([]float64, len(bm.FrequencyHz))
-	for k, f := range bm.FrequencyHz {
-		freq[k] = toGHz(f)
-	}
-	cols[0].values = freq
 	for _, c := range beamLimitCurves(bm, limits) {
 		unit := quantityUnit(c.Quantity)
 		x := bm.GTdBPerK
 		if c.Quantity == "gain" {
 			x = bm.GainDBi
 		}
+		// The margin of the values as the sheet holds them, so that it is
+		// the difference of the two cells to the last digit.
 		margin := make([]float64, len(c.LimitDB))
 		for i, l := range c.LimitDB {
-			margin[i] = valueAt(x, c.Start+i) - l
+			margin[i] = resultValue(valueAt(x, c.Start+i)) - resultValue(l)
 		}
 		cols = append(cols,
-			beamColumn{xlColumn{fmt.Sprintf("Limit %s (%s)", c.Name, unit), nfDB, 14}, c.LimitDB, c.Start},
-			beamColumn{xlColumn{fmt.Sprintf("Margin %s (dB)", c.Name), nfDB, 14}, margin, c.Start})
+			beamColumn{xlColumn: xlColumn{fmt.Sprintf("Limit %s (%s)", c.Name, unit), nfDB, 14}, values: c.LimitDB, start: c.Start},
+			beamColumn{xlColumn: xlColumn{fmt.Sprintf("Margin %s (dB)", c.Name), nfDB, 14}, values: margin, start: c.Start})
 	}
 	if bm.RangeDriftDB != nil {
-		cols = append(cols, beamColumn{xlColumn{"Range drift (dB)", nfDB, 11}, bm.RangeDriftDB, 0})
+		cols = append(cols, beamColumn{xlColumn: xlColumn{"Range drift (dB)", nfDB, 11}, values: bm.RangeDriftDB})
 	}
 	if o := bm.OtherForm; o != nil {
 		cols = append(cols,
-			beamColumn{xlColumn{fmt.Sprintf("G/T %s (dB/K)", o.Form), nfDB, 14}, o.GTdBPerK, 0},
-			beamColumn{xlColumn{"Form difference (dB)", nfDB, 12}, o.DifferenceDB, 0})
+			beamColumn{xlColumn: xlColumn{fmt.Sprintf("G/T %s (dB/K)", o.Form), nfDB, 14}, values: o.GTdBPerK},
+			beamColumn{xlColumn: xlColumn{"Form difference (dB)", nfDB, 12}, values: o.DifferenceDB})
 	}
 	if p := bm.Projection; p != nil {
 		cols = append(cols,
-			beamColumn{xlColumn{"System noise (K)", nfDB, 12}, p.SystemNoiseK, 0},
-			beamColumn{xlColumn{"Receiver noise (K)", nfDB, 12}, p.ReceiverNoiseK, 0},
-			beamColumn{xlColumn{fmt.Sprintf("G/T at %g K, derived (dB/K)", p.OperatingAntennaK), nfDB, 16}, p.OperatingGTdBPerK, 0})
+			beamColumn{xlColumn: xlColumn{"System noise (K)", nfDB, 12}, values: p.SystemNoiseK},
+			beamColumn{xlColumn: xlColumn{"Receiver noise (K)", nfDB, 12}, values: p.ReceiverNoiseK},
+			beamColumn{xlColumn: xlColumn{fmt.Sprintf("G/T at %g K, derived (dB/K)", p.OperatingAntennaK), nfDB, 16}, values: p.OperatingGTdBPerK})
 	}
 	return cols
 }
@@ -758,7 +767,7 @@ func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.Li
 	for i, c := range cols {
 		t.widths[i] = c.width
 		t.rows[0][i] = textCell(c.header, b.header)
-		t.cols[i] = bulkColumn{values: c.values, start: c.start, style: b.numStyle(c.format)}
+		t.cols[i] = bulkColumn{values: c.values, start: c.start, style: b.numStyle(c.format), hz: c.hz}
 	}
 	b.check(b.f.SetPanes(sheet, &excelize.Panes{
 		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
@@ -777,8 +786,8 @@ func writeLimitsSheet(b *xlBook, sheet string, limits []reduce.LimitResult) {
 	}, true)
 	for i, l := range limits {
 		r := i + 2
-		b.setRow(sheet, r, l.Name, l.Quantity, l.Beam, l.Statistic, l.WorstMarginDB, toGHz(l.AtFrequencyHz),
-			l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB, l.Verdict)
+		b.setRow(sheet, r, l.Name, l.Quantity, l.Beam, l.Statistic, resultValue(l.WorstMarginDB), resultGHz(l.AtFrequencyHz),
+			resultValue(l.ValueDB), resultValue(l.LimitDB), resultValue(l.ExpandedUncertaintyDB), l.Verdict)
 	}
 	if len(limits) > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("J2:J%d", len(limits)+1))
@@ -843,7 +852,7 @@ func writeUncertaintySheet(b *xlBook, sheet string, u *reduce.Unit) {
 			if k < 0 {
 				continue
 			}
-			f := toGHz(bm.FrequencyHz[k])
+			f := frequencyHz(bm.FrequencyHz[k])
 			for _, tm := range part.bud.Terms {
 				t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis, tm.Name, tm.Source, tm.Distribution, tm.Divisor,
 					valueAt(tm.ValueDB, k), valueAt(tm.StandardDB, k)))
@@ -870,9 +879,12 @@ func (b *xlBook) columnStyles(cols []xlColumn) []int {
 	return styles
 }
 
+// frequencyHz is a frequency in Hz for bulkRow, written in GHz.
+type frequencyHz float64
+
 // bulkRow makes a row of cells from values as set writes them: nil, an
 // empty text and a non-finite number are empty cells; numbers (float64,
-// int) take the column's style.
+// int, frequencyHz) take the column's style.
 func bulkRow(styles []int, values ...any) []bulkCell {
 	row := make([]bulkCell, len(values))
 	for i, v := range values {
@@ -885,6 +897,8 @@ func bulkRow(styles []int, values ...any) []bulkCell {
 			row[i] = numCell(x, style)
 		case int:
 			row[i] = numCell(float64(x), style)
+		case frequencyHz:
+			row[i] = freqCell(float64(x), style)
 		case string:
 			row[i] = textCell(x, style)
 		}

@@ -150,15 +150,52 @@ func readWorkbook(t *testing.T, data []byte) *xlDump {
 	return d
 }
 
-// sameNumber says whether a cell holds want: the workbook keeps 15
-// significant digits (the precision of a spreadsheet number, general
-// knowledge), far below the printed 0.000.
+// sameNumber says whether a cell holds want to 15 significant digits (the
+// precision of a spreadsheet number, general knowledge): the fleet
+// workbook's numbers, and the whole numbers of the unit workbook.
 func sameNumber(got any, want float64) bool {
 	g, ok := got.(float64)
 	if !ok {
 		return false
 	}
 	return math.Abs(g-want) <= 1e-12*math.Max(1, math.Abs(want))
+}
+
+// sameResult says whether a unit workbook cell holds want, a value as
+// result.json holds it (asResult): the cell is written at the rounding of
+// result.json, so it is that number, up to 1e-9 (a thousandth of the 1e-6
+// step), which no unrounded value meets by chance.
+func sameResult(got any, want float64) bool {
+	g, ok := got.(float64)
+	return ok && math.Abs(g-want) <= 1e-9
+}
+
+// asResult is the unit as result.json holds it: encoded by ResultJSON and
+// read back by ParseResultJSON (the round trip `gtpack index` makes).
+func asResult(t *testing.T, u *reduce.Unit) *reduce.Unit {
+	t.Helper()
+	data, err := ResultJSON(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ru, err := ParseResultJSON(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ru
+}
+
+// round6 rounds v half away from zero to 1e-6 (general knowledge), for the
+// values a cell holds that result.json leaves out (a budget term's stated
+// value, a limit evaluated on the grid).
+func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
+
+// onMicroGrid says whether the cell holds a whole number of 1e-6 within
+// 0.5e-6 of want: want rounded to the precision of result.json, without
+// deciding a near tie for it.
+func onMicroGrid(got any, want float64) bool {
+	g, ok := got.(float64)
+	return ok && math.Abs(g-want) <= 0.5e-6+1e-12 && math.Abs(g*1e6-math.Round(g*1e6)) < 1e-6
 }
 
 // workbookUnit is the shared fixture with limit curves (one covering only
@@ -211,6 +248,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 		t.Fatal(err)
 	}
 	d := readWorkbook(t, data)
+	ru := asResult(t, u)
 
 	wantSheets := []string{"Summary", "Beam b00", "Beam b01", "Beam b-1", "Beam b-1 (2)",
 		"Beam a_very_long_beam(identifie", "Limits", "Uncertainty", "Flags", "Inputs"}
@@ -231,13 +269,13 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 
 	t.Run("summary", func(t *testing.T) {
 		s := d.sheet(t, "Summary")
-		for i, kv := range summaryFields(u) {
+		for i, kv := range summaryFields(ru) {
 			r := i + 2
 			if s.cell(r, 1) != kv[0] {
 				t.Errorf("A%d = %v, want %v", r, s.cell(r, 1), kv[0])
 			}
 			if f, ok := kv[1].(float64); ok {
-				if !sameNumber(s.cell(r, 2), f) || s.format(r, 2) != "0.0" {
+				if !sameResult(s.cell(r, 2), f) || s.format(r, 2) != "0.0" {
 					t.Errorf("B%d = %v (%s), want %v (0.0)", r, s.cell(r, 2), s.format(r, 2), f)
 				}
 			} else if s.cell(r, 2) != kv[1] {
@@ -248,7 +286,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 		if hr < 0 {
 			t.Fatal("Summary has no limits table")
 		}
-		for i, l := range u.Limits {
+		for i, l := range ru.Limits {
 			r := hr + 1 + i
 			if s.cell(r, 1) != l.Name || s.cell(r, 2) != l.Beam || s.cell(r, 6) != l.Verdict {
 				t.Errorf("limit row %d: %v %v %v, want %s %s %s", r, s.cell(r, 1), s.cell(r, 2), s.cell(r, 6), l.Name, l.Beam, l.Verdict)
@@ -258,7 +296,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 				want   float64
 				format string
 			}{{3, l.WorstMarginDB, "0.000"}, {4, l.AtFrequencyHz / 1e9, "0.000000"}, {5, l.ExpandedUncertaintyDB, "0.000"}} {
-				if !sameNumber(s.cell(r, c.col), c.want) || s.format(r, c.col) != c.format {
+				if !sameResult(s.cell(r, c.col), c.want) || s.format(r, c.col) != c.format {
 					t.Errorf("limit row %d col %d = %v (%s), want %v (%s)", r, c.col, s.cell(r, c.col), s.format(r, c.col), c.want, c.format)
 				}
 			}
@@ -273,9 +311,8 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 	})
 
 	for i := range u.Beams {
-		bm := &u.Beams[i]
 		s := d.sheet(t, wantSheets[1+i])
-		t.Run(s.Title, func(t *testing.T) { checkBeamSheet(t, s, bm) })
+		t.Run(s.Title, func(t *testing.T) { checkBeamSheet(t, s, &u.Beams[i], &ru.Beams[i]) })
 	}
 
 	t.Run("limits", func(t *testing.T) {
@@ -283,7 +320,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 		if len(s.Rows) != len(u.Limits)+1 {
 			t.Fatalf("%d rows, want %d", len(s.Rows), len(u.Limits)+1)
 		}
-		for i, l := range u.Limits {
+		for i, l := range ru.Limits {
 			r := i + 2
 			texts := []string{l.Name, l.Quantity, l.Beam, l.Statistic}
 			for c, w := range texts {
@@ -293,7 +330,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 			}
 			nums := []float64{l.WorstMarginDB, l.AtFrequencyHz / 1e9, l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB}
 			for c, w := range nums {
-				if !sameNumber(s.cell(r, c+5), w) {
+				if !sameResult(s.cell(r, c+5), w) {
 					t.Errorf("row %d col %d = %v, want %v", r, c+5, s.cell(r, c+5), w)
 				}
 			}
@@ -321,7 +358,8 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 		if bm.FrequencyHz[k] != l.AtFrequencyHz {
 			t.Fatalf("fixture's worst frequency %g is not on the grid", l.AtFrequencyHz)
 		}
-		bud := bm.GTBudget
+		bud, rbud := bm.GTBudget, ru.Beams[0].GTBudget
+		atHz := ru.Beams[0].FrequencyHz[k]
 		var rows []int
 		for r := 2; r <= len(s.Rows); r++ {
 			if s.cell(r, 1) == "b00" && s.cell(r, 2) == "G/T" {
@@ -337,23 +375,31 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 			if s.cell(r, 5) != tm.Name || s.cell(r, 6) != tm.Source || s.cell(r, 7) != tm.Distribution {
 				t.Errorf("row %d: %v %v %v, want %s %s %s", r, s.cell(r, 5), s.cell(r, 6), s.cell(r, 7), tm.Name, tm.Source, tm.Distribution)
 			}
-			if !sameNumber(s.cell(r, 3), l.AtFrequencyHz/1e9) || !sameNumber(s.cell(r, 8), tm.Divisor) ||
-				!sameNumber(s.cell(r, 9), tm.ValueDB[k]) || !sameNumber(s.cell(r, 10), tm.StandardDB[k]) {
+			// result.json holds the divisor and u; the stated value it
+			// leaves out, so the cell is that value rounded to 1e-6.
+			rt := rbud.Terms[i]
+			if !sameResult(s.cell(r, 3), atHz/1e9) || !sameResult(s.cell(r, 8), rt.Divisor) ||
+				!sameResult(s.cell(r, 9), round6(tm.ValueDB[k])) || !sameResult(s.cell(r, 10), rt.StandardDB[k]) {
 				t.Errorf("row %d: %v GHz, divisor %v, value %v, u %v; want %v, %v, %v, %v", r, s.cell(r, 3), s.cell(r, 8),
-					s.cell(r, 9), s.cell(r, 10), l.AtFrequencyHz/1e9, tm.Divisor, tm.ValueDB[k], tm.StandardDB[k])
+					s.cell(r, 9), s.cell(r, 10), atHz/1e9, rt.Divisor, round6(tm.ValueDB[k]), rt.StandardDB[k])
 			}
 			uc, _ := s.cell(r, 10).(float64)
 			sumSq += uc * uc
 		}
 		rc, re := rows[len(rows)-2], rows[len(rows)-1]
-		if !sameNumber(s.cell(rc, 10), bud.CombinedDB[k]) || !sameNumber(s.cell(re, 9), bud.ExpandedDB[k]) {
-			t.Errorf("combined %v expanded %v, want %v %v", s.cell(rc, 10), s.cell(re, 9), bud.CombinedDB[k], bud.ExpandedDB[k])
+		if !sameResult(s.cell(rc, 10), rbud.CombinedDB[k]) || !sameResult(s.cell(re, 9), rbud.ExpandedDB[k]) {
+			t.Errorf("combined %v expanded %v, want %v %v", s.cell(rc, 10), s.cell(re, 9), rbud.CombinedDB[k], rbud.ExpandedDB[k])
 		}
 		// JCGM 100:2008 (GUM) 5.1.2 and 6.2.1: u_c is the root sum of
 		// squares of the rows' standard uncertainties, U = k u_c with k = 2.
+		// Every cell is rounded to 1e-6 (at most 0.5e-6 off): the root sum
+		// of squares of n rounded terms is within 0.5e-6 sqrt(n) of the
+		// exact one (triangle inequality of the Euclidean norm), u_c adds
+		// its own 0.5e-6, and U = 2 u_c is off by at most 0.5e-6 + 2 x 0.5e-6.
 		uc, _ := s.cell(rc, 10).(float64)
 		U, _ := s.cell(re, 9).(float64)
-		if math.Abs(uc-math.Sqrt(sumSq)) > 1e-9 || math.Abs(U-2*uc) > 1e-9 {
+		tolUC := 0.5e-6*(1+math.Sqrt(float64(len(bud.Terms)))) + 1e-12
+		if math.Abs(uc-math.Sqrt(sumSq)) > tolUC || math.Abs(U-2*uc) > 1.5e-6+1e-12 {
 			t.Errorf("sheet's u_c %v, U %v; GUM gives u_c %v, U %v", uc, U, math.Sqrt(sumSq), 2*uc)
 		}
 	})
@@ -384,8 +430,10 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 	})
 }
 
-// checkBeamSheet compares every 50th frequency row with the beam's values.
-func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
+// checkBeamSheet compares every 50th frequency row with the beam's values
+// as result.json holds them (rb, from asResult), and checks that the cells
+// are those values and not the unrounded ones of bm.
+func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm, rb *reduce.Beam) {
 	cols := beamColumns(bm, nil)
 	n := len(bm.FrequencyHz)
 	if len(s.Rows) != n+1 {
@@ -395,21 +443,22 @@ func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
 		header string
 		value  func(k int) (float64, bool)
 		format string
+		raw    []float64 // the unrounded values, for a dB column of bm
 	}
 	plain := func(xs []float64) func(int) (float64, bool) {
 		return func(k int) (float64, bool) { return xs[k], true }
 	}
 	exp := []expect{
-		{"Frequency (GHz)", func(k int) (float64, bool) { return bm.FrequencyHz[k] / 1e9, true }, "0.000000"},
-		{"S21 (dB)", plain(bm.S21DB), "0.000"},
-		{"Range loss (dB)", plain(bm.RangeLossDB), "0.000"},
-		{"Gain (dBi)", plain(bm.GainDBi), "0.000"},
-		{"Gain U (dB)", plain(bm.GainExpandedUncertaintyDB), "0.000"},
-		{"Noise above kT0 (dB)", plain(bm.NoiseRelativeKT0DB), "0.000"},
-		{"G/T (dB/K)", plain(bm.GTdBPerK), "0.000"},
-		{"G/T U (dB)", plain(bm.GTExpandedUncertaintyDB), "0.000"},
+		{"Frequency (GHz)", func(k int) (float64, bool) { return rb.FrequencyHz[k] / 1e9, true }, "0.000000", nil},
+		{"S21 (dB)", plain(rb.S21DB), "0.000", bm.S21DB},
+		{"Range loss (dB)", plain(rb.RangeLossDB), "0.000", bm.RangeLossDB},
+		{"Gain (dBi)", plain(rb.GainDBi), "0.000", bm.GainDBi},
+		{"Gain U (dB)", plain(rb.GainExpandedUncertaintyDB), "0.000", bm.GainExpandedUncertaintyDB},
+		{"Noise above kT0 (dB)", plain(rb.NoiseRelativeKT0DB), "0.000", bm.NoiseRelativeKT0DB},
+		{"G/T (dB/K)", plain(rb.GTdBPerK), "0.000", bm.GTdBPerK},
+		{"G/T U (dB)", plain(rb.GTExpandedUncertaintyDB), "0.000", bm.GTExpandedUncertaintyDB},
 	}
-	for _, c := range bm.LimitCurves {
+	for _, c := range rb.LimitCurves {
 		c := c
 		in := func(k int) bool { return k >= c.Start && k < c.Start+len(c.LimitDB) }
 		exp = append(exp,
@@ -418,15 +467,17 @@ func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
 					return 0, false
 				}
 				return c.LimitDB[k-c.Start], true
-			}, "0.000"},
-			// method.md section 7: margin = x - L.
+			}, "0.000", nil},
+			// method.md section 7: margin = x - L, of the values as the
+			// sheet (and result.json) holds them.
 			expect{"Margin " + c.Name + " (dB)", func(k int) (float64, bool) {
 				if !in(k) {
 					return 0, false
 				}
-				return bm.GTdBPerK[k] - c.LimitDB[k-c.Start], true
-			}, "0.000"})
+				return rb.GTdBPerK[k] - c.LimitDB[k-c.Start], true
+			}, "0.000", nil})
 	}
+	unrounded := 0 // cells of a dB column away from bm's unrounded value
 	if len(cols) < len(exp) {
 		t.Fatalf("%d columns, want at least %d", len(cols), len(exp))
 	}
@@ -444,10 +495,18 @@ func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm *reduce.Beam) {
 				}
 				continue
 			}
-			if !sameNumber(got, want) || s.format(r, ci+1) != e.format {
+			if !sameResult(got, want) || s.format(r, ci+1) != e.format {
 				t.Errorf("%s row %d = %v (%s), want %v (%s)", e.header, r, got, s.format(r, ci+1), want, e.format)
 			}
+			if g, ok := got.(float64); ok && e.raw != nil && math.Abs(g-e.raw[k]) > 1e-9 {
+				unrounded++
+			}
 		}
+	}
+	// The fixture's values have more than six decimals: had the cells kept
+	// 15 digits, none would be away from the unrounded value.
+	if unrounded == 0 {
+		t.Error("every dB cell holds the unrounded value, not result.json's")
 	}
 	if s.Freeze == nil || *s.Freeze != "A2" {
 		t.Errorf("frozen at %v, want A2", s.Freeze)
@@ -716,7 +775,7 @@ func TestWorkbookNonFiniteAndEmpty(t *testing.T) {
 			t.Errorf("cell (%d,%d) = %v, want empty", c.row, c.col, v)
 		}
 	}
-	if !sameNumber(s.cell(6, 2), u.Beams[0].S21DB[4]) || !sameNumber(s.cell(6, 7), u.Beams[0].GTdBPerK[4]) {
+	if !onMicroGrid(s.cell(6, 2), u.Beams[0].S21DB[4]) || !onMicroGrid(s.cell(6, 7), u.Beams[0].GTdBPerK[4]) {
 		t.Errorf("finite neighbours lost: %v %v", s.cell(6, 2), s.cell(6, 7))
 	}
 	if v := d.sheet(t, "Summary").cell(15, 2); v != nil {
@@ -864,11 +923,16 @@ func TestBeamLimitFromVertices(t *testing.T) {
 				continue
 			}
 			inside++
-			if g, _ := got.(float64); math.Abs(g-want) > 1e-9 {
-				t.Errorf("%s at %g Hz = %v, want %v", c.name, f, got, want)
+			// The cells hold result.json's rounding to 1e-6.
+			if !onMicroGrid(got, want) {
+				t.Errorf("%s at %g Hz = %v, want %v to 1e-6", c.name, f, got, want)
 			}
-			if g, _ := s.cell(k+2, mc).(float64); math.Abs(g-(bm.GTdBPerK[k]-want)) > 1e-9 {
-				t.Errorf("%s margin at %g Hz = %v, want %v", c.name, f, g, bm.GTdBPerK[k]-want)
+			// The margin is the G/T cell minus the limit cell, exactly to
+			// the 1e-6 they hold, and the margin x - L to 1e-6.
+			gt, _ := s.cell(k+2, 7).(float64)
+			lim, _ := got.(float64)
+			if g, _ := s.cell(k+2, mc).(float64); !sameResult(g, gt-lim) || math.Abs(g-(bm.GTdBPerK[k]-want)) > 1e-6+1e-12 {
+				t.Errorf("%s margin at %g Hz = %v, want %v - %v", c.name, f, g, gt, lim)
 			}
 		}
 		// 11.0 to 12.0 GHz holds the grid points 15 (11.0075 GHz) to 63 (11.9915 GHz).
@@ -884,55 +948,55 @@ func TestBeamLimitFromVertices(t *testing.T) {
 	}
 }
 
-// appendXLNumber keeps 15 significant digits, as a spreadsheet does (the
-// precision of an IEEE 754 double shown by spreadsheet programs, general
-// knowledge). Expected texts worked out by hand.
-func TestAppendXLNumber(t *testing.T) {
+// A frequency cell is result.json's text of the frequency in Hz with the
+// decimal point moved nine places (1 GHz = 1e9 Hz, SI): the expected texts
+// are worked out by hand from the texts result.json writes (whole hertz as
+// they are, 15 significant digits from 1e9 Hz up, 1e-6 below).
+func TestAppendResultGHz(t *testing.T) {
 	tests := []struct {
-		v    float64
+		hz   float64
 		want string
 	}{
-		{0, "0"}, {math.Copysign(0, -1), "0"}, {1, "1"}, {-1, "-1"}, {10, "10"}, {100, "100"}, {0.1, "0.1"},
-		{0.1 + 0.2, "0.3"}, // 0.30000000000000004 (general knowledge): 15 digits drop the 4
-		{11.719875, "11.719875"}, {-21.21237019029, "-21.21237019029"}, {52.59935532253548, "52.5993553225355"},
-		{0.00251286072625027, "0.00251286072625027"}, {-0.000012345678901234567, "-0.0000123456789012346"},
-		{9.9999999999999995, "10"}, {999999999999999.4, "999999999999999"}, {123456789012345.67, "123456789012346"},
-		{2.5e-5, "0.000025"}, {1e-5, "0.00001"}, {9.99e-6, "9.99e-06"}, {-3.91886975727152e-17, "-3.91886975727152e-17"},
-		{1e15, "1e+15"}, {475.96959643723, "475.96959643723"}, {1e14, "100000000000000"},
+		{0, "0"}, {11.725e9, "11.725"}, {10.7e9, "10.7"}, {12e9, "12"}, {1e9, "1"},
+		{11725000001, "11.725000001"}, {500000, "0.0005"}, {1, "0.000000001"}, {0.5, "0.0000000005"},
+		{-2.5e6, "-0.0025"}, {123456789012, "123.456789012"},
+		// 11.7e9 + 0.30000000000000004 Hz: result.json keeps 15 significant digits, 11700000000.3.
+		{11.7e9 + 0.30000000000000004, "11.7000000003"},
+		// 10.7e9 + 1e-6 Hz: below the 15th digit, result.json writes 10700000000.
+		{10.7e9 + 1e-6, "10.7"},
 	}
 	for _, tc := range tests {
-		if got := string(appendXLNumber(nil, tc.v)); got != tc.want {
-			t.Errorf("appendXLNumber(%v) = %s, want %s", tc.v, got, tc.want)
+		if got := string(appendResultGHz(nil, tc.hz)); got != tc.want {
+			t.Errorf("appendResultGHz(%v) = %s, want %s", tc.hz, got, tc.want)
+		}
+		want, _ := strconv.ParseFloat(tc.want, 64)
+		if got := resultGHz(tc.hz); got != want {
+			t.Errorf("resultGHz(%v) = %v, want %v", tc.hz, got, want)
 		}
 	}
-	// Over a spread of values: the text reads back within 0.6 units of the
-	// 15th significant digit (plus 0.1 for reading it back into a float64),
-	// holds at most 15 digits, and is strconv's 15-digit rounding (the
-	// reference) except, at most, by one in that last digit.
-	x := 0.000123
-	for i := 0; i < 20000; i++ {
-		x = math.Mod(x*7.919+0.3141592653589793, 2000) - 1000
-		for _, v := range []float64{x, x * 1e-7, x * 1e-3, x * 1e4, x * 1e11} {
-			text := string(appendXLNumber(nil, v))
-			back, err := strconv.ParseFloat(text, 64)
-			unit := math.Pow(10, math.Floor(math.Log10(math.Abs(v)))-14)
-			if err != nil || math.Abs(back-v) > 0.7*unit {
-				t.Fatalf("appendXLNumber(%v) = %s", v, text)
-			}
-			digits := strings.TrimLeft(strings.Map(func(r rune) rune {
-				if r >= '0' && r <= '9' {
-					return r
-				}
-				return -1
-			}, strings.SplitN(text, "e", 2)[0]), "0")
-			if len(strings.TrimRight(digits, "0")) > 15 {
-				t.Fatalf("appendXLNumber(%v) = %s: more than 15 significant digits", v, text)
-			}
-			ref, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 15, 64), 64)
-			if math.Abs(back-ref) > 1.2*unit {
-				t.Fatalf("appendXLNumber(%v) = %s, strconv rounds to %v", v, text, ref)
-			}
+}
+
+// resultValue is the number result.json's text reads back to: rounded
+// half away from zero to 1e-6 below 1e9 (expected values worked out by
+// hand), 15 significant digits above.
+func TestResultValue(t *testing.T) {
+	tests := []struct{ v, want float64 }{
+		{0, 0}, {math.Copysign(0, -1), 0}, {-0.0000004, 0}, {1.23456749, 1.234567}, {1.2345675, 1.234568},
+		{-21.21237019029, -21.21237}, {52.59935532253548, 52.599355}, {0.1 + 0.2, 0.3}, {-1234, -1234},
+		{11725000000.123456, 11725000000.1235}, {math.Inf(1), math.Inf(1)},
+	}
+	for _, tc := range tests {
+		got := resultValue(tc.v)
+		if got != tc.want || math.Signbit(got) != math.Signbit(tc.want) {
+			t.Errorf("resultValue(%v) = %v, want %v", tc.v, got, tc.want)
 		}
+		// The same number as the text result.json writes.
+		if text := string(appendJSONFloat(nil, tc.v)); !math.IsInf(tc.v, 0) && text != strconv.FormatFloat(got, 'f', -1, 64) {
+			t.Errorf("resultValue(%v) = %v, result.json writes %s", tc.v, got, text)
+		}
+	}
+	if !math.IsNaN(resultValue(math.NaN())) {
+		t.Error("resultValue(NaN) is not NaN")
 	}
 }
 
@@ -985,18 +1049,5 @@ func TestWriteBulkSheet(t *testing.T) {
 	}
 	if err := writeBulkSheet(io.Discard, []byte(`<worksheet></worksheet>`), tbl); err == nil {
 		t.Error("a sheet without sheetData was accepted")
-	}
-}
-
-func BenchmarkAppendXLNumber(b *testing.B) {
-	vals := make([]float64, 1024)
-	x := 0.123
-	for i := range vals {
-		x = math.Mod(x*7.919+0.3141592653589793, 200) - 100
-		vals[i] = x
-	}
-	buf := make([]byte, 0, 64)
-	for i := 0; i < b.N; i++ {
-		buf = appendXLNumber(buf[:0], vals[i%len(vals)])
 	}
 }
