@@ -6,9 +6,9 @@ import (
 	"strconv"
 )
 
-// Number text shared by the writers: result.json (appendJSONFloat, to 1e-6),
-// the per-frequency CSV of the report (csvNumber, to 0.001 or 0.0001) and
-// the workbooks (appendXLNumber, 15 significant digits).
+// Number text shared by the writers: result.json and the unit workbook's
+// tables (appendJSONFloat, to 1e-6) and the per-frequency CSV of the report
+// (csvNumber, to 0.001 or 0.0001).
 
 // appendDecimal writes v rounded to the given decimals (0 to 6) in the
 // shortest form of the rounded value, without exponent or trailing zeros:
