@@ -46,3 +46,27 @@ measure one-changed "$work/gtpack" build "$archive" -o "$site" --quiet
 sed -i '$ d' "$first"
 awk -v f="$(cat "$work/wall-floor")" -v b="$(cat "$work/wall-full-build")" \
   'BEGIN{printf "full build / floor: %.2f\n", b/f}'
+
+# The fleet stage at ten times the units: the unit states of this site,
+# replicated ten times under new serial numbers, then `gtpack index`. The
+# unit stage holds one unit per worker whatever the archive's size, so this
+# is where memory can grow with the number of units.
+big="$work/site-x10"
+rm -rf "$big"
+mkdir -p "$big/.gtpack/units"
+/usr/bin/python3 - "$site/.gtpack/units" "$big/.gtpack/units" <<'PY'
+import json, os, sys
+src, dst = sys.argv[1], sys.argv[2]
+for name in sorted(os.listdir(src)):
+    state = json.load(open(os.path.join(src, name)))
+    for k in range(10):
+        s = dict(state)
+        serial = "%s-R%d" % (state["serial"], k)
+        s["serial"] = serial
+        s["summary"] = dict(state["summary"], serial=serial)
+        json.dump(s, open(os.path.join(dst, serial + ".json"), "w"))
+PY
+echo "fleet stage, $((N)) units:"
+measure index-x1 "$work/gtpack" index "$site"
+echo "fleet stage, $((N * 10)) units:"
+measure index-x10 "$work/gtpack" index "$big"
