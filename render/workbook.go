@@ -15,7 +15,6 @@ import (
 
 	"github.com/klauspost/compress/flate"
 	"github.com/xuri/excelize/v2"
-	"gonum.org/v1/gonum/interp"
 
 	"gtpack.example/gtpack/reduce"
 )
@@ -626,70 +625,9 @@ type beamColumn struct {
 	hz     bool
 }
 
-// beamLimitCurves are the limits on a beam's grid: Beam.LimitCurves when
-// reduce filled them, otherwise the limit lines of the beam's limit results
-// (LimitResult.LimitCurve, the vertices of reduce's piecewise-linear limit
-// over the judged band) evaluated at the grid points of that band. The
-// vertices include the band edges and every interior point of the limit,
-// so the line through them is the limit itself.
-func beamLimitCurves(bm *reduce.Beam, limits []reduce.LimitResult) []reduce.LimitCurve {
-	if len(bm.LimitCurves) > 0 {
-		return bm.LimitCurves
-	}
-	var out []reduce.LimitCurve
-	for _, l := range limits {
-		if l.Beam != bm.ID || len(l.LimitCurve) == 0 {
-			continue
-		}
-		if c, ok := curveOnGrid(bm.FrequencyHz, l); ok {
-			out = append(out, c)
-		}
-	}
-	return out
-}
-
-// curveOnGrid evaluates a limit's vertices at the grid points inside its
-// band; a grid point within 1e-9 (relative) of a band edge counts as inside,
-// as reduce judges it.
-func curveOnGrid(grid []float64, l reduce.LimitResult) (reduce.LimitCurve, bool) {
-	v := l.LimitCurve
-	lo, hi := v[0].FrequencyHz, v[len(v)-1].FrequencyHz
-	tol := 1e-9 * math.Max(math.Abs(lo), math.Abs(hi))
-	xs := make([]float64, len(v))
-	ys := make([]float64, len(v))
-	for i, p := range v {
-		xs[i], ys[i] = p.FrequencyHz, p.ValueDB
-	}
-	var line interp.PiecewiseLinear
-	single := len(v) == 1
-	if !single {
-		if err := line.Fit(xs, ys); err != nil {
-			return reduce.LimitCurve{}, false
-		}
-	}
-	c := reduce.LimitCurve{Name: l.Name, Quantity: l.Quantity, Start: -1}
-	for k, f := range grid {
-		if f < lo-tol || f > hi+tol {
-			if c.Start >= 0 {
-				break
-			}
-			continue
-		}
-		if c.Start < 0 {
-			c.Start = k
-		}
-		if single {
-			c.LimitDB = append(c.LimitDB, ys[0])
-		} else {
-			c.LimitDB = append(c.LimitDB, line.Predict(f)) // constant beyond the end vertices
-		}
-	}
-	return c, c.Start >= 0
-}
-
 // beamColumns lists the columns of a beam sheet. The limit and margin
-// columns exist only where reduce gave the limit on the beam (see
-// beamLimitCurves); the margin is the quantity minus the limit, the
+// columns exist only where reduce gave the limit on the beam's grid
+// (Beam.LimitCurves): render evaluates no limit itself; the margin is the quantity minus the limit, the
 // definition of method.md section 7.
 func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 	cols := []beamColumn{
@@ -702,7 +640,7 @@ func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 		{xlColumn: xlColumn{"G/T (dB/K)", nfDB, 11}, values: bm.GTdBPerK},
 		{xlColumn: xlColumn{"G/T U (dB)", nfDB, 11}, values: bm.GTExpandedUncertaintyDB},
 	}
-	for _, c := range beamLimitCurves(bm, limits) {
+	for _, c := range bm.LimitCurves {
 		unit := quantityUnit(c.Quantity)
 		x := bm.GTdBPerK
 		if c.Quantity == "gain" {

@@ -871,87 +871,30 @@ func TestWorkbookTextIsNotFormula(t *testing.T) {
 	}
 }
 
-// Without Beam.LimitCurves the limit columns come from the limit results'
-// vertices: a two-vertex line over part of the band and a three-vertex line
-// over all of it. The expected values are straight-line interpolation
-// between the vertices, written out by hand.
-func TestBeamLimitFromVertices(t *testing.T) {
-	u := fixtureUnit(t, 1, 101) // 10.7 to 12.75 GHz in 20.5 MHz steps
-	bm := &u.Beams[0]
-	bm.LimitCurves = nil
-	u.Limits = []reduce.LimitResult{
-		{Name: "narrow", Quantity: "gt", Beam: "b00", Statistic: "min", Verdict: "pass",
-			LimitCurve: []reduce.LimitVertex{{FrequencyHz: 11.0e9, ValueDB: 2.0}, {FrequencyHz: 12.0e9, ValueDB: 2.5}}},
-		{Name: "wide", Quantity: "gt", Beam: "b00", Statistic: "mean", Verdict: "pass",
-			LimitCurve: []reduce.LimitVertex{{FrequencyHz: 10.7e9, ValueDB: 2.0}, {FrequencyHz: 11.725e9, ValueDB: 3.0}, {FrequencyHz: 12.75e9, ValueDB: 2.6}}},
-		{Name: "other beam", Quantity: "gt", Beam: "b09", LimitCurve: []reduce.LimitVertex{{FrequencyHz: 11e9, ValueDB: 1}, {FrequencyHz: 12e9, ValueDB: 1}}},
-	}
-	narrow := func(f float64) (float64, bool) {
-		if f < 11.0e9*(1-1e-9) || f > 12.0e9*(1+1e-9) {
-			return 0, false
-		}
-		return 2.0 + 0.5*(f-11.0e9)/1e9, true
-	}
-	wide := func(f float64) (float64, bool) {
-		if f <= 11.725e9 {
-			return 2.0 + 1.0*(f-10.7e9)/1.025e9, true
-		}
-		return 3.0 - 0.4*(f-11.725e9)/1.025e9, true
-	}
+// The limit and margin columns come from Beam.LimitCurves, reduce's limit
+// on the beam's grid, and from nothing else: without them the beam sheet
+// has no limit columns (render evaluates no limit of its own), even when
+// the limit results carry the vertices of the limit line.
+func TestBeamSheetLimitColumnsOnlyFromReduce(t *testing.T) {
+	u := fixtureUnit(t, 1, 101)
+	u.Beams[0].LimitCurves = nil
+	u.Limits = []reduce.LimitResult{{Name: "wide", Quantity: "gt", Beam: "b00", Statistic: "min", Verdict: "pass",
+		LimitCurve: []reduce.LimitVertex{{FrequencyHz: 10.7e9, ValueDB: 2.0}, {FrequencyHz: 12.75e9, ValueDB: 2.6}}}}
 	data, err := UnitWorkbook(u)
 	if err != nil {
 		t.Fatal(err)
 	}
-	d := readWorkbook(t, data)
-	s := d.sheet(t, "Beam b00")
-	for i, c := range []struct {
-		name string
-		fn   func(float64) (float64, bool)
-	}{{"narrow", narrow}, {"wide", wide}} {
-		lc, mc := 9+2*i, 10+2*i
-		if s.cell(1, lc) != "Limit "+c.name+" (dB/K)" || s.cell(1, mc) != "Margin "+c.name+" (dB)" {
-			t.Fatalf("headers %v %v", s.cell(1, lc), s.cell(1, mc))
-		}
-		inside := 0
-		for k, f := range bm.FrequencyHz {
-			want, ok := c.fn(f)
-			got := s.cell(k+2, lc)
-			if !ok {
-				if got != nil {
-					t.Errorf("%s at %g Hz = %v, want empty", c.name, f, got)
-				}
-				continue
-			}
-			inside++
-			// The cells hold result.json's rounding to 1e-6.
-			if !onMicroGrid(got, want) {
-				t.Errorf("%s at %g Hz = %v, want %v to 1e-6", c.name, f, got, want)
-			}
-			// The margin is the G/T cell minus the limit cell, exactly to
-			// the 1e-6 they hold, and the margin x - L to 1e-6.
-			gt, _ := s.cell(k+2, 7).(float64)
-			lim, _ := got.(float64)
-			if g, _ := s.cell(k+2, mc).(float64); !sameResult(g, gt-lim) || math.Abs(g-(bm.GTdBPerK[k]-want)) > 1e-6+1e-12 {
-				t.Errorf("%s margin at %g Hz = %v, want %v - %v", c.name, f, g, gt, lim)
-			}
-		}
-		// 11.0 to 12.0 GHz holds the grid points 15 (11.0075 GHz) to 63 (11.9915 GHz).
-		if want := map[string]int{"narrow": 49, "wide": 101}[c.name]; inside != want {
-			t.Errorf("%s covers %d points, want %d", c.name, inside, want)
+	s := readWorkbook(t, data).sheet(t, "Beam b00")
+	for col := 1; col <= 12; col++ {
+		if h, ok := s.cell(1, col).(string); ok && (strings.HasPrefix(h, "Limit ") || strings.HasPrefix(h, "Margin ")) {
+			t.Errorf("column %d is %q: a limit column without reduce's limit curve", col, h)
 		}
 	}
-	if len(s.Rows[0]) > 14 && s.cell(1, 13) == "Limit other beam (dB/K)" {
-		t.Error("a limit of another beam shows on b00")
-	}
-	if len(s.Charts) != 1 || len(s.Charts[0].Series) != 3 {
-		t.Errorf("chart series %+v, want G/T and two limits", s.Charts)
+	if s.cell(1, 8) != "G/T U (dB)" {
+		t.Errorf("column 8 is %v, want the last data column \"G/T U (dB)\"", s.cell(1, 8))
 	}
 }
 
-// A frequency cell is result.json's text of the frequency in Hz with the
-// decimal point moved nine places (1 GHz = 1e9 Hz, SI): the expected texts
-// are worked out by hand from the texts result.json writes (whole hertz as
-// they are, 15 significant digits from 1e9 Hz up, 1e-6 below).
 func TestAppendResultGHz(t *testing.T) {
 	tests := []struct {
 		hz   float64
