@@ -7,13 +7,12 @@ import "sort"
 // its table file) and spec documents it names. It reads nothing, so that a
 // build can tell from file stamps alone whether a unit needs redoing.
 func RunFiles(a *Archive, r *Run) []string {
-	var files []string
+	files := runDocuments(a, r)
 	add := func(p string) {
 		if p != "" {
 			files = append(files, p)
 		}
 	}
-	add(r.File)
 	add(r.RangePre)
 	add(r.RangePost)
 	for _, b := range r.Beams {
@@ -24,16 +23,6 @@ func RunFiles(a *Archive, r *Run) []string {
 	}
 	add(r.Elements)
 	add(r.Notes)
-	if s := a.Stations[r.Station]; s != nil {
-		add(s.File)
-	}
-	if ref := a.References[r.Reference]; ref != nil {
-		add(ref.File)
-		add(ref.TableFile)
-	}
-	if sp := a.Specs[r.Product]; sp != nil {
-		add(sp.File)
-	}
 	sort.Strings(files)
 	out := files[:0]
 	for i, f := range files {
@@ -42,4 +31,24 @@ func RunFiles(a *Archive, r *Run) []string {
 		}
 	}
 	return out
+}
+
+// runDocuments lists the YAML documents a run depends on: its run.yaml and
+// the station, reference (with its table file) and spec it names, where
+// discovery accepted them.
+func runDocuments(a *Archive, r *Run) []string {
+	docs := []string{r.File}
+	if s := a.Stations[r.Station]; s != nil {
+		docs = append(docs, s.File)
+	}
+	if ref := a.References[r.Reference]; ref != nil {
+		docs = append(docs, ref.File)
+		if ref.TableFile != "" {
+			docs = append(docs, ref.TableFile)
+		}
+	}
+	if sp := a.Specs[r.Product]; sp != nil {
+		docs = append(docs, sp.File)
+	}
+	return docs
 }

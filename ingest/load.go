@@ -38,18 +38,8 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 	l := &loader{fs: newArchiveFS(a.Root), run: r, inputs: map[string]InputFile{}}
 	d := &RunData{Beams: make([]BeamData, len(r.Beams))}
 
-	l.readShared(r.File)
-	if s := a.Stations[r.Station]; s != nil {
-		l.readShared(s.File)
-	}
-	if ref := a.References[r.Reference]; ref != nil {
-		l.readShared(ref.File)
-		if ref.TableFile != "" {
-			l.readShared(ref.TableFile)
-		}
-	}
-	if sp := a.Specs[r.Product]; sp != nil {
-		l.readShared(sp.File)
+	for _, doc := range runDocuments(a, r) {
+		l.readShared(doc)
 	}
 
 	if r.RangePre != "" {
