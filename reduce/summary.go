@@ -4,14 +4,20 @@ import "math"
 
 // Summary is the part of the unit the fleet statistics need. Boresight is
 // the G/T of the beam with the smallest |theta| among the beams that have
-// G/T (the first such beam on a tie); nil when no beam has G/T.
+// G/T (the first such beam on a tie); nil when no beam has G/T. The limit
+// results leave out their limit lines (LimitCurve): the fleet does not
+// draw them, and a summary is held for every unit of an archive at once.
 func (u *Unit) Summary() UnitSummary {
 	s := UnitSummary{
 		Serial:  u.Serial,
 		Product: u.Product,
 		Started: u.Started,
 		Verdict: u.Verdict,
-		Limits:  append([]LimitResult{}, u.Limits...),
+		Limits:  make([]LimitResult, len(u.Limits)),
+	}
+	for i, l := range u.Limits {
+		l.LimitCurve = nil
+		s.Limits[i] = l
 	}
 	best := -1
 	for i := range u.Beams {

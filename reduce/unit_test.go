@@ -185,6 +185,15 @@ func TestReduceUnitRecoversModel(t *testing.T) {
 	if s.Boresight == nil || s.Boresight.Beam != "b00" || len(s.Boresight.GTdBPerK) != 101 || s.Verdict != VerdictPass {
 		t.Errorf("summary %+v", s)
 	}
+	// The summary's limits are the unit's, without their limit lines.
+	if len(s.Limits) != len(u.Limits) || len(u.Limits) == 0 || len(u.Limits[0].LimitCurve) == 0 {
+		t.Fatalf("summary has %d limits, unit %d (first with %d vertices)", len(s.Limits), len(u.Limits), len(u.Limits[0].LimitCurve))
+	}
+	for i, l := range s.Limits {
+		if l.LimitCurve != nil || l.Name != u.Limits[i].Name || l.WorstMarginDB != u.Limits[i].WorstMarginDB {
+			t.Errorf("summary limit %d: %+v", i, l)
+		}
+	}
 }
 
 func TestReduceUnitMethodFlagAndProjection(t *testing.T) {

@@ -172,6 +172,7 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	known := map[string]*unitState{}
 	for out := range outcomes {
 		if out.state != nil {
+			out.state.Stamps = nil // written already; the fleet pages do not need them
 			known[out.serial] = out.state
 		}
 		for _, p := range out.problems {

@@ -234,6 +234,9 @@ func (s *site) states(known map[string]*unitState) ([]*unitState, error) {
 			defer wg.Done()
 			for i := w; i < len(toRead); i += workers {
 				read[i], errs[i] = s.readState(toRead[i])
+				if read[i] != nil {
+					read[i].Stamps = nil // only the next build's change check needs them
+				}
 			}
 		}(w)
 	}
@@ -262,25 +265,28 @@ func writeFleet(s *site, known map[string]*unitState) error {
 		summaries[i] = st.Summary
 	}
 	fleet := reduce.ComputeFleet(summaries)
-	index, err := render.Index(fleet)
-	if err != nil {
-		return fmt.Errorf("index.html: %w", err)
-	}
-	book, err := render.FleetWorkbook(fleet)
-	if err != nil {
-		return fmt.Errorf("fleet.xlsx: %w", err)
-	}
-	fleetJSON, err := render.FleetJSON(fleet)
-	if err != nil {
-		return fmt.Errorf("fleet.json: %w", err)
-	}
-	files := map[string][]byte{
-		"index.html":  index,
-		"fleet.xlsx":  book,
-		"fleet.json":  fleetJSON,
-		"results.csv": render.ResultsCSV(summaries),
-	}
 	m := &render.Manifest{Schema: 1, ToolVersion: render.Version}
+	// Each page is written as soon as it is made, so that a large fleet
+	// never holds all of them in memory at once; names in sorted order.
+	pages := []struct {
+		name string
+		make func() ([]byte, error)
+	}{
+		{"fleet.json", func() ([]byte, error) { return render.FleetJSON(fleet) }},
+		{"fleet.xlsx", func() ([]byte, error) { return render.FleetWorkbook(fleet) }},
+		{"index.html", func() ([]byte, error) { return render.Index(fleet) }},
+		{"results.csv", func() ([]byte, error) { return render.ResultsCSV(summaries), nil }},
+	}
+	for _, p := range pages {
+		data, err := p.make()
+		if err != nil {
+			return fmt.Errorf("%s: %w", p.name, err)
+		}
+		if err := writeAtomic(filepath.Join(s.dir, p.name), data); err != nil {
+			return err
+		}
+		m.Outputs = append(m.Outputs, manifestEntry(p.name, data))
+	}
 	inputs := map[string]ingest.InputFile{}
 	for _, st := range states {
 		for _, in := range st.Inputs {
@@ -295,17 +301,6 @@ func writeFleet(s *site, known map[string]*unitState) error {
 	}
 	for _, in := range inputs {
 		m.Inputs = append(m.Inputs, render.ManifestEntry{Path: in.Path, Size: in.Size, SHA256: in.SHA256})
-	}
-	names := make([]string, 0, len(files))
-	for n := range files {
-		names = append(names, n)
-	}
-	sort.Strings(names)
-	for _, n := range names {
-		if err := writeAtomic(filepath.Join(s.dir, n), files[n]); err != nil {
-			return err
-		}
-		m.Outputs = append(m.Outputs, manifestEntry(n, files[n]))
 	}
 	manifest, err := render.ManifestJSON(m)
 	if err != nil {
