@@ -40,6 +40,7 @@ type indexView struct {
 	Total     int
 	Histogram *chartSpec
 	Products  []productView
+	Cautions  string
 }
 
 type unitRow struct {
@@ -65,7 +66,7 @@ type limitStatsRow struct {
 }
 
 func indexModel(f *reduce.Fleet) (*indexView, error) {
-	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units)}
+	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions}
 	counts := map[string]int{}
 	var margins []float64
 	for _, u := range f.Units {

@@ -414,6 +414,8 @@ func TestIndex(t *testing.T) {
 		`<span class="tag v-fail">FAIL</span><b>2</b>`,
 		"(1 unit)",
 		"Capability and control statistics need at least two units.",
+		"must not radiate", // method.md section 11 cautions, on the overview too
+		"ISO/IEC 17025",
 	} {
 		if !strings.Contains(page, want) {
 			t.Errorf("index lacks %q", want)
