@@ -168,14 +168,6 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 	commonFreqOpts(c, "G/T (dB/K)", true, freqGrid)
 	c.AddDataset(opts.Dataset{Source: []any{}})
 	beamLines(c, u, cols, "gt_db_per_k")
-	// The band: a transparent lower edge and the stacked width 2U.
-	c.AddSeries("U band (k = 2)", nil, charts.WithSeriesId("band-lo"),
-		charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "uband"}),
-		charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}))
-	c.AddSeries("U band (k = 2)", nil, charts.WithSeriesId("band-w"),
-		charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "uband"}),
-		charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}),
-		charts.WithAreaStyleOpts(opts.AreaStyle{Color: "rgba(27,79,114,0.18)", Opacity: opts.Float(1)}))
 
 	type limitLine struct {
 		Name string       `json:"name"`
@@ -220,6 +212,18 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 		}
 		choices = append(choices, focusChoice{Index: len(beams), Label: b.ID})
 		beams = append(beams, fb)
+	}
+	if len(beams) > 0 {
+		// The band of the beam in focus: a transparent lower edge and the
+		// stacked width 2U. Without a beam that has G/T there is no band:
+		// a series without data would draw the page's dataset columns.
+		c.AddSeries("U band (k = 2)", nil, charts.WithSeriesId("band-lo"),
+			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "uband"}),
+			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}))
+		c.AddSeries("U band (k = 2)", nil, charts.WithSeriesId("band-w"),
+			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "uband"}),
+			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}),
+			charts.WithAreaStyleOpts(opts.AreaStyle{Color: "rgba(27,79,114,0.18)", Opacity: opts.Float(1)}))
 	}
 	for i := 0; i < maxLimits; i++ {
 		c.AddSeries(fmt.Sprintf("limit %d", i+1), nil, charts.WithSeriesId(fmt.Sprintf("limit-%d", i)),

@@ -326,6 +326,7 @@ func TestReportSections(t *testing.T) {
 	for _, want := range []string{
 		"2026/11/KP16-00017/run-2/b07-noise.csv:17: frequency 11.2e9 is not above the previous 11.3e9; point skipped",
 		"2026/10/KP16-00017/run-1", "gtpack " + Version, "ISO/IEC 17025", "<li><b>b00</b>: passive gain 30.2 dBi",
+		"problem(s) with the inputs</a>", // the banner points at the problems
 		"row 3, column 5: 31.5 deg",
 	} {
 		if !strings.Contains(page, want) {
@@ -472,5 +473,32 @@ func BenchmarkReport(b *testing.B) {
 		if _, err := Report(u); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// A unit where no beam has G/T (its noise traces were refused) gets no U
+// band: a band series without data would draw the page's dataset columns
+// as a meaningless curve.
+func TestReportNoGTNoBand(t *testing.T) {
+	u := fixtureUnit(t, 2, 11)
+	with, err := Report(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The series id in the chart options (page.js names it too, so the bare
+	// id would always be found).
+	const band = `{"id":"band-lo"`
+	if !strings.Contains(string(with), band) {
+		t.Fatal("the report of a unit with G/T has no U band series")
+	}
+	for i := range u.Beams {
+		u.Beams[i].GTdBPerK, u.Beams[i].GTExpandedUncertaintyDB = nil, nil
+	}
+	without, err := Report(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(string(without), band) {
+		t.Error("the report of a unit without G/T still has a U band series")
 	}
 }
