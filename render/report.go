@@ -197,13 +197,16 @@ func sharedRange(beams []reduce.Beam) bool {
 
 type reportView struct {
 	pageAssets
-	Version   string
-	U         *reduce.Unit
-	RuleText  string
-	Limits    []limitRow
-	Worst     *limitRow
-	Budget    *budgetView
-	Beams     []beamRow
+	Version  string
+	U        *reduce.Unit
+	RuleText string
+	Limits   []limitRow
+	Worst    *limitRow
+	Budget   *budgetView
+	Beams    []beamRow
+	// Grids lists once each note on what was put on a beam's grid, with
+	// the beams it applies to: most notes are the same for every beam.
+	Grids     []gridNote
 	Projected []projectionRow
 	Elements  *reduce.ElementState
 	Charts    []chartSpec
@@ -235,6 +238,11 @@ type budgetView struct {
 type budgetRow struct {
 	Name, Source, Distribution string
 	Divisor, ValueDB, StdDB    float64
+}
+
+type gridNote struct {
+	Note  string
+	Beams []string
 }
 
 type beamRow struct {
@@ -297,6 +305,9 @@ func reportModel(u *reduce.Unit) (*reportView, error) {
 			r.HasOther, r.OtherMaxDB, r.OtherMeanDB = true, b.OtherForm.MaxAbsDifferenceDB, b.OtherForm.MeanDifferenceDB
 		}
 		v.Beams = append(v.Beams, r)
+		for _, note := range b.Interpolated {
+			v.Grids = addGridNote(v.Grids, note, b.ID)
+		}
 		if p := b.Projection; p != nil {
 			pr := projectionRow{Beam: b.ID, Projection: *p, MinGT: math.NaN(), MaxGT: math.NaN(), CentreGT: math.NaN(), CentreHz: math.NaN()}
 			for _, g := range p.OperatingGTdBPerK {
@@ -422,3 +433,14 @@ func budgetAt(u *reduce.Unit, l reduce.LimitResult) *budgetView {
 
 // compile-time use of fmt for the templates' helpers.
 var _ = fmt.Sprint
+
+// addGridNote adds beam to the note's beams, or the note with that beam.
+func addGridNote(notes []gridNote, note, beam string) []gridNote {
+	for i := range notes {
+		if notes[i].Note == note {
+			notes[i].Beams = append(notes[i].Beams, beam)
+			return notes
+		}
+	}
+	return append(notes, gridNote{Note: note, Beams: []string{beam}})
+}

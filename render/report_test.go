@@ -502,3 +502,29 @@ func TestReportNoGTNoBand(t *testing.T) {
 		t.Error("the report of a unit without G/T still has a U band series")
 	}
 }
+
+// A grid note shared by every beam is listed once, below the beam table,
+// not repeated in each row.
+func TestReportGridNotesOnce(t *testing.T) {
+	u := fixtureUnit(t, 4, 11)
+	for i := range u.Beams {
+		u.Beams[i].Interpolated = []string{"range loss from the 13-point table"}
+	}
+	u.Beams[2].Interpolated = append(u.Beams[2].Interpolated, "noise of b02-noise.csv from 6 points")
+	data, err := Report(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(data)
+	if n := strings.Count(page, "range loss from the 13-point table"); n != 1 {
+		t.Errorf("the shared note appears %d times, want once", n)
+	}
+	for _, want := range []string{
+		"range loss from the 13-point table <i>(every beam)</i>",
+		"noise of b02-noise.csv from 6 points <i>(" + u.Beams[2].ID + ")</i>",
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("report lacks %q", want)
+		}
+	}
+}
