@@ -377,13 +377,15 @@ func scanChart(u *reduce.Unit) (chartSpec, bool, error) {
 // are left blank.
 func elementChart(e *reduce.ElementState) (chartSpec, error) {
 	c := charts.NewHeatMap()
+	// Axis labels are the row and column numbers of elements.csv: cell
+	// [0][0] of the map is element (FirstRow, FirstCol).
 	rows := make([]string, e.Rows)
 	for i := range rows {
-		rows[i] = fmt.Sprint(i)
+		rows[i] = fmt.Sprint(e.FirstRow + i)
 	}
 	colsLbl := make([]string, e.Cols)
 	for i := range colsLbl {
-		colsLbl[i] = fmt.Sprint(i)
+		colsLbl[i] = fmt.Sprint(e.FirstCol + i)
 	}
 	maxAbs := 1.0
 	var data []opts.HeatMapData
@@ -415,7 +417,7 @@ func elementChart(e *reduce.ElementState) (chartSpec, error) {
 		"text":    []string{"+" + fmt.Sprint(lim) + "°", "−" + fmt.Sprint(lim) + "°"},
 		"inRange": map[string]any{"color": []string{"#1b4f72", "#f4f6f6", "#922b21"}},
 	}}}
-	opt, err := finish(c, map[string]any{"unit": "deg", "heat": true}, extra)
+	opt, err := finish(c, map[string]any{"unit": "deg", "heat": true, "firstRow": e.FirstRow, "firstCol": e.FirstCol}, extra)
 	h := 60 + 22*e.Rows
 	if h < 260 {
 		h = 260

@@ -528,3 +528,21 @@ func TestReportGridNotesOnce(t *testing.T) {
 		}
 	}
 }
+
+// The heat map's axes carry the row and column numbers of elements.csv
+// (here counted from 1), the numbers the text and the workbook use.
+func TestElementChartAxesAreElementNumbers(t *testing.T) {
+	e := &reduce.ElementState{Rows: 2, Cols: 3, FirstRow: 1, FirstCol: 5,
+		ResidualPhaseDeg: [][]float64{{1, 2, 3}, {4, 5, 6}},
+		Present:          [][]bool{{true, true, true}, {true, true, true}}}
+	spec, err := elementChart(e)
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt := string(spec.Option)
+	for _, want := range []string{`"data":["5","6","7"]`, `"data":["1","2"]`, `"firstRow":1`, `"firstCol":5`} {
+		if !strings.Contains(opt, want) {
+			t.Errorf("heat map options lack %s:\n%.600s", want, opt)
+		}
+	}
+}

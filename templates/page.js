@@ -99,7 +99,7 @@
     return function (p) {
       var v = p.value || [];
       if (g.heat) {
-        return 'row ' + esc(v[1]) + ', column ' + esc(v[0]) + ': ' + esc(num(v[2], 1)) + ' deg';
+        return 'row ' + esc(v[1] + (g.firstRow || 0)) + ', column ' + esc(v[0] + (g.firstCol || 0)) + ': ' + esc(num(v[2], 1)) + ' deg';
       }
       if (g.categories) {
         return esc(g.categories[p.dataIndex] || p.name) + ': ' + esc(num(v[1] !== undefined ? v[1] : v, 3)) + ' ' + esc(g.unit || '');
