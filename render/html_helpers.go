@@ -47,6 +47,7 @@ func loadPages() (*template.Template, error) {
 			"vclass":  verdictClass,
 			"pct":     func(v float64) string { return fmtFixed(100*v, 1) + " %" },
 			"inc":     func(i int) int { return i + 1 },
+			"noise":   noiseLabel,
 		})
 		t, err := t.ParseFS(templates.FS, "*.tmpl")
 		if err != nil {
@@ -302,3 +303,16 @@ const cautions = "Active antennas are powered electronics: receive tests must no
 	"(transmit paths off or terminated); RF exposure limits and laboratory safety rules are those of the " +
 	"local authority; ESD and DC handling follow the unit's own instructions. This report supports a " +
 	"decision: accredited calibration and test practice (ISO/IEC 17025) and the customer's contract govern it."
+
+// noiseLabel is the short name of a noise quantity in the beam table.
+func noiseLabel(quantity string) string {
+	switch quantity {
+	case "noise-density-dbm-hz":
+		return "density"
+	case "noise-relative-kt0-db":
+		return "above kT0"
+	case "system-noise-figure-db":
+		return "system NF"
+	}
+	return quantity
+}

@@ -138,6 +138,9 @@
     var opt = JSON.parse(script.textContent);
     var g = opt.gtpack || {};
     delete opt.gtpack;
+    // No animation: a chart redrawn at the paper's width just before
+    // printing must be complete when the page is captured.
+    opt.animation = false;
     var state = { focusId: '' };
     if (g.csv) { opt.dataset = [{ source: csvData(), sourceHeader: false }]; }
     opt.tooltip = opt.tooltip || {};
@@ -153,6 +156,7 @@
         sel.addEventListener('change', function () { focus(chart, g, state, +sel.value); });
       }
     }
+    chart.gtpackHeat = !!g.heat;
     charts.push(chart);
   }
 
@@ -200,6 +204,9 @@
   // For paper: no tooltip, no zoom slider, the printed width.
   function resizeAll(width) {
     charts.forEach(function (c) {
+      // A heat map redrawn for paper printed blank (its redraw is not done
+      // when the page is captured): it keeps its drawing.
+      if (width && c.gtpackHeat) { return; }
       var zs = (c.getOption().dataZoom || []).map(function (z) {
         return z.type === 'slider' ? { show: !width } : {};
       });
