@@ -6,6 +6,7 @@ import (
 	"hash/fnv"
 	"io"
 	"os"
+	"path/filepath"
 	"runtime"
 	"runtime/debug"
 	"strconv"
@@ -40,6 +41,9 @@ func cmdBuild(args []string, stdout, stderr io.Writer) (int, error) {
 		return exitUsage, err
 	}
 	o.archive = pos[0]
+	if inside(o.site, o.archive) {
+		return exitUsage, usageError("the site %s lies inside the archive %s: gtpack never writes into an archive", o.site, o.archive)
+	}
 	if o.jobs < 1 {
 		return exitUsage, usageError("-j must be at least 1")
 	}
@@ -322,4 +326,25 @@ func cmdIndex(args []string, stdout, stderr io.Writer) (int, error) {
 		return exitRefused, err
 	}
 	return exitOK, nil
+}
+
+// inside reports whether path is dir or lies below it, after resolving
+// both to absolute paths (and links, where they exist).
+func inside(path, dir string) bool {
+	abs := func(p string) string {
+		a, err := filepath.Abs(p)
+		if err != nil {
+			return filepath.Clean(p)
+		}
+		if r, err := filepath.EvalSymlinks(a); err == nil {
+			return r
+		}
+		// A site that does not exist yet: resolve its nearest parent.
+		if r, err := filepath.EvalSymlinks(filepath.Dir(a)); err == nil {
+			return filepath.Join(r, filepath.Base(a))
+		}
+		return a
+	}
+	rel, err := filepath.Rel(abs(dir), abs(path))
+	return err == nil && rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator))
 }

@@ -249,6 +249,8 @@ func TestUsageErrors(t *testing.T) {
 		{"build", "a", "--shard", "x"},
 		{"inspect"},
 		{"demo", "d", "--units", "0"},
+		{"build", "../../testdata/good", "-o", "../../testdata/good/site"}, // never write into the archive
+		{"build", "../../testdata/good", "-o", "../../testdata/good"},
 	} {
 		var out, errb bytes.Buffer
 		if code := run(args, &out, &errb); code != exitUsage {
@@ -350,4 +352,29 @@ func TestSampleArchiveBuildsAreIdentical(t *testing.T) {
 		t.Errorf("sample site has %d files, want 8 units x 3 files + 5 fleet files", len(da))
 	}
 	sameSite(t, "two builds of sample-archive", da, siteDigest(t, b))
+}
+
+func TestInside(t *testing.T) {
+	dir := t.TempDir()
+	archive := filepath.Join(dir, "archive")
+	os.MkdirAll(filepath.Join(archive, "runs"), 0o755)
+	link := filepath.Join(dir, "link")
+	if err := os.Symlink(archive, link); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		path string
+		want bool
+	}{
+		{archive, true},
+		{filepath.Join(archive, "site"), true},
+		{filepath.Join(archive, "runs", "new", "site"), true}, // below a folder that does not exist yet
+		{filepath.Join(link, "site"), true},                   // through a link to the archive
+		{filepath.Join(dir, "archive-site"), false},           // a sibling whose name starts alike
+		{dir, false},
+	} {
+		if got := inside(c.path, archive); got != c.want {
+			t.Errorf("inside(%s, archive) = %v, want %v", c.path, got, c.want)
+		}
+	}
 }
