@@ -225,7 +225,7 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 				at = append(at, k)
 			}
 		}
-		for j, v := range diagOnto(fs, gt, inside) {
+		for j, v := range resampleDB(fs, gt, inside) {
 			on[i][at[j]] = v
 		}
 		on[i] = movingAverageNaN(on[i], smooth)

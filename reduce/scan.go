@@ -4,7 +4,6 @@ import (
 	"math"
 	"sort"
 
-	"gonum.org/v1/gonum/interp"
 	"gonum.org/v1/gonum/stat"
 
 	"gtpack.example/gtpack/ingest"
@@ -148,7 +147,7 @@ func ScanBehaviour(beams []Beam, limits []ingest.Limit) *Scan {
 		b := &beams[i]
 		x := 10 * math.Log10(math.Cos(b.ThetaDeg*math.Pi/180))
 		sxx += x * x
-		gt := diagOnto(b.FrequencyHz, b.GTdBPerK, freq)
+		gt := resampleDB(b.FrequencyHz, b.GTdBPerK, freq)
 		sb := ScanBeam{ID: b.ID, ThetaDeg: b.ThetaDeg, ScanLossDB: make([]float64, len(freq))}
 		for j, k := range grid {
 			y := gt[j] - bore.GTdBPerK[k]
@@ -156,7 +155,7 @@ func ScanBehaviour(beams []Beam, limits []ingest.Limit) *Scan {
 			sxy[j] += x * y
 		}
 		if withGain {
-			g := diagOnto(b.FrequencyHz, b.GainDBi, freq)
+			g := resampleDB(b.FrequencyHz, b.GainDBi, freq)
 			sb.GainLossDB = make([]float64, len(freq))
 			for j, k := range grid {
 				y := g[j] - bore.GainDBi[k]
@@ -196,7 +195,7 @@ func scanHasGain(b *Beam) bool {
 	return diagTraceUsable(b.FrequencyHz, b.GainDBi)
 }
 
-// diagTraceUsable reports whether (xs, ys) is a trace diagOnto accepts.
+// diagTraceUsable reports whether (xs, ys) is a trace resampleDB accepts.
 func diagTraceUsable(xs, ys []float64) bool {
 	if len(xs) == 0 || len(xs) != len(ys) {
 		return false
@@ -210,28 +209,4 @@ func diagTraceUsable(xs, ys []float64) bool {
 		}
 	}
 	return true
-}
-
-// diagOnto puts the trace (xs, ys) on the frequencies at, which must lie
-// inside [xs[0], xs[last]]; the trace must pass diagTraceUsable. Piecewise
-// linear (gonum interp), exact at the trace's own points.
-func diagOnto(xs, ys, at []float64) []float64 {
-	out := make([]float64, len(at))
-	if len(xs) == 1 {
-		for j := range at {
-			out[j] = ys[0]
-		}
-		return out
-	}
-	if sameGrid(xs, at) {
-		// Beams of one run usually share a grid: nothing to interpolate.
-		copy(out, ys)
-		return out
-	}
-	var pl interp.PiecewiseLinear
-	_ = pl.Fit(xs, ys) // cannot fail: checked by diagTraceUsable
-	for j, x := range at {
-		out[j] = pl.Predict(x)
-	}
-	return out
 }
