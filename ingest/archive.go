@@ -56,84 +56,56 @@ func Open(root string) (*Archive, error) {
 	refusedRefs := map[string]string{}
 	refusedSpecs := map[string]string{}
 
-	for _, rel := range fsys.yamlFiles("stations", &a.Problems) {
-		base := strings.TrimSuffix(path.Base(rel), ".yaml")
-		data, p := fsys.read(rel, "", 0)
-		if p != nil {
-			a.Problems = append(a.Problems, p)
-			refusedStations[base] = rel
-			continue
-		}
+	readDocuments(fsys, "stations", &a.Problems, refusedStations, func(data []byte, rel string) error {
 		s, err := ParseStation(data, rel)
 		if err != nil {
-			a.Problems = append(a.Problems, Problems(err)...)
-			refusedStations[base] = rel
-			continue
+			return err
 		}
 		if prev, dup := a.Stations[s.ID]; dup {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "station id %q is already defined in %s; expected each id once (this file is ignored)", s.ID, prev.File))
-			continue
+			return nil
 		}
 		a.Stations[s.ID] = s
-	}
-
-	for _, rel := range fsys.yamlFiles("references", &a.Problems) {
-		base := strings.TrimSuffix(path.Base(rel), ".yaml")
-		data, p := fsys.read(rel, "", 0)
-		if p != nil {
-			a.Problems = append(a.Problems, p)
-			refusedRefs[base] = rel
-			continue
-		}
+		return nil
+	})
+	readDocuments(fsys, "references", &a.Problems, refusedRefs, func(data []byte, rel string) error {
 		ref, tableLine, err := parseReference(data, rel)
 		if err != nil {
-			a.Problems = append(a.Problems, Problems(err)...)
-			refusedRefs[base] = rel
-			continue
+			return err
 		}
 		if ref.TableFile != "" {
 			tf := joinRel(path.Dir(rel), ref.TableFile)
 			tdata, p := fsys.read(tf, rel, tableLine)
 			if p != nil {
-				a.Problems = append(a.Problems, p)
 				refusedRefs[ref.ID] = rel
-				continue
+				return p
 			}
 			table, err := readReferenceTable(bytes.NewReader(tdata), tf)
 			if err != nil {
-				a.Problems = append(a.Problems, Problems(err)...)
 				refusedRefs[ref.ID] = rel
-				continue
+				return err
 			}
 			ref.TableFile, ref.Table = tf, table
 		}
 		if prev, dup := a.References[ref.ID]; dup {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "reference id %q is already defined in %s; expected each id once (this file is ignored)", ref.ID, prev.File))
-			continue
+			return nil
 		}
 		a.References[ref.ID] = ref
-	}
-
-	for _, rel := range fsys.yamlFiles("specs", &a.Problems) {
-		base := strings.TrimSuffix(path.Base(rel), ".yaml")
-		data, p := fsys.read(rel, "", 0)
-		if p != nil {
-			a.Problems = append(a.Problems, p)
-			refusedSpecs[base] = rel
-			continue
-		}
+		return nil
+	})
+	readDocuments(fsys, "specs", &a.Problems, refusedSpecs, func(data []byte, rel string) error {
 		s, err := ParseSpec(data, rel)
 		if err != nil {
-			a.Problems = append(a.Problems, Problems(err)...)
-			refusedSpecs[base] = rel
-			continue
+			return err
 		}
 		if prev, dup := a.Specs[s.Product]; dup {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "spec for product %q is already defined in %s; expected one spec per product (this file is ignored)", s.Product, prev.File))
-			continue
+			return nil
 		}
 		a.Specs[s.Product] = s
-	}
+		return nil
+	})
 
 	var runs []*Run
 	for _, parsed := range parseRuns(fsys, fsys.runFiles(&a.Problems)) {
@@ -441,4 +413,25 @@ func parseRuns(fsys *archiveFS, files []string) []parsedRun {
 	}
 	wg.Wait()
 	return out
+}
+
+// readDocuments reads every folder/*.yaml and hands it to accept. A file
+// that cannot be read, or that accept refuses, is noted in refused under
+// its base name (the id a run would use), so that a run naming it is told
+// the document was refused rather than unknown. accept reports a duplicate
+// id itself and returns nil: the first document of that id stands.
+func readDocuments(fsys *archiveFS, folder string, probs *[]*Problem, refused map[string]string, accept func(data []byte, rel string) error) {
+	for _, rel := range fsys.yamlFiles(folder, probs) {
+		base := strings.TrimSuffix(path.Base(rel), ".yaml")
+		data, p := fsys.read(rel, "", 0)
+		if p != nil {
+			*probs = append(*probs, p)
+			refused[base] = rel
+			continue
+		}
+		if err := accept(data, rel); err != nil {
+			*probs = append(*probs, Problems(err)...)
+			refused[base] = rel
+		}
+	}
 }
