@@ -1,7 +1,9 @@
 package reduce
 
-// FleetSchema is the version of the fleet.json layout.
-const FleetSchema = 1
+// FleetSchema is the version of the fleet.json layout. Schema 2: the units
+// carry one entry per limit name (FleetUnitLimit) instead of every
+// LimitResult of every beam.
+const FleetSchema = 2
 
 // UnitSummary is the part of a unit's result the fleet statistics need. It
 // is small, so that the fleet of a large archive can be computed without
@@ -28,8 +30,33 @@ type BoresightTrace struct {
 // acceptance runs.
 type Fleet struct {
 	Schema   int            `json:"schema"`
-	Units    []UnitSummary  `json:"units"` // sorted by serial, without Boresight
+	Units    []FleetUnit    `json:"units"` // sorted by serial
 	Products []ProductFleet `json:"products"`
+}
+
+// FleetUnit is the fleet's view of one unit: what the overview and the
+// fleet workbook show of it, one entry per limit name rather than one per
+// limit and beam.
+type FleetUnit struct {
+	Serial  string           `json:"serial"`
+	Product string           `json:"product"`
+	Started string           `json:"started"`
+	Verdict string           `json:"verdict"`
+	Limits  []FleetUnitLimit `json:"limits"` // in the order of the names' first results
+}
+
+// FleetUnitLimit is a unit's result for one limit name over all the beams
+// the limit applies to.
+type FleetUnitLimit struct {
+	Name string `json:"name"`
+	// Beam is where WorstMarginDB occurs (the first such beam on a tie);
+	// empty when no beam has a finite margin.
+	Beam string `json:"beam"`
+	// WorstMarginDB is the smallest finite WorstMarginDB of the limit's
+	// results, whatever their verdicts; NaN (null) when none is finite.
+	WorstMarginDB float64 `json:"worst_margin_db"`
+	// Verdict is the worst verdict of the limit's results (WorseVerdict).
+	Verdict string `json:"verdict"`
 }
 
 // ProductFleet is the statistics of one product.

@@ -1,6 +1,7 @@
 package reduce
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"time"
@@ -27,7 +28,8 @@ const (
 
 // ComputeFleet computes the statistics per product over the acceptance runs,
 // one UnitSummary per unit (method.md section 10). The result does not
-// depend on the order of units.
+// depend on the order of units. It sorts the units by serial (units with
+// the same serial by start) and hands them to a FleetBuilder.
 //
 // Per limit name: each unit's worst margin is its smallest WorstMarginDB
 // over the beams the limit applies to, and its verdict for the limit the
@@ -53,53 +55,240 @@ const (
 // is pass or conditional-pass and whose boresight G/T is below low or above
 // high at some band frequency, with those frequencies.
 func ComputeFleet(units []UnitSummary) *Fleet {
-	f := &Fleet{Schema: FleetSchema, Units: []UnitSummary{}, Products: []ProductFleet{}}
-	bySerial := append([]UnitSummary(nil), units...)
-	sort.SliceStable(bySerial, func(a, b int) bool {
-		if bySerial[a].Serial != bySerial[b].Serial {
-			return bySerial[a].Serial < bySerial[b].Serial
+	order := make([]int, len(units))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		ua, ub := &units[order[a]], &units[order[b]]
+		if ua.Serial != ub.Serial {
+			return ua.Serial < ub.Serial
 		}
-		return fleetTestBefore(&bySerial[a], &bySerial[b])
+		return fleetTestBefore(ua.Started, ub.Started)
 	})
-	products := map[string][]*UnitSummary{}
-	var names []string
-	for i := range bySerial {
-		u := &bySerial[i]
-		if _, ok := products[u.Product]; !ok {
-			names = append(names, u.Product)
+	b := NewFleetBuilder()
+	for _, i := range order {
+		_ = b.Add(units[i]) // cannot fail: the units come in serial order
+	}
+	return b.Finish()
+}
+
+// FleetBuilder computes the fleet statistics of ComputeFleet from units
+// given one at a time in serial order, so that a caller can read the
+// units' summaries one by one and drop each after Add.
+//
+// What it keeps per unit is small: the FleetUnit (serial, product, start,
+// verdict, one worst margin and verdict per limit name), the judged worst
+// margin and verdict per limit name for the statistics, and, for a unit
+// with a usable boresight trace, that trace resampled and smoothed onto
+// its product's grid, as float32 differences from the product's first
+// trace: 4 bytes a grid point, 3.2 kB a unit at 801 points. That last part
+// stays linear in the number of units on purpose: the band's median and
+// MAD at a frequency need every unit's value there, and the watch list
+// compares every unit's trace with the finished band. The differences
+// from the first trace are a few tenths of a dB, so their float32 form is
+// within about 1e-8 dB of the float64 value (float32 keeps 24 bits, IEEE
+// 754): far below the 1e-6 dB to which fleet.json writes the band.
+type FleetBuilder struct {
+	units    []fleetRecord
+	products map[string]*fleetProductAcc
+	last     string
+}
+
+// fleetRecord is one unit as the builder keeps it.
+type fleetRecord struct {
+	FleetUnit
+	judged []fleetJudged // beside FleetUnit.Limits
+}
+
+// fleetJudged is a unit's judged result for one limit name: its worst
+// margin and worst verdict rank over the results fleetVerdictRank accepts
+// with a finite margin; ok is false when there is none.
+type fleetJudged struct {
+	worst float64
+	rank  int
+	ok    bool
+}
+
+// fleetProductAcc is what the builder gathers for one product.
+type fleetProductAcc struct {
+	units   []int             // indexes into FleetBuilder.units, serial order
+	strings map[string]string // one copy of each limit name and beam
+	grid    []float64         // the first traced unit's frequencies
+	smooth  int               // moving-average width for the grid
+	ref     []float64         // the first traced unit's smoothed trace, NaN as 0
+	traced  []int             // indexes into FleetBuilder.units of traced units
+	dev     [][]float32       // per traced unit: smoothed trace on grid - ref; NaN outside its span
+}
+
+// NewFleetBuilder returns an empty builder.
+func NewFleetBuilder() *FleetBuilder {
+	return &FleetBuilder{products: map[string]*fleetProductAcc{}}
+}
+
+// Add takes one unit's summary; it keeps none of u's lists. Units must
+// come in serial order (equal serials are allowed): the golden band's grid
+// is the first traced unit's in that order. Add refuses a serial that
+// sorts before the previous one.
+func (b *FleetBuilder) Add(u UnitSummary) error {
+	if len(b.units) > 0 && u.Serial < b.last {
+		return fmt.Errorf("reduce: fleet unit %q added after %q: units must come in serial order", u.Serial, b.last)
+	}
+	b.last = u.Serial
+	p := b.products[u.Product]
+	if p == nil {
+		p = &fleetProductAcc{strings: map[string]string{}}
+		b.products[u.Product] = p
+	}
+	intern := func(s string) string {
+		if c, ok := p.strings[s]; ok {
+			return c
 		}
-		products[u.Product] = append(products[u.Product], u)
+		p.strings[s] = s
+		return s
+	}
+	rec := fleetRecord{FleetUnit: FleetUnit{Serial: u.Serial, Product: u.Product, Started: u.Started,
+		Verdict: u.Verdict, Limits: []FleetUnitLimit{}}}
+	for _, l := range u.Limits {
+		j := -1
+		for k := range rec.Limits {
+			if rec.Limits[k].Name == l.Name {
+				j = k
+				break
+			}
+		}
+		if j < 0 {
+			rec.Limits = append(rec.Limits, FleetUnitLimit{Name: intern(l.Name), WorstMarginDB: math.NaN(), Verdict: intern(l.Verdict)})
+			rec.judged = append(rec.judged, fleetJudged{worst: math.Inf(1), rank: -1})
+			j = len(rec.Limits) - 1
+		} else {
+			rec.Limits[j].Verdict = intern(WorseVerdict(rec.Limits[j].Verdict, l.Verdict))
+		}
+		e, jd := &rec.Limits[j], &rec.judged[j]
+		if !projFinite(l.WorstMarginDB) {
+			continue
+		}
+		if math.IsNaN(e.WorstMarginDB) || l.WorstMarginDB < e.WorstMarginDB {
+			e.WorstMarginDB, e.Beam = l.WorstMarginDB, intern(l.Beam)
+		}
+		if r, ok := fleetVerdictRank(l.Verdict); ok {
+			jd.ok = true
+			jd.worst = math.Min(jd.worst, l.WorstMarginDB)
+			jd.rank = max(jd.rank, r)
+		}
+	}
+	idx := len(b.units)
+	b.units = append(b.units, rec)
+	p.units = append(p.units, idx)
+	if t := u.Boresight; t != nil && diagTraceUsable(t.FrequencyHz, t.GTdBPerK) {
+		p.addTrace(idx, t.FrequencyHz, t.GTdBPerK)
+	}
+	return nil
+}
+
+// addTrace resamples one unit's trace onto the product's grid (the first
+// trace's), smooths it and keeps it as float32 differences from the first.
+func (p *fleetProductAcc) addTrace(idx int, fs, gt []float64) {
+	if p.grid == nil {
+		p.grid = append([]float64(nil), fs...)
+		p.smooth = bandSmoothingPoints(len(p.grid))
+	}
+	grid := p.grid
+	on := make([]float64, len(grid))
+	var inside []float64
+	var at []int
+	for k, g := range grid {
+		on[k] = math.NaN()
+		if g >= fs[0] && g <= fs[len(fs)-1] {
+			inside = append(inside, g)
+			at = append(at, k)
+		}
+	}
+	for j, v := range resampleDB(fs, gt, inside) {
+		on[at[j]] = v
+	}
+	on = movingAverageNaN(on, p.smooth)
+	if p.ref == nil {
+		p.ref = make([]float64, len(grid))
+		for k, v := range on {
+			if !math.IsNaN(v) {
+				p.ref[k] = v
+			}
+		}
+	}
+	d := make([]float32, len(grid))
+	for k, v := range on {
+		d[k] = float32(v - p.ref[k])
+	}
+	p.traced = append(p.traced, idx)
+	p.dev = append(p.dev, d)
+}
+
+// at is traced unit i's smoothed G/T at grid point k; NaN outside its span.
+func (p *fleetProductAcc) at(i, k int) float64 {
+	return p.ref[k] + float64(p.dev[i][k])
+}
+
+// Finish returns the fleet of the units added so far.
+func (b *FleetBuilder) Finish() *Fleet {
+	f := &Fleet{Schema: FleetSchema, Units: make([]FleetUnit, len(b.units)), Products: []ProductFleet{}}
+	names := make([]string, 0, len(b.products))
+	for n := range b.products {
+		names = append(names, n)
 	}
 	sort.Strings(names)
-	for _, name := range names {
-		f.Products = append(f.Products, fleetProduct(name, products[name]))
+	for _, n := range names {
+		f.Products = append(f.Products, b.product(n, b.products[n]))
 	}
-	for _, u := range bySerial {
-		c := u
-		c.Boresight = nil
-		c.Limits = append([]LimitResult(nil), u.Limits...)
-		f.Units = append(f.Units, c)
+	for i := range b.units {
+		f.Units[i] = b.units[i].FleetUnit
 	}
 	return f
 }
 
-// fleetProduct computes one product's statistics; us is in serial order.
-func fleetProduct(name string, us []*UnitSummary) ProductFleet {
-	p := ProductFleet{Product: name, Units: len(us), VerdictCounts: map[string]int{},
+// product computes one product's statistics.
+func (b *FleetBuilder) product(name string, acc *fleetProductAcc) ProductFleet {
+	p := ProductFleet{Product: name, Units: len(acc.units), VerdictCounts: map[string]int{},
 		Limits: []LimitStats{}, Watch: []WatchEntry{}}
-	for _, u := range us {
-		p.VerdictCounts[u.Verdict]++
+	for _, i := range acc.units {
+		p.VerdictCounts[b.units[i].Verdict]++
 	}
-	inTestOrder := append([]*UnitSummary(nil), us...)
-	sort.SliceStable(inTestOrder, func(a, b int) bool {
-		if fleetTestBefore(inTestOrder[a], inTestOrder[b]) {
+	// Test order: start (parsed once per unit), then serial.
+	type key struct {
+		t      time.Time
+		parsed bool
+		rec    *fleetRecord
+	}
+	keys := make([]key, len(acc.units))
+	for j, i := range acc.units {
+		r := &b.units[i]
+		t, err := time.Parse(time.RFC3339, r.Started)
+		keys[j] = key{t, err == nil, r}
+	}
+	before := func(a, c *key) bool {
+		switch {
+		case a.parsed && c.parsed:
+			return a.t.Before(c.t)
+		case a.parsed:
 			return true
-		}
-		if fleetTestBefore(inTestOrder[b], inTestOrder[a]) {
+		case c.parsed:
 			return false
 		}
-		return inTestOrder[a].Serial < inTestOrder[b].Serial
+		return a.rec.Started < c.rec.Started
+	}
+	sort.SliceStable(keys, func(a, c int) bool {
+		if before(&keys[a], &keys[c]) {
+			return true
+		}
+		if before(&keys[c], &keys[a]) {
+			return false
+		}
+		return keys[a].rec.Serial < keys[c].rec.Serial
 	})
+	inTestOrder := make([]*fleetRecord, len(keys))
+	for j := range keys {
+		inTestOrder[j] = keys[j].rec
+	}
 	var limitNames []string
 	seen := map[string]bool{}
 	for _, u := range inTestOrder {
@@ -113,7 +302,7 @@ func fleetProduct(name string, us []*UnitSummary) ProductFleet {
 	for _, ln := range limitNames {
 		p.Limits = append(p.Limits, fleetLimit(ln, inTestOrder))
 	}
-	p.Band, p.Watch = fleetBand(us)
+	p.Band, p.Watch = b.band(acc)
 	return p
 }
 
@@ -134,30 +323,28 @@ func fleetVerdictRank(v string) (rank int, ok bool) {
 }
 
 // fleetLimit is the statistics of one limit; us is in test order.
-func fleetLimit(name string, us []*UnitSummary) LimitStats {
+func fleetLimit(name string, us []*fleetRecord) LimitStats {
 	ls := LimitStats{Name: name, Outliers: []Outlier{}}
 	ls.Chart = ControlChart{Serials: []string{}, Started: []string{}, ValuesDB: []float64{}, Beyond: []int{}}
+	cp, _ := fleetVerdictRank(VerdictConditionalPass)
 	for _, u := range us {
-		worst, verdict, judged := math.Inf(1), -1, false
-		for _, l := range u.Limits {
-			r, ok := fleetVerdictRank(l.Verdict)
-			if l.Name != name || !ok || !projFinite(l.WorstMarginDB) {
-				continue
+		var jd *fleetJudged
+		for k := range u.Limits {
+			if u.Limits[k].Name == name {
+				jd = &u.judged[k]
+				break
 			}
-			judged = true
-			worst = math.Min(worst, l.WorstMarginDB)
-			verdict = max(verdict, r)
 		}
-		if !judged {
+		if jd == nil || !jd.ok {
 			continue
 		}
 		ls.Units++
-		if cp, _ := fleetVerdictRank(VerdictConditionalPass); verdict <= cp {
+		if jd.rank <= cp {
 			ls.Passed++
 		}
 		ls.Chart.Serials = append(ls.Chart.Serials, u.Serial)
 		ls.Chart.Started = append(ls.Chart.Started, u.Started)
-		ls.Chart.ValuesDB = append(ls.Chart.ValuesDB, worst)
+		ls.Chart.ValuesDB = append(ls.Chart.ValuesDB, jd.worst)
 	}
 	x := ls.Chart.ValuesDB
 	if len(x) == 0 {
@@ -196,53 +383,29 @@ func fleetLimit(name string, us []*UnitSummary) LimitStats {
 	return ls
 }
 
-// fleetBand computes the golden band and the watch list; us is in serial
-// order.
-func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
+// band computes the golden band and the watch list of one product from
+// its traced units (in serial order).
+func (b *FleetBuilder) band(acc *fleetProductAcc) (*GoldenBand, []WatchEntry) {
 	watch := []WatchEntry{}
-	var traced []*UnitSummary
-	for _, u := range us {
-		if u.Boresight != nil && diagTraceUsable(u.Boresight.FrequencyHz, u.Boresight.GTdBPerK) {
-			traced = append(traced, u)
-		}
-	}
-	if len(traced) < minBandUnits {
+	if len(acc.traced) < minBandUnits {
 		return nil, watch
 	}
-	grid := traced[0].Boresight.FrequencyHz
-	smooth := bandSmoothingPoints(len(grid))
-	// on[i][k] is unit i's G/T at grid[k]; NaN outside its span.
-	on := make([][]float64, len(traced))
-	for i, u := range traced {
-		fs, gt := u.Boresight.FrequencyHz, u.Boresight.GTdBPerK
-		on[i] = make([]float64, len(grid))
-		var inside []float64
-		var at []int
-		for k, g := range grid {
-			on[i][k] = math.NaN()
-			if g >= fs[0] && g <= fs[len(fs)-1] {
-				inside = append(inside, g)
-				at = append(at, k)
-			}
-		}
-		for j, v := range resampleDB(fs, gt, inside) {
-			on[i][at[j]] = v
-		}
-		on[i] = movingAverageNaN(on[i], smooth)
-	}
-	band := &GoldenBand{Units: len(traced), SmoothingPoints: smooth}
+	grid, smooth := acc.grid, acc.smooth
+	band := &GoldenBand{Units: len(acc.traced), SmoothingPoints: smooth}
 	var kept []int
+	col := make([]float64, 0, len(acc.traced))
+	scratch := make([]float64, len(acc.traced))
 	for k, g := range grid {
-		var col []float64
-		for i := range traced {
-			if !math.IsNaN(on[i][k]) {
-				col = append(col, on[i][k])
+		col = col[:0]
+		for i := range acc.traced {
+			if v := acc.at(i, k); !math.IsNaN(v) {
+				col = append(col, v)
 			}
 		}
 		if len(col) < minBandUnits {
 			continue
 		}
-		med, mad := fleetMedianMAD(col)
+		med, mad := fleetMedianMADInPlace(col, scratch)
 		half := bandHalfWidthSigmas * madToSigma * mad
 		band.FrequencyHz = append(band.FrequencyHz, g)
 		band.MedianDB = append(band.MedianDB, med)
@@ -263,7 +426,8 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 	for j := range kept {
 		band.LowDB[j], band.HighDB[j] = band.MedianDB[j]-half[j], band.MedianDB[j]+half[j]
 	}
-	for i, u := range traced {
+	for i, ui := range acc.traced {
+		u := &b.units[ui]
 		if u.Verdict != VerdictPass && u.Verdict != VerdictConditionalPass {
 			continue
 		}
@@ -271,7 +435,7 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 		var ranges [][2]float64
 		prev := -2
 		for j, k := range kept {
-			v := on[i][k]
+			v := acc.at(i, k)
 			if !math.IsNaN(v) && (v < band.LowDB[j] || v > band.HighDB[j]) {
 				out = append(out, grid[k])
 				if j == prev+1 {
@@ -289,6 +453,32 @@ func fleetBand(us []*UnitSummary) (*GoldenBand, []WatchEntry) {
 	return band, watch
 }
 
+// fleetMedianMADInPlace is fleetMedianMAD that sorts x in place and uses
+// scratch (at least as long as x) for the deviations.
+func fleetMedianMADInPlace(x, scratch []float64) (median, mad float64) {
+	sort.Float64s(x)
+	med := sortedMedian(x)
+	dev := scratch[:len(x)]
+	for i, v := range x {
+		dev[i] = math.Abs(v - med)
+	}
+	sort.Float64s(dev)
+	return med, sortedMedian(dev)
+}
+
+// sortedMedian is the median of sorted values (NaN for none); for an even
+// count the mean of the two middle values.
+func sortedMedian(s []float64) float64 {
+	n := len(s)
+	if n == 0 {
+		return math.NaN()
+	}
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
+
 // fleetMedianMAD returns the median of x and the median absolute deviation
 // from it (unscaled). For an even count the median is the mean of the two
 // middle values.
@@ -304,21 +494,14 @@ func fleetMedianMAD(x []float64) (median, mad float64) {
 func fleetMedian(x []float64) float64 {
 	s := append([]float64(nil), x...)
 	sort.Float64s(s)
-	n := len(s)
-	if n == 0 {
-		return math.NaN()
-	}
-	if n%2 == 1 {
-		return s[n/2]
-	}
-	return (s[n/2-1] + s[n/2]) / 2
+	return sortedMedian(s)
 }
 
-// fleetTestBefore orders two units by start: RFC 3339 times compare as
-// instants, and come before starts that do not parse, which compare as text.
-func fleetTestBefore(a, b *UnitSummary) bool {
-	ta, ea := time.Parse(time.RFC3339, a.Started)
-	tb, eb := time.Parse(time.RFC3339, b.Started)
+// fleetTestBefore orders two starts: RFC 3339 times compare as instants,
+// and come before starts that do not parse, which compare as text.
+func fleetTestBefore(a, b string) bool {
+	ta, ea := time.Parse(time.RFC3339, a)
+	tb, eb := time.Parse(time.RFC3339, b)
 	switch {
 	case ea == nil && eb == nil:
 		return ta.Before(tb)
@@ -327,7 +510,7 @@ func fleetTestBefore(a, b *UnitSummary) bool {
 	case eb == nil:
 		return false
 	}
-	return a.Started < b.Started
+	return a < b
 }
 
 // bandSmoothingPoints is the moving-average width used for the golden

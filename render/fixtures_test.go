@@ -303,8 +303,17 @@ func fixtureElements(rows, cols int) *reduce.ElementState {
 // hostile.
 func fixtureFleet(t testing.TB) *reduce.Fleet {
 	t.Helper()
+	fl, _ := fixtureFleetAndSummaries(t)
+	return fl
+}
+
+// fixtureFleetAndSummaries is fixtureFleet with the unit summaries its
+// units were made from (sorted by serial), as results.csv takes them.
+func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary) {
+	t.Helper()
 	const n = 24
 	fl := &reduce.Fleet{Schema: reduce.FleetSchema}
+	var sums []reduce.UnitSummary
 	verdicts := map[string]int{}
 	margins := make([]float64, n)
 	serials := make([]string, n)
@@ -334,13 +343,21 @@ func fixtureFleet(t testing.TB) *reduce.Fleet {
 			{Name: "Gain at boresight", Quantity: "gain", Beam: "b00", Statistic: "mean", WorstMarginDB: 1.5 + margins[i]/3,
 				AtFrequencyHz: 11.725e9, ValueDB: 31 + margins[i]/3, LimitDB: 29.5, ExpandedUncertaintyDB: 0.43, Verdict: reduce.VerdictPass},
 		}
-		fl.Units = append(fl.Units, reduce.UnitSummary{Serial: serials[i], Product: "KU-PANEL-16", Started: started[i], Verdict: v, Limits: lr})
+		sums = append(sums, reduce.UnitSummary{Serial: serials[i], Product: "KU-PANEL-16", Started: started[i], Verdict: v, Limits: lr})
 	}
-	fl.Units = append(fl.Units, reduce.UnitSummary{Serial: "XB4-00001", Product: "X-BAND-4", Started: "2026-11-20T10:00:00Z",
+	sums = append(sums, reduce.UnitSummary{Serial: "XB4-00001", Product: "X-BAND-4", Started: "2026-11-20T10:00:00Z",
 		Verdict: reduce.VerdictFail, Limits: []reduce.LimitResult{{Name: "G/T at boresight", Quantity: "gt", Beam: "b00",
 			Statistic: "min", WorstMarginDB: -0.31, AtFrequencyHz: 8.1e9, ValueDB: -4.31, LimitDB: -4, ExpandedUncertaintyDB: 0.6,
 			Verdict: reduce.VerdictFail}}})
-	sortUnitSummaries(fl.Units)
+	sortUnitSummaries(sums)
+	// The units as reduce.FleetBuilder keeps them: one entry per limit name.
+	b := reduce.NewFleetBuilder()
+	for _, u := range sums {
+		if err := b.Add(u); err != nil {
+			t.Fatal(err)
+		}
+	}
+	fl.Units = b.Finish().Units
 
 	stats := func(name string, ms []float64) reduce.LimitStats {
 		ls := reduce.LimitStats{Name: name, Units: len(ms)}
@@ -395,7 +412,7 @@ func fixtureFleet(t testing.TB) *reduce.Fleet {
 				Chart: reduce.ControlChart{Serials: []string{"XB4-00001"}, Started: []string{"2026-11-20T10:00:00Z"}, ValuesDB: []float64{-0.31}, CentreDB: -0.31, UpperDB: -0.31, LowerDB: -0.31}}},
 			Watch: nil},
 	}
-	return fl
+	return fl, sums
 }
 
 func sortUnitSummaries(us []reduce.UnitSummary) {

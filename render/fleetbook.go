@@ -60,20 +60,15 @@ func fleetLimitNames(f *reduce.Fleet) []string {
 	return names
 }
 
-// worstMargin is a unit's smallest margin over the beams of a limit (NaN
-// when the unit has no finite margin for it): the fleet's view of a limit,
-// as reduce.LimitStats defines it.
-func worstMargin(u *reduce.UnitSummary, name string) float64 {
-	w := math.NaN()
+// worstMargin is a unit's smallest finite margin over the beams of a limit
+// (NaN when it has none): reduce.FleetUnitLimit.WorstMarginDB.
+func worstMargin(u *reduce.FleetUnit, name string) float64 {
 	for _, l := range u.Limits {
-		if l.Name != name || math.IsNaN(l.WorstMarginDB) {
-			continue
-		}
-		if math.IsNaN(w) || l.WorstMarginDB < w {
-			w = l.WorstMarginDB
+		if l.Name == name {
+			return l.WorstMarginDB
 		}
 	}
-	return w
+	return math.NaN()
 }
 
 func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet) {

@@ -44,7 +44,7 @@ type indexView struct {
 }
 
 type unitRow struct {
-	reduce.UnitSummary
+	reduce.FleetUnit
 	WorstMarginDB float64
 	WorstLimit    string
 	HasMargin     bool
@@ -70,7 +70,8 @@ func indexModel(f *reduce.Fleet) (*indexView, error) {
 	counts := map[string]int{}
 	var margins []float64
 	for _, u := range f.Units {
-		r := unitRow{UnitSummary: u, WorstMarginDB: math.NaN()}
+		r := unitRow{FleetUnit: u, WorstMarginDB: math.NaN()}
+		// Each entry is a limit name's worst beam; the first entry wins a tie.
 		for _, l := range u.Limits {
 			if finite(l.WorstMarginDB) && (!r.HasMargin || l.WorstMarginDB < r.WorstMarginDB) {
 				r.WorstMarginDB, r.WorstLimit, r.HasMargin = l.WorstMarginDB, l.Name+" ("+l.Beam+")", true

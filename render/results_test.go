@@ -440,9 +440,9 @@ func TestFleetJSON(t *testing.T) {
 }
 
 func TestResultsCSV(t *testing.T) {
-	f := fixtureFleet(t)
+	_, sums := fixtureFleetAndSummaries(t)
 	units := append([]reduce.UnitSummary{{Serial: "AA-0001", Product: "KU-PANEL-16", Started: "2026-12-01T08:00:00Z",
-		Verdict: reduce.VerdictIncomplete}}, f.Units...) // no limits; given out of serial order
+		Verdict: reduce.VerdictIncomplete}}, sums...) // no limits; given out of serial order
 	units[1].Limits = append([]reduce.LimitResult(nil), units[1].Limits...)
 	units[1].Limits[1].WorstMarginDB = math.NaN()
 	data := ResultsCSV(units)
@@ -459,7 +459,7 @@ func TestResultsCSV(t *testing.T) {
 		t.Fatalf("header %q", strings.Join(rows[0], ","))
 	}
 	want := 1 // the unit without limits
-	for _, u := range f.Units {
+	for _, u := range sums {
 		want += len(u.Limits)
 	}
 	if len(rows)-1 != want {
