@@ -2,7 +2,6 @@ package render
 
 import (
 	"bytes"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -572,68 +571,4 @@ func restoreNaN(tree any, v reflect.Value) {
 			restoreNaN(arr[i], v.Index(i))
 		}
 	}
-}
-
-// resultsCSVHeader is the column list of results.csv (the site contract).
-var resultsCSVHeader = []string{
-	"serial", "product", "started", "unit_verdict", "beam", "limit", "quantity", "statistic",
-	"worst_margin_db", "at_frequency_ghz", "value", "limit_value", "expanded_uncertainty_db", "verdict",
-}
-
-// ResultsCSV returns results.csv: a header and one row per unit, beam and
-// limit (one per reduce.LimitResult), units sorted by serial, limits in the
-// order reduce gave them. A unit without limits still has one row, with the
-// limit columns empty. Numbers are the shortest text that reads back to
-// the same float64; frequencies are in GHz to 1 Hz; a non-finite number is
-// an empty field. Text is written as is (no formula escaping): the file is
-// for programs.
-func ResultsCSV(units []reduce.UnitSummary) []byte {
-	order := make([]int, len(units))
-	for i := range order {
-		order[i] = i
-	}
-	sort.SliceStable(order, func(a, b int) bool { return units[order[a]].Serial < units[order[b]].Serial })
-
-	var buf bytes.Buffer
-	w := csv.NewWriter(&buf)
-	_ = w.Write(resultsCSVHeader) // writes to a bytes.Buffer do not fail
-	for _, i := range order {
-		u := &units[i]
-		head := []string{u.Serial, u.Product, u.Started, u.Verdict}
-		if len(u.Limits) == 0 {
-			_ = w.Write(append(head, "", "", "", "", "", "", "", "", "", ""))
-			continue
-		}
-		for _, l := range u.Limits {
-			row := append(append([]string(nil), head...),
-				l.Beam, l.Name, l.Quantity, l.Statistic,
-				csvFloat(l.WorstMarginDB), csvGHz(l.AtFrequencyHz), csvFloat(l.ValueDB), csvFloat(l.LimitDB),
-				csvFloat(l.ExpandedUncertaintyDB), l.Verdict)
-			_ = w.Write(row)
-		}
-	}
-	w.Flush()
-	return buf.Bytes()
-}
-
-func csvFloat(f float64) string {
-	if math.IsNaN(f) || math.IsInf(f, 0) {
-		return ""
-	}
-	return strconv.FormatFloat(f, 'g', -1, 64)
-}
-
-// csvGHz writes a frequency in GHz to 1 Hz, without trailing zeros, so that
-// 11.725e9 Hz is "11.725" and not the binary neighbour of 11.725e9/1e9.
-func csvGHz(hz float64) string {
-	if math.IsNaN(hz) || math.IsInf(hz, 0) {
-		return ""
-	}
-	s := strconv.FormatFloat(hz/1e9, 'f', 9, 64)
-	s = strings.TrimRight(s, "0")
-	s = strings.TrimSuffix(s, ".")
-	if s == "-0" {
-		s = "0"
-	}
-	return s
 }

@@ -1,0 +1,112 @@
+package render
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// resultsCSVHeader is the column list of results.csv (the site contract).
+var resultsCSVHeader = []string{
+	"serial", "product", "started", "unit_verdict", "beam", "limit", "quantity", "statistic",
+	"worst_margin_db", "at_frequency_ghz", "value", "limit_value", "expanded_uncertainty_db", "verdict",
+}
+
+// ResultsCSV returns results.csv: a header and one row per unit, beam and
+// limit (one per reduce.LimitResult), units sorted by serial, limits in the
+// order reduce gave them. A unit without limits still has one row, with the
+// limit columns empty. Numbers are the shortest text that reads back to
+// the same float64; frequencies are in GHz to 1 Hz; a non-finite number is
+// an empty field. Text is written as is (no formula escaping): the file is
+// for programs. ResultsCSVWriter writes the same bytes one unit at a time.
+func ResultsCSV(units []reduce.UnitSummary) []byte {
+	order := make([]int, len(units))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return units[order[a]].Serial < units[order[b]].Serial })
+	var buf bytes.Buffer
+	w, _ := NewResultsCSVWriter(&buf) // writes to a bytes.Buffer do not fail
+	for _, i := range order {
+		_ = w.Unit(&units[i]) // in serial order: cannot fail
+	}
+	_ = w.Flush()
+	return buf.Bytes()
+}
+
+// ResultsCSVWriter writes results.csv to a writer one unit at a time, so
+// that a site's file never has to be held whole.
+type ResultsCSVWriter struct {
+	w     *csv.Writer
+	row   []string
+	last  string
+	units int
+}
+
+// NewResultsCSVWriter writes the header of results.csv to w.
+func NewResultsCSVWriter(w io.Writer) (*ResultsCSVWriter, error) {
+	r := &ResultsCSVWriter{w: csv.NewWriter(w), row: make([]string, 0, len(resultsCSVHeader))}
+	if err := r.w.Write(resultsCSVHeader); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
+
+// Unit writes the rows of one unit. Units must come in serial order (as
+// ResultsCSV sorts them); a serial before the previous one is refused.
+func (r *ResultsCSVWriter) Unit(u *reduce.UnitSummary) error {
+	if r.units > 0 && u.Serial < r.last {
+		return fmt.Errorf("render: results.csv: unit %q after %q, expected serial order", u.Serial, r.last)
+	}
+	r.last = u.Serial
+	r.units++
+	head := []string{u.Serial, u.Product, u.Started, u.Verdict}
+	if len(u.Limits) == 0 {
+		return r.w.Write(append(append(r.row[:0], head...), "", "", "", "", "", "", "", "", "", ""))
+	}
+	for _, l := range u.Limits {
+		row := append(append(r.row[:0], head...),
+			l.Beam, l.Name, l.Quantity, l.Statistic,
+			csvFloat(l.WorstMarginDB), csvGHz(l.AtFrequencyHz), csvFloat(l.ValueDB), csvFloat(l.LimitDB),
+			csvFloat(l.ExpandedUncertaintyDB), l.Verdict)
+		if err := r.w.Write(row); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// Flush writes what is buffered to the underlying writer.
+func (r *ResultsCSVWriter) Flush() error {
+	r.w.Flush()
+	return r.w.Error()
+}
+
+func csvFloat(f float64) string {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(f, 'g', -1, 64)
+}
+
+// csvGHz writes a frequency in GHz to 1 Hz, without trailing zeros, so that
+// 11.725e9 Hz is "11.725" and not the binary neighbour of 11.725e9/1e9.
+func csvGHz(hz float64) string {
+	if math.IsNaN(hz) || math.IsInf(hz, 0) {
+		return ""
+	}
+	s := strconv.FormatFloat(hz/1e9, 'f', 9, 64)
+	s = strings.TrimRight(s, "0")
+	s = strings.TrimSuffix(s, ".")
+	if s == "-0" {
+		s = "0"
+	}
+	return s
+}
