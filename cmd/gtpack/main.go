@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/pprof"
 	"strings"
 )
 
@@ -36,6 +37,18 @@ exit codes: 0 done; 1 done, but some inputs were refused; 2 usage error
 `
 
 func main() {
+	// GTPACK_CPUPROFILE=FILE writes a CPU profile of the whole command, for
+	// developers measuring a build (DEVELOPERS.md, "Benchmarks").
+	if p := os.Getenv("GTPACK_CPUPROFILE"); p != "" {
+		f, err := os.Create(p)
+		if err == nil && pprof.StartCPUProfile(f) == nil {
+			code := run(os.Args[1:], os.Stdout, os.Stderr)
+			pprof.StopCPUProfile()
+			f.Close()
+			os.Exit(code)
+		}
+		fmt.Fprintf(os.Stderr, "gtpack: GTPACK_CPUPROFILE=%s: no profile written\n", p)
+	}
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
 
