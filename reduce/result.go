@@ -2,8 +2,11 @@ package reduce
 
 import "gtpack.example/gtpack/ingest"
 
-// ResultSchema is the version of the result.json layout.
-const ResultSchema = 1
+// ResultSchema is the version of the result.json layout. Schema 2 writes
+// the budgets short: a term the same at every frequency as one value
+// (BudgetTerm.ConstantStandardDB), and no expanded_db beside the beam's
+// expanded uncertainty, which is the same list.
+const ResultSchema = 2
 
 // Verdicts, best first. A unit's verdict is the worst of its limits', and
 // VerdictIncomplete when inputs were missing or refused.
@@ -155,9 +158,12 @@ type NoiseStatistics struct {
 // term, each with a value per frequency of the beam's grid.
 type Budget struct {
 	Terms []BudgetTerm `json:"terms"`
-	// CombinedDB is u_c per frequency; ExpandedDB is k*u_c.
+	// CombinedDB is u_c per frequency; ExpandedDB is k*u_c. result.json
+	// leaves ExpandedDB out: it is the beam's GainExpandedUncertaintyDB or
+	// GTExpandedUncertaintyDB, where render.ParseResultJSON takes it back
+	// from.
 	CombinedDB []float64 `json:"combined_db"`
-	ExpandedDB []float64 `json:"expanded_db"`
+	ExpandedDB []float64 `json:"-"`
 	CoverageK  float64   `json:"coverage_k"`
 }
 
@@ -172,7 +178,14 @@ type BudgetTerm struct {
 	// follows from the two fields it keeps; render.ParseResultJSON puts it
 	// back as StandardDB*Divisor.
 	ValueDB    []float64 `json:"-"`
-	StandardDB []float64 `json:"standard_db"`
+	StandardDB []float64 `json:"standard_db,omitempty"`
+	// ConstantStandardDB is how result.json writes a StandardDB that is
+	// the same finite value at every frequency (most station terms, the
+	// certificate's gain uncertainty): that value, with standard_db left
+	// out. It is set only between reading a result.json and
+	// render.ParseResultJSON expanding it into StandardDB; reduce never
+	// sets it.
+	ConstantStandardDB *float64 `json:"constant_standard_db,omitempty"`
 }
 
 // Projection is the derived G/T at an operating antenna temperature.

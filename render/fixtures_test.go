@@ -255,7 +255,10 @@ func fixtureBudget(n int, gt bool) reduce.Budget {
 		bt := reduce.BudgetTerm{Name: tm.name, Source: tm.source, Distribution: tm.dist, Divisor: tm.div,
 			ValueDB: make([]float64, n), StandardDB: make([]float64, n)}
 		for k := 0; k < n; k++ {
-			v := tm.value * (1 + 0.1*float64(k)/float64(n))
+			v := tm.value // a station's figure holds across the band
+			if tm.source == "data" {
+				v *= 1 + 0.1*float64(k)/float64(n)
+			}
 			bt.ValueDB[k] = v
 			bt.StandardDB[k] = v / tm.div
 		}

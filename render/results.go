@@ -58,6 +58,9 @@ func ParseResultJSON(data []byte) (*reduce.Unit, error) {
 		return nil, ingest.Problemf(file, 0, "serial is empty, expected the unit's serial number")
 	}
 	for i := range u.Beams {
+		b := &u.Beams[i]
+		expandBudget(&b.GainBudget, len(b.FrequencyHz), b.GainExpandedUncertaintyDB)
+		expandBudget(&b.GTBudget, len(b.FrequencyHz), b.GTExpandedUncertaintyDB)
 		if err := checkBeamLengths(&u.Beams[i]); err != nil {
 			return nil, ingest.Problemf(file, 0, "beams[%d] (%q): %v", i, u.Beams[i].ID, err)
 		}
@@ -68,6 +71,46 @@ func ParseResultJSON(data []byte) (*reduce.Unit, error) {
 		return nil, ingest.Problemf(file, 0, "%v", err)
 	}
 	return u, nil
+}
+
+// expandBudget undoes the short form of a budget in result.json: a term
+// written as one constant_standard_db gets it at each of the n frequencies,
+// and the expanded uncertainty is the beam's list (the same one in reduce).
+func expandBudget(b *reduce.Budget, n int, expanded []float64) {
+	for i := range b.Terms {
+		t := &b.Terms[i]
+		if t.ConstantStandardDB == nil {
+			continue
+		}
+		t.StandardDB = make([]float64, n)
+		for k := range t.StandardDB {
+			t.StandardDB[k] = *t.ConstantStandardDB
+		}
+		t.ConstantStandardDB = nil
+	}
+	if len(b.Terms) > 0 || len(b.CombinedDB) > 0 {
+		b.ExpandedDB = expanded
+	}
+}
+
+// shortBudgetTerm is the form result.json writes a budget term in: a
+// StandardDB that holds one finite value at every frequency becomes
+// ConstantStandardDB.
+func shortBudgetTerm(t reduce.BudgetTerm) reduce.BudgetTerm {
+	if len(t.StandardDB) == 0 {
+		return t
+	}
+	x := t.StandardDB[0]
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return t
+	}
+	for _, y := range t.StandardDB[1:] {
+		if y != x {
+			return t
+		}
+	}
+	t.ConstantStandardDB, t.StandardDB = &x, nil
+	return t
 }
 
 // restoreBudgetValues fills each term's stated values, which result.json
@@ -255,6 +298,7 @@ func appendNewline(b []byte, depth int) []byte {
 var (
 	jsonMarshaler    = reflect.TypeFor[json.Marshaler]()
 	float64SliceType = reflect.TypeFor[[]float64]()
+	budgetTermType   = reflect.TypeFor[reduce.BudgetTerm]()
 )
 
 // appendJSON encodes like encoding/json (field names and omitempty from
@@ -284,6 +328,9 @@ func appendJSON(b []byte, v reflect.Value, depth int) ([]byte, error) {
 		}
 		return appendJSON(b, v.Elem(), depth)
 	case reflect.Struct:
+		if v.Type() == budgetTermType {
+			v = reflect.ValueOf(shortBudgetTerm(v.Interface().(reduce.BudgetTerm)))
+		}
 		b = append(b, '{')
 		first := true
 		t := v.Type()

@@ -39,16 +39,56 @@ func TestResultJSONMatchesEncodingJSON(t *testing.T) {
 	if err := json.Unmarshal(want, &wantTree); err != nil {
 		t.Fatal(err)
 	}
+	shortenBudgets(t, wantTree)
 	if msg := compareJSONTrees("$", gotTree, wantTree); msg != "" {
 		t.Fatal(msg)
 	}
 	if bytes.Contains(got, []byte(`"value_db": [`)) {
 		t.Error("budget terms still carry value_db")
 	}
-	for _, k := range []string{`"standard_db": [`, `"divisor": 1.732051`} { // sqrt(3), the rectangular divisor (GUM 4.3.7)
+	if bytes.Contains(got, []byte(`"expanded_db"`)) {
+		t.Error("budgets still carry expanded_db beside the beam's expanded uncertainty")
+	}
+	for _, k := range []string{`"standard_db": [`, `"constant_standard_db": 0.`, `"divisor": 1.732051`} { // sqrt(3), the rectangular divisor (GUM 4.3.7)
 		if !bytes.Contains(got, []byte(k)) {
 			t.Errorf("result.json lacks %s", k)
 		}
+	}
+}
+
+// shortenBudgets turns the budgets of a result tree written by
+// encoding/json into result.json's schema-2 form: no expanded_db, and a
+// term whose standard_db holds one value throughout carries it as
+// constant_standard_db.
+func shortenBudgets(t *testing.T, tree any) {
+	t.Helper()
+	shortened := 0
+	for _, b := range tree.(map[string]any)["beams"].([]any) {
+		for _, key := range []string{"gain_budget", "gt_budget"} {
+			bud := b.(map[string]any)[key].(map[string]any)
+			delete(bud, "expanded_db")
+			terms, _ := bud["terms"].([]any)
+			for _, term := range terms {
+				m := term.(map[string]any)
+				list, _ := m["standard_db"].([]any)
+				if len(list) == 0 {
+					delete(m, "standard_db")
+					continue
+				}
+				same := true
+				for _, x := range list {
+					same = same && x == list[0]
+				}
+				if _, finite := list[0].(float64); same && finite {
+					m["constant_standard_db"] = list[0]
+					delete(m, "standard_db")
+					shortened++
+				}
+			}
+		}
+	}
+	if shortened == 0 {
+		t.Fatal("the fixture has no budget term that is the same at every frequency")
 	}
 }
 
@@ -234,7 +274,7 @@ func TestResultJSONRoundTrip(t *testing.T) {
 	if !bytes.Equal(first, again) {
 		t.Fatal("two encodings of the same unit differ")
 	}
-	if !bytes.HasSuffix(first, []byte("}\n")) || !bytes.HasPrefix(first, []byte("{\n  \"schema\": 1,\n")) {
+	if !bytes.HasSuffix(first, []byte("}\n")) || !bytes.HasPrefix(first, []byte("{\n  \"schema\": 2,\n")) {
 		t.Errorf("not indented with a trailing newline: %q ... %q", first[:30], first[len(first)-10:])
 	}
 	back, err := ParseResultJSON(first)
@@ -287,6 +327,24 @@ func TestResultJSONRoundTrip(t *testing.T) {
 	}
 	if len(backTerm.ValueDB) != len(term.ValueDB) {
 		t.Errorf("restored %d budget values, want %d", len(backTerm.ValueDB), len(term.ValueDB))
+	}
+	// Schema 2 writes constant terms as one value and leaves the budget's
+	// expanded uncertainty to the beam's list: both come back whole.
+	for bi := range u.Beams {
+		for ti, tm := range u.Beams[bi].GTBudget.Terms {
+			bt := back.Beams[bi].GTBudget.Terms[ti]
+			if len(bt.StandardDB) != len(tm.StandardDB) || bt.ConstantStandardDB != nil {
+				t.Fatalf("beam %d term %d: %d standard values after the round trip, want %d", bi, ti, len(bt.StandardDB), len(tm.StandardDB))
+			}
+			for k := range tm.StandardDB {
+				if math.Abs(bt.StandardDB[k]-tm.StandardDB[k]) > 5e-7 {
+					t.Fatalf("beam %d term %d point %d: %v, want %v", bi, ti, k, bt.StandardDB[k], tm.StandardDB[k])
+				}
+			}
+		}
+		if got, want := back.Beams[bi].GTBudget.ExpandedDB, u.Beams[bi].GTBudget.ExpandedDB; len(got) != len(want) || math.Abs(got[5]-want[5]) > 5e-7 {
+			t.Errorf("beam %d: expanded uncertainty %d values after the round trip, want %d", bi, len(got), len(want))
+		}
 	}
 
 	// The keys the site contract (archive-format.md, result.json) promises.
@@ -389,7 +447,7 @@ func TestParseResultJSONRefuses(t *testing.T) {
 	}{
 		{"syntax", []byte("{\n  \"schema\": 1,\n  \"serial\": \"A\"\n  \"run\": 2\n}"), 4, "expected JSON"},
 		{"type", []byte("{\n  \"schema\": 1,\n  \"serial\": 7\n}"), 3, "expected string"},
-		{"schema", edit(`"schema": 1`, `"schema": 2`), 0, "schema 2, expected 1"},
+		{"schema", edit(`"schema": 2`, `"schema": 1`), 0, "schema 1, expected 2"},
 		{"serial", edit(`"serial": "`, `"serial": "",  "x": "`), 0, "serial is empty"},
 		{"short list", edit(`"gt_db_per_k": [`, `"gt_db_per_k": [1,`), 0, "gt_db_per_k has 6 values, expected 5"},
 		{"empty", nil, 1, "expected JSON"},
