@@ -232,6 +232,9 @@ func parseDecimal(s string) (float64, error) {
 // exponent is added to the text, so "10.7" in GHz is exactly the float64
 // nearest 10.7e9.
 func parseScaled(s string, exp int) (float64, error) {
+	if v, ok := fastScaled(s, exp); ok {
+		return v, nil
+	}
 	if s == "" {
 		return 0, errors.New("empty; expected a number")
 	}
@@ -259,6 +262,83 @@ func parseScaled(s string, exp int) (float64, error) {
 		return 0, errors.New("out of range; expected a finite number")
 	}
 	return v, nil
+}
+
+// exactPow10 holds the powers of ten that a float64 holds exactly.
+var exactPow10 = [23]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// fastScaled is parseScaled's short way for the numbers a trace is made
+// of: a decimal of at most 15 significant digits whose scale, with exp,
+// is within 10^+-22. Its digits make a whole number m below 2^53 and the
+// value is m * 10^k or m / 10^-k: both operands are exact in a float64,
+// so the one rounding of the product or quotient gives the float64
+// nearest the decimal (Clinger 1990, "How to read floating point numbers
+// accurately", the fast path; strconv.ParseFloat takes it too). ok is
+// false for anything else, which parseScaled reads the long way, errors
+// included.
+func fastScaled(s string, exp int) (float64, bool) {
+	i, neg := 0, false
+	if len(s) > 0 && (s[0] == '+' || s[0] == '-') {
+		neg, i = s[0] == '-', 1
+	}
+	var m uint64
+	digits, frac, seen := 0, 0, false
+	for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
+		seen = true
+		if m == 0 && s[i] == '0' {
+			continue // leading zeros are not significant
+		}
+		m = m*10 + uint64(s[i]-'0')
+		digits++
+	}
+	if i < len(s) && s[i] == '.' {
+		for i++; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
+			seen = true
+			frac++
+			if m == 0 && s[i] == '0' {
+				continue
+			}
+			m = m*10 + uint64(s[i]-'0')
+			digits++
+		}
+	}
+	if !seen || digits > 15 {
+		return 0, false
+	}
+	k := exp - frac
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		eneg := false
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			eneg, i = s[i] == '-', i+1
+		}
+		e, ed := 0, 0
+		for ; i < len(s) && s[i] >= '0' && s[i] <= '9' && ed < 4; i++ {
+			e = e*10 + int(s[i]-'0')
+			ed++
+		}
+		if ed == 0 {
+			return 0, false
+		}
+		if eneg {
+			e = -e
+		}
+		k += e
+	}
+	if i != len(s) || k < -22 || k > 22 {
+		return 0, false
+	}
+	v := float64(m) // m < 10^15 < 2^53: exact
+	if k >= 0 {
+		v *= exactPow10[k]
+	} else {
+		v /= exactPow10[-k]
+	}
+	if neg {
+		v = -v
+	}
+	return v, true
 }
 
 // formatScaled writes v times 10^exp as decimal text with the shortest
