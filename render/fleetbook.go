@@ -71,6 +71,13 @@ func worstMargin(u *reduce.FleetUnit, name string) float64 {
 	return math.NaN()
 }
 
+// The Units, Control chart and Watch sheets grow with the number of units
+// (three limits of 10,000 units are 300,000 cells of control chart data):
+// their rows are bulk rows, written into the sheet when the workbook is
+// saved, as the unit workbook's frequency tables are, with numbers at
+// fleet.json's rounding (appendJSONFloat). Only the headers, panes, rules
+// and charts go through excelize.
+
 func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet) {
 	names := fleetLimitNames(f)
 	cols := []xlColumn{{"Serial", "", 18}, {"Product", "", 16}, {"Started", "", 21}, {"Verdict", "", 16}}
@@ -78,14 +85,18 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet) {
 		cols = append(cols, xlColumn{n + " worst margin (dB)", nfDB, 16})
 	}
 	b.table(sheet, 1, cols, true)
+	styles := b.columnStyles(cols)
+	t := &bulkSheet{first: 2, width: len(cols), rows: make([][]bulkCell, 0, len(f.Units))}
+	values := make([]any, len(cols))
 	for i := range f.Units {
 		u := &f.Units[i]
-		r := i + 2
-		b.setRow(sheet, r, u.Serial, u.Product, u.Started, u.Verdict)
-		for j, n := range names {
-			b.set(sheet, 5+j, r, worstMargin(u, n))
+		values = append(values[:0], u.Serial, u.Product, u.Started, u.Verdict)
+		for _, n := range names {
+			values = append(values, worstMargin(u, n))
 		}
+		t.rows = append(t.rows, bulkRow(styles, values...))
 	}
+	b.addBulk(sheet, t)
 	if len(f.Units) > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("D2:D%d", len(f.Units)+1))
 	}
@@ -150,11 +161,15 @@ func writeFleetLimits(b *xlBook, sheet string, f *reduce.Fleet) {
 // limit as one table, and a line chart of each block with two points or
 // more beside it.
 func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
-	b.table(sheet, 1, []xlColumn{
+	cols := []xlColumn{
 		{"Product", "", 16}, {"Limit", "", 22}, {"Order", nfInt, 6}, {"Serial", "", 18}, {"Started", "", 21},
 		{"Worst margin (dB)", nfDB, 12}, {"Centre (dB)", nfDB, 10}, {"Upper (dB)", nfDB, 10}, {"Lower (dB)", nfDB, 10},
 		{"Beyond limits", "", 9},
-	}, true)
+	}
+	b.table(sheet, 1, cols, true)
+	styles := b.columnStyles(cols)
+	t := &bulkSheet{first: 2, width: len(cols)}
+	defer b.addBulk(sheet, t)
 	r := 2
 	charts := 0
 	for _, p := range f.Products {
@@ -176,7 +191,7 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 				if beyond[i] {
 					flag = "yes"
 				}
-				b.setRow(sheet, r, p.Product, l.Name, i+1, serial, started, v, c.CentreDB, c.UpperDB, c.LowerDB, flag)
+				t.rows = append(t.rows, bulkRow(styles, p.Product, l.Name, i+1, serial, started, v, c.CentreDB, c.UpperDB, c.LowerDB, flag))
 				r++
 			}
 			if r-first >= 2 {
@@ -208,20 +223,21 @@ func writeOutliers(b *xlBook, sheet string, f *reduce.Fleet) {
 }
 
 func writeWatch(b *xlBook, sheet string, f *reduce.Fleet) {
-	b.table(sheet, 1, []xlColumn{{"Product", "", 16}, {"Serial", "", 18}, {"Frequency outside the band (GHz)", nfGHz, 18}}, true)
-	r := 2
+	cols := []xlColumn{{"Product", "", 16}, {"Serial", "", 18}, {"Frequency outside the band (GHz)", nfGHz, 18}}
+	b.table(sheet, 1, cols, true)
+	styles := b.columnStyles(cols)
+	t := &bulkSheet{first: 2, width: len(cols)}
 	for _, p := range f.Products {
 		for _, w := range p.Watch {
 			if len(w.FrequenciesHz) == 0 {
-				b.setRow(sheet, r, p.Product, w.Serial)
-				r++
+				t.rows = append(t.rows, bulkRow(styles, p.Product, w.Serial))
 			}
 			for _, hz := range w.FrequenciesHz {
-				b.setRow(sheet, r, p.Product, w.Serial, toGHz(hz))
-				r++
+				t.rows = append(t.rows, bulkRow(styles, p.Product, w.Serial, frequencyHz(hz)))
 			}
 		}
 	}
+	b.addBulk(sheet, t)
 }
 
 func writeBand(b *xlBook, sheet string, f *reduce.Fleet) {
