@@ -5,6 +5,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
+	"io"
 	"reflect"
 	"strings"
 	"testing"
@@ -19,72 +20,111 @@ const (
 	hashEmpty = "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"
 )
 
+// writeManifest writes a manifest of the given units through the writer.
+func writeManifest(t *testing.T, units []ManifestUnit, outputs []ManifestEntry) []byte {
+	t.Helper()
+	var buf bytes.Buffer
+	w, err := NewManifestWriter(&buf, Version)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, u := range units {
+		if err := w.Unit(u.Serial, u.Verdict, u.Inputs, u.Outputs); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := w.Close(outputs); err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
 func TestManifestRoundTrip(t *testing.T) {
 	sum := sha256.Sum256([]byte("abc"))
 	if hex.EncodeToString(sum[:]) != hashABC {
 		t.Fatal("crypto/sha256 disagrees with FIPS 180-2 B.1")
 	}
-	m := &Manifest{
-		ToolVersion: Version,
-		Inputs: []ManifestEntry{
-			{Path: "stations/range-b.yaml", Size: 3, SHA256: hashABC},
-			{Path: "2026/11/KP16-00017/run.yaml", Size: 0, SHA256: hashEmpty},
-		},
-		Outputs: []ManifestEntry{
-			{Path: "units/KP16-00017/report.html", Size: 1200, SHA256: hashABC},
-			{Path: "index.html", Size: 900, SHA256: hashEmpty},
-			{Path: "fleet.xlsx", Size: 5000, SHA256: hashABC},
-		},
-		Units: []ManifestUnit{
-			{Serial: "KP16-00017", InputsSHA256: hashABC, Verdict: "pass",
-				Outputs: []string{"units/KP16-00017/result.json", "units/KP16-00017/KP16-00017.xlsx"}},
-			{Serial: "KP16-00003", InputsSHA256: hashEmpty, Verdict: "fail", Outputs: nil},
-		},
+	station := ManifestEntry{Path: "stations/range-b.yaml", Size: 3, SHA256: hashABC}
+	stationV2 := ManifestEntry{Path: "stations/range-b.yaml", Size: 0, SHA256: hashEmpty}
+	run17 := ManifestEntry{Path: "2026/11/KP16-00017/run.yaml", Size: 0, SHA256: hashEmpty}
+	data17 := ManifestEntry{Path: "2026/11/KP16-00017/b00.s2p", Size: 3, SHA256: hashABC}
+	run3 := ManifestEntry{Path: "2026/11/KP16-00003/run.yaml", Size: 3, SHA256: hashABC}
+	run20 := ManifestEntry{Path: "2026/12/KP16-00020/run.yaml", Size: 3, SHA256: hashABC}
+	out := func(serial, name string) ManifestEntry {
+		return ManifestEntry{Path: "units/" + serial + "/" + name, Size: 1200, SHA256: hashABC}
 	}
-	orig := m.Inputs[0]
-	data, err := ManifestJSON(m)
-	if err != nil {
-		t.Fatal(err)
+	fleet := []ManifestEntry{
+		{Path: "index.html", Size: 900, SHA256: hashEmpty},
+		{Path: "fleet.xlsx", Size: 5000, SHA256: hashABC},
 	}
-	if m.Inputs[0] != orig || m.Units[0].Outputs[0] != "units/KP16-00017/result.json" || m.Schema != 0 {
-		t.Error("ManifestJSON modified its argument")
+	// Units in serial order with their inputs in any order: KP16-00017
+	// shares the station's version of KP16-00003; KP16-00020 read another
+	// version of it, which it lists as its own.
+	units := []ManifestUnit{
+		{Serial: "KP16-00003", Verdict: "fail", Inputs: []ManifestEntry{station, run3}},
+		{Serial: "KP16-00017", Verdict: "pass", Inputs: []ManifestEntry{run17, station, data17},
+			Outputs: []ManifestEntry{out("KP16-00017", "result.json"), out("KP16-00017", "KP16-00017.xlsx")}},
+		{Serial: "KP16-00020", Verdict: "pass", Inputs: []ManifestEntry{stationV2, run20}},
 	}
-	again, _ := ManifestJSON(m)
-	if !bytes.Equal(data, again) || !bytes.HasSuffix(data, []byte("}\n")) {
+	data := writeManifest(t, units, fleet)
+	if again := writeManifest(t, units, fleet); !bytes.Equal(data, again) || !bytes.HasSuffix(data, []byte("}\n")) {
 		t.Fatal("manifest.json is not stable or lacks the final newline")
 	}
 	back, err := ParseManifest(data)
 	if err != nil {
-		t.Fatal(err)
+		t.Fatalf("%v\n%s", err, data)
+	}
+	// inputs_sha256: SHA-256 of "<sha256> <path>\n" lines in path order.
+	digest := func(es ...ManifestEntry) string {
+		var lines string
+		for _, e := range es {
+			lines += e.SHA256 + " " + e.Path + "\n"
+		}
+		s := sha256.Sum256([]byte(lines))
+		return hex.EncodeToString(s[:])
 	}
 	want := &Manifest{
-		Schema:      1,
-		ToolVersion: Version,
-		Inputs:      []ManifestEntry{m.Inputs[1], m.Inputs[0]},
-		Outputs:     []ManifestEntry{m.Outputs[2], m.Outputs[1], m.Outputs[0]},
+		Schema:       2,
+		ToolVersion:  Version,
+		SharedInputs: []ManifestEntry{station},
+		Outputs:      []ManifestEntry{fleet[1], fleet[0]},
 		Units: []ManifestUnit{
-			{Serial: "KP16-00003", InputsSHA256: hashEmpty, Verdict: "fail", Outputs: []string{}},
-			{Serial: "KP16-00017", InputsSHA256: hashABC, Verdict: "pass",
-				Outputs: []string{"units/KP16-00017/KP16-00017.xlsx", "units/KP16-00017/result.json"}},
+			{Serial: "KP16-00003", Verdict: "fail", InputsSHA256: digest(run3, station),
+				Inputs: []ManifestEntry{run3}, SharedInputs: []string{station.Path}, Outputs: []ManifestEntry{}},
+			{Serial: "KP16-00017", Verdict: "pass", InputsSHA256: digest(data17, run17, station),
+				Inputs: []ManifestEntry{data17, run17}, SharedInputs: []string{station.Path},
+				Outputs: []ManifestEntry{out("KP16-00017", "KP16-00017.xlsx"), out("KP16-00017", "result.json")}},
+			{Serial: "KP16-00020", Verdict: "pass", InputsSHA256: digest(run20, stationV2),
+				Inputs: []ManifestEntry{run20, stationV2}, SharedInputs: []string{}, Outputs: []ManifestEntry{}},
 		},
 	}
 	if !reflect.DeepEqual(back, want) {
 		t.Errorf("round trip:\n got %+v\nwant %+v", back, want)
 	}
-	// Sorting the input first gives the same bytes: the output does not
-	// depend on the order the build found things in.
-	sorted, _ := ManifestJSON(want)
-	if !bytes.Equal(sorted, data) {
-		t.Error("manifest of the sorted lists differs")
-	}
 	if !strings.Contains(string(data), `"sha256": "`+hashABC+`"`) {
 		t.Error("hash not written as given")
+	}
+	// No unit at all is still a valid manifest.
+	empty := writeManifest(t, nil, nil)
+	if m, err := ParseManifest(empty); err != nil || len(m.Units) != 0 || len(m.SharedInputs) != 0 {
+		t.Errorf("empty manifest: %v %+v\n%s", err, m, empty)
+	}
+	// Serials must increase.
+	w, _ := NewManifestWriter(io.Discard, Version)
+	if err := w.Unit("B", "pass", nil, nil); err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range []string{"A", "B", ""} {
+		if err := w.Unit(s, "pass", nil, nil); err == nil {
+			t.Errorf("unit %q after B accepted", s)
+		}
 	}
 }
 
 func TestManifestRefuses(t *testing.T) {
-	ok := `{"schema": 1, "tool_version": "0.1.0", "inputs": [{"path": "a", "size": 3, "sha256": "` + hashABC + `"}],
-"outputs": [], "units": [{"serial": "S1", "inputs_sha256": "` + hashABC + `", "verdict": "pass", "outputs": []}]}`
+	ok := `{"schema": 2, "tool_version": "0.1.0", "shared_inputs": [{"path": "a", "size": 3, "sha256": "` + hashABC + `"}],
+"outputs": [], "units": [{"serial": "S1", "inputs_sha256": "` + hashABC + `", "verdict": "pass", "inputs": [],
+"shared_inputs": ["a"], "outputs": [{"path": "units/S1/result.json", "size": 1, "sha256": "` + hashEmpty + `"}]}]}`
 	if _, err := ParseManifest([]byte(ok)); err != nil {
 		t.Fatalf("valid manifest refused: %v", err)
 	}
@@ -93,14 +133,17 @@ func TestManifestRefuses(t *testing.T) {
 		line       int
 		want       string
 	}{
-		{"newer schema", strings.Replace(ok, `"schema": 1`, `"schema": 2`, 1), 0, "schema 2, expected 1"},
-		{"no schema", strings.Replace(ok, `"schema": 1,`, ``, 1), 0, "schema 0"},
+		{"newer schema", strings.Replace(ok, `"schema": 2`, `"schema": 3`, 1), 0, "schema 3, expected 2"},
+		{"older schema", strings.Replace(ok, `"schema": 2`, `"schema": 1`, 1), 0, "schema 1, expected 2"},
+		{"no schema", strings.Replace(ok, `"schema": 2,`, ``, 1), 0, "schema 0"},
 		{"upper-case hash", strings.Replace(ok, `"sha256": "ba78`, `"sha256": "BA78`, 1), 0, "64 lower-case hex"},
+		{"unit output hash", strings.Replace(ok, `"sha256": "e3b0`, `"sha256": "e3b`, 1), 0, "units[0].outputs[0]"},
 		{"short hash", strings.Replace(ok, `"inputs_sha256": "ba78`, `"inputs_sha256": "78`, 1), 0, "inputs_sha256"},
 		{"no path", strings.Replace(ok, `"path": "a"`, `"path": ""`, 1), 0, "has no path"},
 		{"negative size", strings.Replace(ok, `"size": 3`, `"size": -3`, 1), 0, "size -3"},
+		{"unknown shared input", strings.Replace(ok, `"shared_inputs": ["a"]`, `"shared_inputs": ["b"]`, 1), 0, `shared input "b"`},
 		{"twice", strings.Replace(ok, `"units": [`, `"units": [{"serial": "S1", "inputs_sha256": "`+hashABC+`"},`, 1), 0, "listed twice"},
-		{"syntax", "{\"schema\": 1,\n\"inputs\": [\n}", 3, "expected JSON"},
+		{"syntax", "{\"schema\": 2,\n\"units\": [\n}", 3, "expected JSON"},
 	}
 	for _, tc := range tests {
 		_, err := ParseManifest([]byte(tc.data))
@@ -108,9 +151,5 @@ func TestManifestRefuses(t *testing.T) {
 		if !errors.As(err, &p) || p.File != "manifest.json" || p.Line != tc.line || !strings.Contains(p.Message, tc.want) {
 			t.Errorf("%s: %v, want manifest.json line %d containing %q", tc.name, err, tc.line, tc.want)
 		}
-	}
-	dup := &Manifest{Units: []ManifestUnit{{Serial: "S"}, {Serial: "S"}}}
-	if _, err := ManifestJSON(dup); err == nil {
-		t.Error("ManifestJSON accepted a serial listed twice")
 	}
 }

@@ -1,11 +1,13 @@
 package main
 
 import (
-	"bytes"
+	"bufio"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
+	"hash"
+	"io"
 	"io/fs"
 	"os"
 	"path"
@@ -203,124 +205,252 @@ func (s *site) removeUnitsExcept(keep func(serial string) bool) error {
 	return nil
 }
 
-// states returns every unit state of the site, sorted by serial: those in
-// known as they are, the others read from the site, two at a time.
-func (s *site) states(known map[string]*unitState) ([]*unitState, error) {
-	dir := filepath.Join(s.dir, stateDir, "units")
-	entries, err := os.ReadDir(dir)
+// fleetState is the part of a unit state the fleet stage reads; the
+// decoder skips the rest (the stamps).
+type fleetState struct {
+	Serial  string                 `json:"serial"`
+	Inputs  []render.ManifestEntry `json:"inputs"` // ingest.InputFile has the same fields
+	Outputs []render.ManifestEntry `json:"outputs"`
+	Summary reduce.UnitSummary     `json:"summary"`
+}
+
+// serials lists the serial numbers of the site's unit states, sorted.
+func (s *site) serials() ([]string, error) {
+	entries, err := os.ReadDir(filepath.Join(s.dir, stateDir, "units"))
 	if err != nil {
 		return nil, err
 	}
-	var out []*unitState
-	var toRead []string
+	var out []string
 	for _, e := range entries {
-		serial, ok := strings.CutSuffix(e.Name(), ".json")
-		if e.IsDir() || !ok {
-			continue
-		}
-		if st := known[serial]; st != nil {
-			out = append(out, st)
-		} else {
-			toRead = append(toRead, filepath.Join(dir, e.Name()))
+		if serial, ok := strings.CutSuffix(e.Name(), ".json"); ok && !e.IsDir() {
+			out = append(out, serial)
 		}
 	}
-	read := make([]*unitState, len(toRead))
-	errs := make([]error, len(toRead))
-	var wg sync.WaitGroup
-	workers := min(runtime.NumCPU(), len(toRead))
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func(w int) {
-			defer wg.Done()
-			for i := w; i < len(toRead); i += workers {
-				read[i], errs[i] = s.readState(toRead[i])
-				if read[i] != nil {
-					read[i].Stamps = nil // only the next build's change check needs them
-				}
-			}
-		}(w)
-	}
-	wg.Wait()
-	for i := range toRead {
-		if errs[i] != nil {
-			return nil, errs[i]
-		}
-		out = append(out, read[i])
-	}
-	sort.Slice(out, func(i, j int) bool { return out[i].Serial < out[j].Serial })
+	sort.Strings(out)
 	return out, nil
 }
 
-// writeFleet writes the fleet pages and the manifest from the units'
-// states alone: it never needs every unit's full result in memory.
-//
-// known holds the states this build already has in memory.
-func writeFleet(s *site, known map[string]*unitState) error {
-	states, err := s.states(known)
-	if err != nil {
-		return err
+// eachState calls fn with the state of every serial, in the order given.
+// The states are read and decoded on every core, a few ahead of fn; none
+// is kept after fn returns, so that the fleet stage's memory does not grow
+// with the number of units (the states of 10,000 units are some 400 MB of
+// JSON).
+func (s *site) eachState(serials []string, fn func(*fleetState) error) error {
+	type result struct {
+		st  *fleetState
+		err error
 	}
-	summaries := make([]reduce.UnitSummary, len(states))
-	for i, st := range states {
-		summaries[i] = st.Summary
+	type job struct {
+		serial string
+		out    chan result
 	}
-	fleet := reduce.ComputeFleet(summaries)
-	m := &render.Manifest{Schema: 1, ToolVersion: render.Version}
-	// Each page is written as soon as it is made, so that a large fleet
-	// never holds all of them in memory at once; names in sorted order.
-	pages := []struct {
-		name string
-		make func() ([]byte, error)
-	}{
-		{"fleet.json", func() ([]byte, error) { return render.FleetJSON(fleet) }},
-		{"fleet.xlsx", func() ([]byte, error) { return render.FleetWorkbook(fleet) }},
-		{"index.html", func() ([]byte, error) { return render.Index(fleet) }},
-		{"results.csv", func() ([]byte, error) { return render.ResultsCSV(summaries), nil }},
+	workers := max(1, runtime.NumCPU())
+	jobs := make(chan job)
+	queue := make(chan chan result, 2*workers) // in serial order
+	done := make(chan struct{})
+	defer close(done)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for j := range jobs {
+				p := s.statePath(j.serial)
+				var st fleetState
+				data, err := os.ReadFile(p)
+				if err == nil {
+					if err = json.Unmarshal(data, &st); err != nil {
+						err = fmt.Errorf("%s: %w", p, err)
+					}
+				}
+				j.out <- result{&st, err}
+			}
+		}()
 	}
-	for _, p := range pages {
-		data, err := p.make()
+	go func() {
+		defer close(queue)
+		defer close(jobs)
+		for _, serial := range serials {
+			out := make(chan result, 1)
+			select {
+			case queue <- out:
+			case <-done:
+				return
+			}
+			select {
+			case jobs <- job{serial, out}:
+			case <-done:
+				return
+			}
+		}
+	}()
+	var err error
+	for out := range queue {
+		r := <-out
+		if err = r.err; err == nil {
+			err = fn(r.st)
+		}
 		if err != nil {
-			return fmt.Errorf("%s: %w", p.name, err)
+			break
 		}
-		if err := writeAtomic(filepath.Join(s.dir, p.name), data); err != nil {
-			return err
-		}
-		m.Outputs = append(m.Outputs, manifestEntry(p.name, data))
 	}
-	inputs := map[string]ingest.InputFile{}
-	for _, st := range states {
-		for _, in := range st.Inputs {
-			inputs[in.Path] = in
-		}
-		m.Outputs = append(m.Outputs, st.Outputs...)
-		mu := render.ManifestUnit{Serial: st.Serial, Verdict: st.Summary.Verdict, InputsSHA256: inputsDigest(st.Inputs)}
-		for _, o := range st.Outputs {
-			mu.Outputs = append(mu.Outputs, o.Path)
-		}
-		m.Units = append(m.Units, mu)
-	}
-	for _, in := range inputs {
-		m.Inputs = append(m.Inputs, render.ManifestEntry{Path: in.Path, Size: in.Size, SHA256: in.SHA256})
-	}
-	manifest, err := render.ManifestJSON(m)
-	if err != nil {
-		return err
-	}
-	return writeAtomic(filepath.Join(s.dir, "manifest.json"), manifest)
+	return err // done is closed: the sender and the workers stop
 }
 
-// inputsDigest is one SHA-256 over a unit's inputs (path and content hash
-// of each), so that a reader can tell at a glance whether two builds of a
-// unit used the same data.
-func inputsDigest(inputs []ingest.InputFile) string {
-	sorted := append([]ingest.InputFile(nil), inputs...)
-	sort.Slice(sorted, func(i, j int) bool { return sorted[i].Path < sorted[j].Path })
-	var b bytes.Buffer
-	for _, in := range sorted {
-		fmt.Fprintf(&b, "%s %s\n", in.SHA256, in.Path)
+// writeFleet writes the fleet pages and the manifest from the units'
+// states alone, in one pass over the states in serial order: each state is
+// handed to the fleet statistics (reduce.FleetBuilder keeps a small record
+// of it), to results.csv and to manifest.json, and dropped. The fleet pages
+// follow from the finished statistics; the manifest, which lists them,
+// comes last.
+func writeFleet(s *site) (err error) {
+	serials, err := s.serials()
+	if err != nil {
+		return err
 	}
-	sum := sha256.Sum256(b.Bytes())
-	return hex.EncodeToString(sum[:])
+	fb := reduce.NewFleetBuilder()
+	csvFile, err := createAtomic(s.dir, "results.csv")
+	if err != nil {
+		return err
+	}
+	defer csvFile.abort()
+	manFile, err := createAtomic(s.dir, "manifest.json")
+	if err != nil {
+		return err
+	}
+	defer manFile.abort()
+	csvW, err := render.NewResultsCSVWriter(csvFile)
+	if err != nil {
+		return err
+	}
+	man, err := render.NewManifestWriter(manFile, render.Version)
+	if err != nil {
+		return err
+	}
+	err = s.eachState(serials, func(st *fleetState) error {
+		if err := fb.Add(st.Summary); err != nil {
+			return fmt.Errorf("%s: %w", s.statePath(st.Serial), err)
+		}
+		if err := csvW.Unit(&st.Summary); err != nil {
+			return fmt.Errorf("results.csv: %w", err)
+		}
+		if err := man.Unit(st.Serial, st.Summary.Verdict, st.Inputs, st.Outputs); err != nil {
+			return fmt.Errorf("manifest.json: %w", err)
+		}
+		return nil
+	})
+	if err != nil {
+		return err
+	}
+	fleet := fb.Finish()
+	var outputs []render.ManifestEntry
+	// Each page is written as soon as it is made; names in sorted order.
+	pages := []struct {
+		name  string
+		write func(w io.Writer) error
+	}{
+		{"fleet.json", func(w io.Writer) error { return render.WriteFleetJSON(w, fleet) }},
+		{"fleet.xlsx", writeBytes(func() ([]byte, error) { return render.FleetWorkbook(fleet) })},
+		{"index.html", writeBytes(func() ([]byte, error) { return render.Index(fleet) })},
+	}
+	for _, p := range pages {
+		f, err := createAtomic(s.dir, p.name)
+		if err != nil {
+			return err
+		}
+		if err := p.write(f); err != nil {
+			f.abort()
+			return fmt.Errorf("%s: %w", p.name, err)
+		}
+		e, err := f.commit()
+		if err != nil {
+			return err
+		}
+		outputs = append(outputs, e)
+	}
+	if err := csvW.Flush(); err != nil {
+		return err
+	}
+	e, err := csvFile.commit()
+	if err != nil {
+		return err
+	}
+	outputs = append(outputs, e)
+	if err := man.Close(outputs); err != nil {
+		return err
+	}
+	_, err = manFile.commit()
+	return err
+}
+
+// writeBytes writes a page its renderer returns whole.
+func writeBytes(make func() ([]byte, error)) func(w io.Writer) error {
+	return func(w io.Writer) error {
+		data, err := make()
+		if err != nil {
+			return err
+		}
+		_, err = w.Write(data)
+		return err
+	}
+}
+
+// atomicFile is a site file written under a temporary name and renamed
+// when complete (see writeAtomic), which also counts its size and SHA-256
+// for the manifest as it goes.
+type atomicFile struct {
+	f         *os.File
+	w         *bufio.Writer
+	h         hash.Hash
+	n         int64
+	rel, tmp  string
+	finalPath string
+	closed    bool
+}
+
+// createAtomic starts the file rel (slash-separated) of the site dir.
+func createAtomic(dir, rel string) (*atomicFile, error) {
+	p := filepath.Join(dir, filepath.FromSlash(rel))
+	f, err := os.Create(p + tempSuffix)
+	if err != nil {
+		return nil, err
+	}
+	return &atomicFile{f: f, w: bufio.NewWriterSize(f, 256<<10), h: sha256.New(), rel: rel,
+		tmp: p + tempSuffix, finalPath: p}, nil
+}
+
+func (a *atomicFile) Write(p []byte) (int, error) {
+	a.h.Write(p) // a hash never fails
+	a.n += int64(len(p))
+	return a.w.Write(p)
+}
+
+// commit flushes and closes the file, renames it to its final name and
+// returns its manifest entry.
+func (a *atomicFile) commit() (render.ManifestEntry, error) {
+	a.closed = true
+	err := a.w.Flush()
+	if cerr := a.f.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(a.tmp, a.finalPath)
+	}
+	if err != nil {
+		os.Remove(a.tmp)
+		return render.ManifestEntry{}, err
+	}
+	return render.ManifestEntry{Path: a.rel, Size: a.n, SHA256: hex.EncodeToString(a.h.Sum(nil))}, nil
+}
+
+// abort drops a file not committed; it does nothing after commit.
+func (a *atomicFile) abort() {
+	if a.closed {
+		return
+	}
+	a.closed = true
+	a.f.Close()
+	os.Remove(a.tmp)
 }
 
 func manifestEntry(p string, data []byte) render.ManifestEntry {
