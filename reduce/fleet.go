@@ -5,9 +5,9 @@ package reduce
 // LimitResult of every beam.
 const FleetSchema = 2
 
-// UnitSummary is the part of a unit's result the fleet statistics need. It
-// is small, so that the fleet of a large archive can be computed without
-// holding every unit's result in memory.
+// UnitSummary is the part of a unit's result the fleet statistics and
+// results.csv need. FleetBuilder takes them one at a time and keeps only a
+// FleetUnit and the resampled boresight trace of each.
 type UnitSummary struct {
 	Serial  string        `json:"serial"`
 	Product string        `json:"product"`

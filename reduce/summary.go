@@ -6,7 +6,8 @@ import "math"
 // the G/T of the beam with the smallest |theta| among the beams that have
 // G/T (the first such beam on a tie); nil when no beam has G/T. The limit
 // results leave out their limit lines (LimitCurve): the fleet does not
-// draw them, and a summary is held for every unit of an archive at once.
+// draw them, and the build keeps each summary in the unit's state file,
+// which the fleet stage reads back for every unit.
 func (u *Unit) Summary() UnitSummary {
 	s := UnitSummary{
 		Serial:  u.Serial,
