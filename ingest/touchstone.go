@@ -3,7 +3,6 @@ package ingest
 import (
 	"bufio"
 	"bytes"
-	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -559,36 +558,16 @@ func tsScan(b []byte) (v float64, n int, ok bool) {
 		neg = b[0] == '-'
 		i++
 	}
-	// Digits are accumulated without checks; more than 19 of them may
-	// overflow mant, and then the slow path parses the token again.
-	var mant uint64
+	// More than 19 digits may overflow mant; then the slow path parses the
+	// token again.
 	start := i
-	for i < len(b) && b[i]-'0' <= 9 {
-		mant = mant*10 + uint64(b[i]-'0')
-		i++
-	}
+	mant, i := tsDigits(b, i, 0)
 	nd := i - start
 	exp := 0
 	if i < len(b) && b[i] == '.' {
 		i++
 		fs := i
-		// Eight digits at a time while they last (fraction parts of
-		// instrument exports are mostly 6 to 17 digits long).
-		for i+8 <= len(b) {
-			w := binary.LittleEndian.Uint64(b[i:])
-			if w&0xF0F0F0F0F0F0F0F0 != 0x3030303030303030 || (w+0x0606060606060606)&0xF0F0F0F0F0F0F0F0 != 0x3030303030303030 {
-				break
-			}
-			w = (w & 0x0F0F0F0F0F0F0F0F) * 2561 >> 8
-			w = (w & 0x00FF00FF00FF00FF) * 6553601 >> 16
-			w = (w & 0x0000FFFF0000FFFF) * 42949672960001 >> 32
-			mant = mant*100000000 + w
-			i += 8
-		}
-		for i < len(b) && b[i]-'0' <= 9 {
-			mant = mant*10 + uint64(b[i]-'0')
-			i++
-		}
+		mant, i = tsDigits(b, i, mant)
 		nd += i - fs
 		exp = fs - i
 	}
@@ -913,73 +892,6 @@ func (t *tsReader) tooMany(line []byte, used int) error {
 		len(tsFields(line)), t.recStart, used, t.describeRecord())
 }
 
-// tsScanLine appends the numbers of a line (which starts with a token) to
-// dst. It stops at the first token that is not a number and returns its
-// index, or -1. The common form, [sign]digits[.digits], is parsed here
-// without a call; everything else goes through tsScan.
-func tsScanLine(b []byte, dst []float64) ([]float64, int) {
-	i := 0
-	for i < len(b) {
-		j := i
-		neg := false
-		if b[j] == '-' || b[j] == '+' {
-			neg = b[j] == '-'
-			j++
-		}
-		var mant uint64
-		s := j
-		for j < len(b) && b[j]-'0' <= 9 {
-			mant = mant*10 + uint64(b[j]-'0')
-			j++
-		}
-		nd, exp := j-s, 0
-		if j < len(b) && b[j] == '.' {
-			j++
-			fs := j
-			for j+8 <= len(b) {
-				w := binary.LittleEndian.Uint64(b[j:])
-				if w&0xF0F0F0F0F0F0F0F0 != 0x3030303030303030 || (w+0x0606060606060606)&0xF0F0F0F0F0F0F0F0 != 0x3030303030303030 {
-					break
-				}
-				w = (w & 0x0F0F0F0F0F0F0F0F) * 2561 >> 8
-				w = (w & 0x00FF00FF00FF00FF) * 6553601 >> 16
-				w = (w & 0x0000FFFF0000FFFF) * 42949672960001 >> 32
-				mant = mant*100000000 + w
-				j += 8
-			}
-			for j < len(b) && b[j]-'0' <= 9 {
-				mant = mant*10 + uint64(b[j]-'0')
-				j++
-			}
-			nd += j - fs
-			exp = fs - j
-		}
-		if nd > 0 && nd <= 19 && mant <= 1<<53 && exp >= -22 && (j == len(b) || tsSpaceTab[b[j]]) {
-			// Clinger's fast path, as in tsScan.
-			v := float64(mant)
-			if exp < 0 {
-				v /= tsPow10[-exp]
-			}
-			if neg {
-				v = -v
-			}
-			dst = append(dst, v)
-			i = j
-		} else {
-			v, n, ok := tsScan(b[i:])
-			if !ok {
-				return dst, len(dst)
-			}
-			dst = append(dst, v)
-			i += n
-		}
-		for i < len(b) && tsSpaceTab[b[i]] {
-			i++
-		}
-	}
-	return dst, -1
-}
-
 // checkFrequency runs before a new record starts with value f. It also
 // notices the start of the noise block of a version-1 2-port file.
 func (t *tsReader) checkFrequency(f float64) error {
@@ -1119,12 +1031,6 @@ func (t *tsReader) completeRecord() error {
 		}
 	}
 	return nil
-}
-
-// tsPolar is mag at angle deg (degrees).
-func tsPolar(mag, deg float64) complex128 {
-	s, c := math.Sincos(deg * (math.Pi / 180))
-	return complex(mag*c, mag*s)
 }
 
 func (t *tsReader) finish() (*Network, error) {

@@ -930,7 +930,11 @@ func TestNetworkJSON(t *testing.T) {
 func TestTouchstoneNumbers(t *testing.T) {
 	for _, s := range []string{"0", "-0", "+1", "1.", ".5", "-.5e-3", "1e22", "1e23", "9007199254740993", "9007199254740992",
 		"123456789012345678901234567890", "0.000000000000000000000000001", "4.9e-324", "1e-400", "1.7976931348623157e308",
-		"2.2250738585072011e-308", "0.1", "0.30000000000000004", "1E5", "1e+05", "00012.5000"} {
+		"2.2250738585072011e-308", "0.1", "0.30000000000000004", "1E5", "1e+05", "00012.5000",
+		// Leading zeros beyond 19 digits, long exponents, a mantissa just
+		// past 2^53 (Eisel-Lemire rather than Clinger).
+		"-0.0012345678901234567", "0.000000000000000000001234567890123456789", "000000000000000000001.5", "0.00000000000000000000",
+		"1e0005", "1e-0400", "9007199254740993e-5", "123456789012345678e22", "1.5e-22", "1.5e23"} {
 		want, err := strconv.ParseFloat(s, 64)
 		if err != nil && want != 0 {
 			t.Fatalf("bad case %s", s)
@@ -1008,4 +1012,38 @@ func TestTouchstoneEiselLemire(t *testing.T) {
 		t.Errorf("decided %d of %d cases, want at least 99%%", decided, total)
 	}
 	t.Logf("decided %d of %d, all equal to strconv.ParseFloat", decided, total)
+}
+
+// TestTouchstonePolar checks the reader's MA/DB conversion against
+// math.Sincos (the Go standard library) bit for bit: tsPolar is that
+// computation without its octant branches, so the values must be the same
+// bits, on every octant, both signs, zero, and angles past 2^29 radians.
+func TestTouchstonePolar(t *testing.T) {
+	ref := func(mag, deg float64) complex128 {
+		s, c := math.Sincos(deg * (math.Pi / 180))
+		return complex(mag*c, mag*s)
+	}
+	same := func(a, b complex128) bool {
+		return math.Float64bits(real(a)) == math.Float64bits(real(b)) && math.Float64bits(imag(a)) == math.Float64bits(imag(b))
+	}
+	degs := []float64{0, math.Copysign(0, -1), 45, -45, 90, -90, 135, 180, -180, 225, 270, 315, 360, 720, -1e-300, 1e-300,
+		22.5, 67.5, 112.5, 157.5, 202.5, 247.5, 292.5, 337.5, 1e10, -1e10, 3e10, 1e300, -1e300, math.MaxFloat64}
+	rng := rand.New(rand.NewPCG(13, 14))
+	for k := 0; k < 300000; k++ {
+		switch k % 3 {
+		case 0:
+			degs = append(degs, (rng.Float64()-0.5)*720)
+		case 1:
+			degs = append(degs, math.Round((rng.Float64()-0.5)*7200)/20) // multiples of 0.05 degree
+		default:
+			degs = append(degs, (rng.Float64()-0.5)*math.Pow(10, float64(rng.IntN(14))))
+		}
+	}
+	for _, mag := range []float64{1, 0.5, -0.25, 0, 1e300} {
+		for _, d := range degs {
+			if got, want := tsPolar(mag, d), ref(mag, d); !same(got, want) {
+				t.Fatalf("tsPolar(%v, %v) = %v, math.Sincos gives %v", mag, d, got, want)
+			}
+		}
+	}
 }
