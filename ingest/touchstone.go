@@ -122,6 +122,7 @@ type tsReader struct {
 	z0       []complex128
 	net      *Network
 	dataLine int          // line of the first network data
+	fmt      byte         // t.format's first letter once the data begins
 	pairs    []complex128 // the values of one point as complex numbers
 	lineVals []float64    // the numbers of the current line
 	ws       []complex128 // scratch matrices for conversion
@@ -799,6 +800,7 @@ func (t *tsReader) begin() error {
 		}
 	}
 	t.net, t.dataLine = n, t.line
+	t.fmt = t.format[0]
 	np := t.ports * t.ports
 	if t.matrix != "full" {
 		np = t.ports * (t.ports + 1) / 2
@@ -849,7 +851,24 @@ func (t *tsReader) data(line []byte) error {
 	vals, bad := tsScanLine(b, t.lineVals[:0])
 	t.lineVals = vals
 	rec := t.rec
-	for col, v := range vals {
+	start := 0
+	if len(rec) == 0 && bad < 0 && len(vals) == t.recLen && !t.inNoise {
+		// The common line: one whole frequency point. The values go to
+		// the network from where they are.
+		if err := t.checkFrequency(vals[0]); err != nil {
+			return err
+		}
+		if !t.inNoise {
+			t.recFirst = len(vals)
+			return t.completeRecord(vals)
+		}
+		// The frequency went down: the noise block of a version-1 file
+		// starts here, with records of another length.
+		rec = append(rec, vals[0])
+		start = 1
+	}
+	for col := start; col < len(vals); col++ {
+		v := vals[col]
 		if len(rec) == 0 {
 			if col > 0 {
 				return t.tooMany(line, col)
@@ -860,11 +879,12 @@ func (t *tsReader) data(line []byte) error {
 		}
 		rec = append(rec, v)
 		if len(rec) == t.recLen {
+			err := t.completeRecord(rec)
+			rec = rec[:0]
 			t.rec = rec
-			if err := t.completeRecord(); err != nil {
+			if err != nil {
 				return err
 			}
-			rec = t.rec
 		}
 	}
 	t.rec = rec
@@ -933,9 +953,9 @@ func (t *tsReader) endRecord() error {
 	return t.errf(t.recStart, "the point that begins here has %d of its %d values: %s", len(t.rec), t.recLen, t.describeRecord())
 }
 
-func (t *tsReader) completeRecord() error {
-	v := t.rec
-	t.rec = t.rec[:0]
+// completeRecord takes the values v of a whole record (a frequency point
+// or a noise point).
+func (t *tsReader) completeRecord(v []float64) error {
 	n := t.net
 	if t.inNoise {
 		mag, ang := v[2], v[3]
@@ -980,38 +1000,52 @@ func (t *tsReader) completeRecord() error {
 	// Every element of the new matrix is written below.
 	n.S = slices.Grow(n.S, N*N)[:base+N*N]
 	m := n.S[base:]
-	np := (len(v) - 1) / 2
-	if cap(t.pairs) < np {
-		t.pairs = make([]complex128, np)
-	}
-	pairs := t.pairs[:np]
 	vals := v[1:]
-	switch t.format {
-	case "RI":
-		for p := range pairs {
-			pairs[p] = complex(vals[2*p], vals[2*p+1])
-		}
-	case "MA":
-		for p := range pairs {
-			pairs[p] = tsPolar(vals[2*p], vals[2*p+1])
-		}
-	default:
-		// Finite numbers give finite RI and MA values; only a magnitude in
-		// dB can overflow.
-		for p := range pairs {
-			mag := math.Exp(vals[2*p] * (math.Ln10 / 20)) // 10^(dB/20)
-			if mag > math.MaxFloat64 {
-				return t.errf(t.recStart, "value pair %d of the point at frequency %s: %s dB is too large", p+1, tsFmtNum(v[0]), tsFmtNum(vals[2*p]))
+	if t.matrix == "full" {
+		// Each pair straight to its place in the matrix, row by row.
+		m = m[:len(vals)/2]
+		switch t.fmt {
+		case 'R':
+			for p := range m {
+				m[p] = complex(vals[2*p], vals[2*p+1])
 			}
-			pairs[p] = tsPolar(mag, vals[2*p+1])
+		case 'M':
+			for p := range m {
+				m[p] = tsPolar(vals[2*p], vals[2*p+1])
+			}
+		default:
+			for p := range m {
+				mag, err := t.dbMagnitude(v, p)
+				if err != nil {
+					return err
+				}
+				m[p] = tsPolar(mag, vals[2*p+1])
+			}
 		}
-	}
-	switch {
-	case N == 2 && t.matrix == "full" && t.order == "21_12":
-		m[0], m[2], m[1], m[3] = pairs[0], pairs[1], pairs[2], pairs[3]
-	case t.matrix == "full":
-		copy(m, pairs)
-	default:
+		if N == 2 && t.order == "21_12" {
+			// The 2-port order S11 S21 S12 S22.
+			m[1], m[2] = m[2], m[1]
+		}
+	} else {
+		np := (len(v) - 1) / 2
+		if cap(t.pairs) < np {
+			t.pairs = make([]complex128, np)
+		}
+		pairs := t.pairs[:np]
+		for p := range pairs {
+			switch t.fmt {
+			case 'R':
+				pairs[p] = complex(vals[2*p], vals[2*p+1])
+			case 'M':
+				pairs[p] = tsPolar(vals[2*p], vals[2*p+1])
+			default:
+				mag, err := t.dbMagnitude(v, p)
+				if err != nil {
+					return err
+				}
+				pairs[p] = tsPolar(mag, vals[2*p+1])
+			}
+		}
 		p := 0
 		for i := 0; i < N; i++ {
 			j0, j1 := 0, i
@@ -1031,6 +1065,18 @@ func (t *tsReader) completeRecord() error {
 		}
 	}
 	return nil
+}
+
+// dbMagnitude is the linear magnitude of pair p of the record v (the
+// frequency, then pairs) in DB format: 10^(dB/20). Finite numbers give
+// finite RI and MA values; only a magnitude in dB can overflow.
+func (t *tsReader) dbMagnitude(v []float64, p int) (float64, error) {
+	db := v[1+2*p]
+	mag := math.Exp(db * (math.Ln10 / 20))
+	if mag > math.MaxFloat64 {
+		return 0, t.errf(t.recStart, "value pair %d of the point at frequency %s: %s dB is too large", p+1, tsFmtNum(v[0]), tsFmtNum(db))
+	}
+	return mag, nil
 }
 
 func (t *tsReader) finish() (*Network, error) {

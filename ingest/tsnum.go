@@ -48,34 +48,6 @@ func tsDigits(b []byte, i int, mant uint64) (uint64, int) {
 	return mant, i
 }
 
-// tsExponent reads the exponent at b[j]: e or E, [sign], one to three
-// digits, then the end or white space. It returns the exponent and the
-// index after it; ok is false for anything else, which sends the token to
-// tsScan.
-func tsExponent(b []byte, j int) (e, end int, ok bool) {
-	if b[j]|0x20 != 'e' {
-		return 0, j, false
-	}
-	j++
-	neg := false
-	if j < len(b) && (b[j] == '+' || b[j] == '-') {
-		neg = b[j] == '-'
-		j++
-	}
-	es := j
-	for j < len(b) && b[j]-'0' <= 9 && j-es < 4 {
-		e = e*10 + int(b[j]-'0')
-		j++
-	}
-	if j == es || j-es == 4 || j < len(b) && !tsSpaceTab[b[j]] {
-		return 0, j, false
-	}
-	if neg {
-		e = -e
-	}
-	return e, j, true
-}
-
 // tsSigDigits is the number of significant digits of a token of nd digits
 // that starts at b[s] (digits and at most one point): nd less its leading
 // zeros. Only tokens of more than 19 digits ask.
@@ -183,12 +155,29 @@ func tsScanRun(b []byte, i int, out []float64, k int) (int, int, tsToken) {
 			exp = fs - j
 		}
 		if j < len(b) && !tsSpaceTab[b[j]] {
-			// An exponent, or not a number of this form.
-			e, end, ok := tsExponent(b, j)
-			if !ok {
-				nd = 0
+			// An exponent, e or E, [sign], one to three digits, then
+			// the end or white space; anything else is not a number of
+			// this form.
+			if b[j]|0x20 != 'e' {
+				return i, k, tsToken{}
 			}
-			j = end
+			j++
+			eneg := false
+			if j < len(b) && (b[j] == '+' || b[j] == '-') {
+				eneg = b[j] == '-'
+				j++
+			}
+			e, es := 0, j
+			for j < len(b) && b[j]-'0' <= 9 && j-es < 4 {
+				e = e*10 + int(b[j]-'0')
+				j++
+			}
+			if j == es || j-es == 4 || j < len(b) && !tsSpaceTab[b[j]] {
+				return i, k, tsToken{}
+			}
+			if eneg {
+				e = -e
+			}
 			exp += e
 		}
 		if nd == 0 || nd > 19 && tsSigDigits(b, s, nd) > 19 {
