@@ -11,6 +11,7 @@ import (
 	"sort"
 	"strings"
 	"sync"
+	"time"
 )
 
 // Open discovers an archive: the stations, references and specs at the
@@ -34,7 +35,55 @@ import (
 //   - Data paths of the runs are only joined here (archive-relative, '/');
 //     whether they stay inside the archive and exist is checked by Load,
 //     which reports it at the run.yaml line of the key.
-func Open(root string) (*Archive, error) {
+func Open(root string) (*Archive, error) { return open(root, false) }
+
+// OpenLean discovers an archive as Open does, but holds each run without
+// its beams and with only the key lines discovery reports on (serial,
+// started, station, reference, product): a few hundred bytes a run instead
+// of some ten kilobytes, so that discovering an archive of ten thousand
+// units does not take a hundred megabytes. Archive.Full reads a run's
+// run.yaml again when the run is needed whole: Load needs whole runs.
+func OpenLean(root string) (*Archive, error) { return open(root, true) }
+
+// leanKeys are the key lines a lean run keeps: the ones Open reports on.
+var leanKeys = []string{"serial", "started", "station", "reference", "product"}
+
+// makeLean drops what only the run's own build needs.
+func makeLean(r *Run) {
+	keep := make(map[string]int, len(leanKeys))
+	for _, k := range leanKeys {
+		if l, ok := r.KeyLines[k]; ok {
+			keep[k] = l
+		}
+	}
+	r.KeyLines, r.Beams, r.lean = keep, nil, true
+}
+
+// Full returns r whole: r itself, or for a run of OpenLean its run.yaml
+// read and parsed again. The error is a *Problem (or Problems) naming the
+// run.yaml; a run.yaml that no longer names the same serial and start as
+// when it was discovered is refused, since it changed while the build ran.
+func (a *Archive) Full(r *Run) (*Run, error) {
+	if !r.lean {
+		return r, nil
+	}
+	data, p := newArchiveFS(a.Root).read(r.File, "", 0)
+	if p != nil {
+		return nil, p
+	}
+	full, err := ParseRun(data, r.File)
+	if err != nil {
+		return nil, err
+	}
+	rootRelative(full)
+	if full.Serial != r.Serial || !full.Started.Equal(r.Started) {
+		return nil, Problemf(r.File, full.KeyLines["serial"], "names serial %s started %s, but named %s started %s when the archive was opened; expected the file not to change during a build",
+			full.Serial, full.Started.Format(time.RFC3339), r.Serial, r.Started.Format(time.RFC3339))
+	}
+	return full, nil
+}
+
+func open(root string, lean bool) (*Archive, error) {
 	info, err := os.Stat(root)
 	if err != nil {
 		return nil, err
@@ -108,7 +157,7 @@ func Open(root string) (*Archive, error) {
 	})
 
 	var runs []*Run
-	for _, parsed := range parseRuns(fsys, fsys.runFiles(&a.Problems)) {
+	for _, parsed := range parseRuns(fsys, fsys.runFiles(&a.Problems), lean) {
 		if parsed.problems != nil {
 			a.Problems = append(a.Problems, parsed.problems...)
 			continue
@@ -388,7 +437,7 @@ type parsedRun struct {
 // parseRuns reads and parses run files on every core: on a large archive
 // the YAML parser is most of the time Open takes. The result is in the
 // order of files, whatever the order of the work.
-func parseRuns(fsys *archiveFS, files []string) []parsedRun {
+func parseRuns(fsys *archiveFS, files []string, lean bool) []parsedRun {
 	out := make([]parsedRun, len(files))
 	workers := min(runtime.NumCPU(), len(files))
 	var wg sync.WaitGroup
@@ -406,6 +455,9 @@ func parseRuns(fsys *archiveFS, files []string) []parsedRun {
 				if err != nil {
 					out[i].problems = Problems(err)
 					continue
+				}
+				if lean {
+					makeLean(r)
 				}
 				out[i].run = r
 			}

@@ -3,6 +3,7 @@ package ingest
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"math"
 	"os"
 	"os/exec"
@@ -580,5 +581,79 @@ func BenchmarkOpenLoad(b *testing.B) {
 				}
 			}
 		}
+	}
+}
+
+// OpenLean holds runs without their beams; Full reads each one back to
+// what Open holds, and the lists and loads of a build come out the same.
+func TestOpenLeanFullEqualsOpen(t *testing.T) {
+	whole, err := Open(goodRoot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lean, err := OpenLean(goodRoot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(whole.Problems, lean.Problems) || len(whole.Units) != len(lean.Units) {
+		t.Fatalf("lean discovery differs: %d units and %v, want %d and %v", len(lean.Units), lean.Problems, len(whole.Units), whole.Problems)
+	}
+	for ui, u := range lean.Units {
+		for ri, r := range u.Runs {
+			want := whole.Units[ui].Runs[ri]
+			if !r.Lean() || r.Beams != nil || len(r.KeyLines) > len(leanKeys) {
+				t.Errorf("%s: held with %d beams and %d key lines, expected none and at most %d", r.File, len(r.Beams), len(r.KeyLines), len(leanKeys))
+			}
+			if got := RunFiles(lean, r); !reflect.DeepEqual(got, RunFiles(whole, want)) {
+				t.Errorf("%s: RunFiles of the lean run %q, want %q", r.File, got, RunFiles(whole, want))
+			}
+			if _, probs := lean.Load(r); len(probs) != 1 || !strings.Contains(probs[0].Message, "Archive.Full") {
+				t.Errorf("%s: Load of a lean run gave %v, expected one problem asking for Full", r.File, probs)
+			}
+			full, err := lean.Full(r)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !reflect.DeepEqual(full, want) {
+				t.Errorf("%s: Full gives\n%+v\nOpen holds\n%+v", r.File, full, want)
+			}
+			if same, _ := whole.Full(want); same != want {
+				t.Errorf("%s: Full of a whole run is not the run itself", r.File)
+			}
+		}
+	}
+}
+
+// A run.yaml that changes between discovery and the build is refused by
+// Full, with its file named, rather than built as another unit.
+func TestFullRefusesChangedRun(t *testing.T) {
+	root := copyTree(t, goodRoot)
+	a, err := OpenLean(root)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := a.Units[1].Acceptance()
+	p := filepath.Join(root, filepath.FromSlash(r.File))
+	data, err := os.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	changed := strings.Replace(string(data), "serial: "+r.Serial, "serial: "+r.Serial+"-B", 1)
+	if changed == string(data) {
+		t.Fatalf("%s does not name serial %s", p, r.Serial)
+	}
+	if err := os.WriteFile(p, []byte(changed), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, err = a.Full(r)
+	var prob *Problem
+	if !errors.As(err, &prob) || prob.File != r.File || prob.Line == 0 || !strings.Contains(prob.Message, "expected the file not to change") {
+		t.Errorf("Full of a changed run.yaml: %v", err)
+	}
+	if err := os.Remove(p); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := a.Full(r); err == nil {
+		t.Error("Full of a removed run.yaml gave no error")
 	}
 }

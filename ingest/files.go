@@ -6,7 +6,18 @@ import "sort"
 // with '/': its run.yaml, its data files, and the station, reference (with
 // its table file) and spec documents it names. It reads nothing, so that a
 // build can tell from file stamps alone whether a unit needs redoing.
+//
+// A run of OpenLean is read whole first (Archive.Full); when that fails,
+// the list is its run.yaml alone, whose stamp then tells a build to redo
+// the unit and meet the problem.
 func RunFiles(a *Archive, r *Run) []string {
+	if r.lean {
+		full, err := a.Full(r)
+		if err != nil {
+			return []string{r.File}
+		}
+		r = full
+	}
 	files := runDocuments(a, r)
 	add := func(p string) {
 		if p != "" {

@@ -35,6 +35,9 @@ import (
 // Load only reads the archive and a, so several goroutines may call it at
 // once.
 func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
+	if r.lean {
+		return nil, []*Problem{Problemf(r.File, 0, "internal: this run was discovered without its beams (OpenLean); expected the whole run from Archive.Full")}
+	}
 	l := &loader{fs: newArchiveFS(a.Root), run: r, inputs: map[string]InputFile{}}
 	d := &RunData{Beams: make([]BeamData, len(r.Beams))}
 

@@ -261,7 +261,14 @@ type Run struct {
 	// found later (a missing file, an unknown station) points at the line
 	// that names it.
 	KeyLines map[string]int
+
+	// lean marks a run that OpenLean holds without its beams and with only
+	// the key lines discovery reports on; Archive.Full reads it whole.
+	lean bool
 }
+
+// Lean says whether r is held without its beams (see OpenLean).
+func (r *Run) Lean() bool { return r.lean }
 
 // Element is one row of elements.csv.
 type Element struct {

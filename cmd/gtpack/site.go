@@ -83,10 +83,10 @@ func (s *site) unitDir(serial string) string {
 }
 
 // stampFiles stats every file the unit's runs depend on.
-func stampFiles(a *ingest.Archive, u *ingest.Unit) []fileStamp {
+func stampFiles(a *ingest.Archive, runs []*ingest.Run) []fileStamp {
 	seen := map[string]bool{}
 	var stamps []fileStamp
-	for _, r := range u.Runs {
+	for _, r := range runs {
 		for _, p := range ingest.RunFiles(a, r) {
 			if seen[p] {
 				continue
