@@ -4,5 +4,8 @@
 // same bytes.
 package render
 
-// Version is the tool's version, written into every output.
-const Version = "0.1.0"
+// Version is the tool's version, written into every output. A build redoes
+// every unit whose state records another version, so it goes up whenever
+// what a unit's files hold changes (0.2.0: result.json, fleet.json and
+// manifest.json schema 2).
+const Version = "0.2.0"
