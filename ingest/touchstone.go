@@ -49,14 +49,19 @@ const maxTouchstonePorts = 1000
 // appear in errors; its extension (.sNp / .ts) gives the port count for version 1.
 // Errors are *Problem with File and Line.
 func ReadTouchstone(r io.Reader, name string) (*Network, error) {
+	buf := tsBufferPool.Get().(*tsBuffers)
+	buf.br.Reset(r)
 	t := &tsReader{
-		name:   name,
-		br:     bufio.NewReaderSize(r, 64*1024),
-		unit:   1e9,
-		param:  'S',
-		format: "MA",
-		order:  "21_12",
-		matrix: "full",
+		name:     name,
+		br:       buf.br,
+		lineVals: buf.lineVals[:0],
+		rec:      buf.rec[:0],
+		pairs:    buf.pairs,
+		unit:     1e9,
+		param:    'S',
+		format:   "MA",
+		order:    "21_12",
+		matrix:   "full",
 	}
 	// The input's size, when it tells it, lets the arrays be sized once
 	// after the first point instead of growing by copying.
@@ -69,6 +74,11 @@ func ReadTouchstone(r io.Reader, name string) (*Network, error) {
 		}
 	}
 	n, err := t.read()
+	buf.br.Reset(nil) // no reference to r is kept
+	if cap(t.lineVals) <= 1<<16 && cap(t.rec) <= 1<<16 && cap(t.pairs) <= 1<<16 {
+		buf.lineVals, buf.rec, buf.pairs = t.lineVals[:0], t.rec[:0], t.pairs
+	}
+	tsBufferPool.Put(buf)
 	if err != nil {
 		var p *Problem
 		if errors.As(err, &p) {
@@ -78,6 +88,20 @@ func ReadTouchstone(r io.Reader, name string) (*Network, error) {
 	}
 	return n, nil
 }
+
+// tsBuffers is the scratch memory of one read, none of which the result
+// holds: kept in tsBufferPool for the next read, so that reading many files
+// does not allocate (and collect) a 64 KiB buffer each time.
+type tsBuffers struct {
+	br       *bufio.Reader
+	lineVals []float64
+	rec      []float64
+	pairs    []complex128
+}
+
+var tsBufferPool = sync.Pool{New: func() any {
+	return &tsBuffers{br: bufio.NewReaderSize(nil, 64*1024)}
+}}
 
 type tsReader struct {
 	name string
