@@ -289,7 +289,9 @@ func tsPolar(mag, deg float64) complex128 {
 		s, c := math.Sincos(x)
 		return complex(mag*c, mag*s)
 	}
-	j := uint64(ax * (4 / math.Pi))
+	// Conversions through int64, cheaper in Go than through uint64, give
+	// the same numbers below 2^29.
+	j := int64(ax * (4 / math.Pi))
 	j += j & 1 // map zeros to origin
 	y := float64(j)
 	z := ((ax - y*pi4a) - y*pi4b) - y*pi4c
@@ -298,9 +300,9 @@ func tsPolar(mag, deg float64) complex128 {
 	sin := z + z*zz*((((((tsSinCoef[0]*zz)+tsSinCoef[1])*zz+tsSinCoef[2])*zz+tsSinCoef[3])*zz+tsSinCoef[4])*zz+tsSinCoef[5])
 	// j is even: octants 0, 2, 4, 6. Octants 4 and 6 negate both; octants
 	// 2 and 6 swap sine and cosine and negate the (new) cosine.
-	j &= 7
-	half := j >> 2       // octant 4 or 6
-	swap := (j >> 1) & 1 // octant 2 or 6
+	o := uint64(j) & 7
+	half := o >> 2       // octant 4 or 6
+	swap := (o >> 1) & 1 // octant 2 or 6
 	sb, cb := math.Float64bits(sin), math.Float64bits(cos)
 	d := (sb ^ cb) & -swap // all ones when swapping
 	sb ^= d
