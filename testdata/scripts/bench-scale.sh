@@ -86,3 +86,40 @@ echo "fleet pages of $((N * 10)) units:"
 for f in fleet.json fleet.xlsx index.html results.csv manifest.json; do
   printf '  %-14s %6.1f MB\n' "$f" "$(stat -c %s "$big/$f" | awk '{print $1/1e6}')"
 done
+
+# The unit stage at ten times the units: an archive whose runs are this
+# archive's, ten times over under new serials (data files hard-linked, only
+# run.yaml rewritten), built with --shard 0/10. The build discovers all ten
+# times the units (lean: ~1 kB a run) and builds a tenth of them, so its
+# peak is the unit stage's with the discovery of the larger archive.
+if [ "${FLEET_ONLY:-}" != 1 ]; then
+  ten="$work/archive-${N}x10"
+  if [ ! -d "$ten" ]; then
+    echo "writing an archive of $((N * 10)) units by hard links..."
+    /usr/bin/python3 - "$archive" "$ten" <<'PY'
+import os, re, shutil, sys
+src, dst = sys.argv[1], sys.argv[2]
+os.makedirs(os.path.join(dst, "runs"))
+for d in ("stations", "references", "specs"):
+    shutil.copytree(os.path.join(src, d), os.path.join(dst, d))
+for unit in sorted(os.listdir(os.path.join(src, "runs"))):
+    for k in range(10):
+        for root, dirs, files in os.walk(os.path.join(src, "runs", unit)):
+            rel = os.path.relpath(root, os.path.join(src, "runs", unit))
+            out = os.path.normpath(os.path.join(dst, "runs", "%s-R%d" % (unit, k), rel))
+            os.makedirs(out, exist_ok=True)
+            for f in files:
+                if f == "run.yaml":
+                    text = open(os.path.join(root, f)).read()
+                    text = re.sub(r"(?m)^serial: (.*)$", r"serial: \1-R%d" % k, text)
+                    open(os.path.join(out, f), "w").write(text)
+                else:
+                    os.link(os.path.join(root, f), os.path.join(out, f))
+PY
+  fi
+  rm -rf "$work/site-shard"
+  UNITS=$N measure shard-0-of-10 "$work/gtpack" build "$ten" -o "$work/site-shard" --shard 0/10 --quiet
+  awk -v a="$(awk -F': ' '/Maximum resident/ {print $2}' "$work/time-full-build.log")" \
+    -v b="$(awk -F': ' '/Maximum resident/ {print $2}' "$work/time-shard-0-of-10.log")" \
+    'BEGIN{printf "unit stage peak RSS, %d-unit archive / %d-unit archive: %.2f\n", 10*'"$N"', '"$N"', b/a}'
+fi
