@@ -153,10 +153,13 @@ type tsToken struct {
 // out, and what it read of that token. out has room for every number.
 //
 // The loop calls nothing, so that the compiler keeps its state in
-// registers, and it is plain on purpose: on the regular layout of a data
-// file the processor predicts where the digits of each token end and runs
-// ahead, where computing that end (bit tricks on eight bytes) makes every
-// number wait for the one before it, and measured slower.
+// registers. Its digit loops are mostly plain on purpose: on the regular
+// layout of a data file the processor predicts where the digits of a
+// token end and runs ahead, while computing that end from eight bytes at
+// once makes every number wait for the one before it (measured slower for
+// the whole part and the first digits of the fraction). Only the last,
+// up to seven, digits of a fraction are taken in one step, as their count
+// is what varies most from number to number.
 func tsScanRun(b []byte, i int, out []float64, k int) (int, int, tsToken) {
 	for i < len(b) {
 		// The sign without a branch: signs in a data file are as good as
