@@ -269,14 +269,15 @@ var exactPow10 = [23]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1
 	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
 // fastScaled is parseScaled's short way for the numbers a trace is made
-// of: a decimal of at most 15 significant digits whose scale, with exp,
-// is within 10^+-22. Its digits make a whole number m below 2^53 and the
-// value is m * 10^k or m / 10^-k: both operands are exact in a float64,
+// of. A decimal of at most 15 significant digits whose scale, with exp,
+// is within 10^+-22: its digits make a whole number m below 2^53 and the
+// value is m * 10^k or m / 10^-k; both operands are exact in a float64,
 // so the one rounding of the product or quotient gives the float64
 // nearest the decimal (Clinger 1990, "How to read floating point numbers
-// accurately", the fast path; strconv.ParseFloat takes it too). ok is
-// false for anything else, which parseScaled reads the long way, errors
-// included.
+// accurately", the fast path; strconv.ParseFloat takes it too). Up to 19
+// digits, or a wider scale: the Eisel-Lemire algorithm the Touchstone
+// reader uses (tsEiselLemire), exact when it answers. ok is false for
+// anything else, which parseScaled reads the long way, errors included.
 func fastScaled(s string, exp int) (float64, bool) {
 	i, neg := 0, false
 	if len(s) > 0 && (s[0] == '+' || s[0] == '-') {
@@ -303,7 +304,7 @@ func fastScaled(s string, exp int) (float64, bool) {
 			digits++
 		}
 	}
-	if !seen || digits > 15 {
+	if !seen || digits > 19 {
 		return 0, false
 	}
 	k := exp - frac
@@ -326,8 +327,13 @@ func fastScaled(s string, exp int) (float64, bool) {
 		}
 		k += e
 	}
-	if i != len(s) || k < -22 || k > 22 {
+	if i != len(s) {
 		return 0, false
+	}
+	if digits > 15 || k < -22 || k > 22 {
+		// Up to 19 digits (all of a float64 written in full) fit m; the
+		// Eisel-Lemire algorithm rounds them correctly or says it cannot.
+		return tsEiselLemire(m, k, neg)
 	}
 	v := float64(m) // m < 10^15 < 2^53: exact
 	if k >= 0 {

@@ -333,6 +333,12 @@ func TestFastScaledMatchesStrconv(t *testing.T) {
 		}
 		cases = append(cases, s)
 	}
+	// Values written in full (17 digits, as a float64 prints), as the
+	// noise traces of the demo archive hold them.
+	for n := 0; n < 20000; n++ {
+		v := -180 + 200*r.Float64()
+		cases = append(cases, strconv.FormatFloat(v, 'g', -1, 64), strconv.FormatFloat(v*1e-9, 'g', -1, 64))
+	}
 	fast := 0
 	for _, s := range cases {
 		for _, exp := range []int{0, 3, 6, 9} {
@@ -351,7 +357,7 @@ func TestFastScaledMatchesStrconv(t *testing.T) {
 	if fast < len(cases)*3 {
 		t.Errorf("only %d of %d readings took the short way", fast, len(cases)*4)
 	}
-	for _, s := range []string{"", "-", ".", "e5", "1e", "1.2.3", "0x10", "1,5", "NaN", "Inf", "1e99999", "12345678901234567", " 1"} {
+	for _, s := range []string{"", "-", ".", "e5", "1e", "1.2.3", "0x10", "1,5", "NaN", "Inf", "1e99999", "12345678901234567890", " 1", "1e-400"} {
 		if _, ok := fastScaled(s, 9); ok {
 			t.Errorf("fastScaled(%q) took the short way; expected the long one", s)
 		}
