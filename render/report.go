@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"html/template"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 
@@ -29,7 +30,7 @@ func Report(u *reduce.Unit) ([]byte, error) {
 		return nil, err
 	}
 	// The embedded CSV and some 48 kB of charts and tables a beam.
-	return executeSized("report.tmpl", v, len(v.CSVHref)+len(u.Beams)*48<<10+128<<10)
+	return executeSized("report.tmpl", v, len(v.CSVLink)+len(u.Beams)*48<<10+128<<10)
 }
 
 // UnitCSV is the per-frequency numbers of every beam as CSV, the file the
@@ -127,9 +128,14 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	_ = w.Write(header)
 	w.Flush()
 
-	// Per beam, the index of each frequency on its grid.
+	// Per beam, the index of each frequency on its grid; none for a beam
+	// whose grid is the union itself (the usual case), whose index is the
+	// row's.
 	index := make([]map[float64]int, len(u.Beams))
 	for i, b := range u.Beams {
+		if slices.Equal(b.FrequencyHz, freqs) {
+			continue
+		}
 		index[i] = make(map[float64]int, len(b.FrequencyHz))
 		for k, f := range b.FrequencyHz {
 			if _, seen := index[i][f]; !seen {
@@ -147,11 +153,13 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	out := buf.Bytes()
 	out = append(make([]byte, 0, len(out)+len(freqs)*(12+8*len(columns))), out...)
 	at := make([]int, len(u.Beams)) // the row's index on each beam's grid, -1: none
-	for _, f := range freqs {
+	for row, f := range freqs {
 		out = strconv.AppendFloat(out, f, 'f', -1, 64)
 		for i := range at {
 			at[i] = -1
-			if k, ok := index[i][f]; ok {
+			if index[i] == nil {
+				at[i] = row
+			} else if k, ok := index[i][f]; ok {
 				at[i] = k
 			}
 		}
@@ -212,7 +220,7 @@ type reportView struct {
 	Charts    []chartSpec
 	ElemChart *chartSpec
 	NotesHTML template.HTML
-	CSVHref   template.URL
+	CSVLink   template.HTMLAttr // href="data:..." of the CSV
 	CSVName   string
 	CSVSize   int
 	Problems  []problemRow
@@ -340,7 +348,7 @@ func reportModel(u *reduce.Unit) (*reportView, error) {
 	v.NotesHTML = notes
 
 	data, cols := unitCSV(u)
-	v.CSVHref = dataURL("text/csv;charset=utf-8", data)
+	v.CSVLink = dataURLAttr("text/csv;charset=utf-8", data)
 	v.CSVName = fileName(u.Serial) + "-per-frequency.csv"
 	v.CSVSize = len(data)
 
