@@ -245,6 +245,12 @@ func TestBrowserReport(t *testing.T) {
 		}
 	}
 
+	// Nothing is wider than the 1280-pixel window (the beam table's long
+	// headings once pushed it 9 pixels past).
+	if w := eval[[]int](t, ctx, `[document.documentElement.scrollWidth, document.documentElement.clientWidth]`); w[0] > w[1] {
+		t.Errorf("the page is %d pixels wide in a window of %d", w[0], w[1])
+	}
+
 	// The download link is a data: URL with a download name and the CSV.
 	link := eval[string](t, ctx, `(function () { var a = document.getElementById('csv-link'); return a.getAttribute('download') + '|' + decodeURIComponent(a.getAttribute('href')).slice(0, 60); })()`)
 	if !strings.HasPrefix(link, "KP16-_script_window.__pwned_1__script_00017-per-frequency.csv|data:text/csv;charset=utf-8,frequency_hz,range_loss_db,") {
