@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"sort"
 	"strconv"
 	"strings"
@@ -652,4 +653,21 @@ func FuzzParseResultJSON(f *testing.F) {
 			}
 		}
 	})
+}
+
+// The buffer result.json is encoded into is sized from the unit: big enough
+// that it never grows (growing a 2 MB buffer by doubling copies it), and
+// not so big that most of it is allocated for nothing.
+func TestResultJSONSizeHint(t *testing.T) {
+	for _, shape := range [][2]int{{16, 801}, {4, 1601}, {1, 21}} {
+		u := fixtureUnit(t, shape[0], shape[1])
+		data, err := ResultJSON(u)
+		if err != nil {
+			t.Fatal(err)
+		}
+		hint := jsonSizeHint(reflect.ValueOf(u))
+		if hint < len(data) || hint > len(data)*3/2+64<<10 {
+			t.Errorf("%d beams x %d points: hint %d bytes for %d written; expected at least as many and at most 1.5 times (plus 64 kB)", shape[0], shape[1], hint, len(data))
+		}
+	}
 }
