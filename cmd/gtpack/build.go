@@ -89,15 +89,15 @@ type unitOutcome struct {
 }
 
 // softMemoryLimit is the heap size above which a build of jobs workers
-// collects garbage whatever GOGC says: 64 MiB for discovery and the
-// build's own records, and 48 MiB a worker (a unit of 16 beams of 801
+// collects garbage whatever GOGC says: 48 MiB for discovery and the
+// build's own records, and 44 MiB a worker (a unit of 16 beams of 801
 // points keeps some 10 to 20 MB live while its pages are made). At 400 %
 // growth the heap would otherwise follow five times whatever is live, and
 // the lean runs of a ten times larger archive (10 MB more) would show five
 // times over in the peak; under the limit the peak stays where the limit
 // is, and the collector runs a little more often instead.
 func softMemoryLimit(jobs int) int64 {
-	return 64<<20 + int64(jobs)*48<<20
+	return 48<<20 + int64(jobs)*44<<20
 }
 
 func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
