@@ -207,7 +207,7 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	}
 	prog.finish()
 
-	if o.shardN == 0 {
+	if o.shardN == 0 && !site.fleetCurrent() {
 		// The fleet stage reads the states back from the site (the page
 		// cache has them) rather than holding them from the unit stage:
 		// its memory must not grow with the number of units. Its live heap

@@ -378,3 +378,76 @@ func TestInside(t *testing.T) {
 		}
 	}
 }
+
+// A build that changes no unit leaves the fleet pages alone (they would
+// come out the same); a missing page, or a changed unit, makes the fleet
+// stage run again.
+func TestFleetPagesKeptWhenNothingChanged(t *testing.T) {
+	archive := smallArchive(t)
+	site := filepath.Join(t.TempDir(), "site")
+	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	pages := []string{"index.html", "fleet.json", "fleet.xlsx", "results.csv", "manifest.json"}
+	first := map[string][]byte{}
+	past := time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
+	age := func() {
+		for _, p := range pages {
+			if err := os.Chtimes(filepath.Join(site, p), past, past); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	for _, p := range pages {
+		data, err := os.ReadFile(filepath.Join(site, p))
+		if err != nil {
+			t.Fatal(err)
+		}
+		first[p] = data
+	}
+	rewritten := func() (names []string) {
+		for _, p := range pages {
+			fi, err := os.Stat(filepath.Join(site, p))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !fi.ModTime().Equal(past) {
+				names = append(names, p)
+			}
+		}
+		return names
+	}
+
+	age()
+	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	if got := rewritten(); len(got) != 0 {
+		t.Errorf("a build with nothing changed rewrote %v", got)
+	}
+
+	if err := os.Remove(filepath.Join(site, "index.html")); err != nil {
+		t.Fatal(err)
+	}
+	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	for _, p := range pages {
+		data, err := os.ReadFile(filepath.Join(site, p))
+		if err != nil || !bytes.Equal(data, first[p]) {
+			t.Errorf("%s after index.html was removed and the site rebuilt: %d bytes (%v), want the first build's %d", p, len(data), err, len(first[p]))
+		}
+	}
+
+	a, err := ingest.Open(archive)
+	if err != nil {
+		t.Fatal(err)
+	}
+	runYAML := filepath.Join(archive, filepath.FromSlash(a.Units[2].Acceptance().File))
+	data, err := os.ReadFile(runYAML)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(runYAML, append(data, "# edited\n"...), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	age()
+	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	if got := rewritten(); len(got) != len(pages) {
+		t.Errorf("after a unit changed the build rewrote only %v of %v", got, pages)
+	}
+}

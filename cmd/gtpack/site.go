@@ -308,6 +308,10 @@ func writeFleet(s *site) (err error) {
 	if err != nil {
 		return err
 	}
+	digest, err := s.statesDigest(serials)
+	if err != nil {
+		return err
+	}
 	fb := reduce.NewFleetBuilder()
 	csvFile, err := createAtomic(s.dir, "results.csv")
 	if err != nil {
@@ -379,8 +383,73 @@ func writeFleet(s *site) (err error) {
 	if err := man.Close(outputs); err != nil {
 		return err
 	}
-	_, err = manFile.commit()
-	return err
+	me, err := manFile.commit()
+	if err != nil {
+		return err
+	}
+	stamp, err := json.Marshal(fleetStamp{States: digest, Outputs: append(outputs, me)})
+	if err != nil {
+		return err
+	}
+	return writeAtomic(s.fleetStampPath(), stamp)
+}
+
+// fleetStamp is what the fleet pages were last made from, kept in
+// SITE/.gtpack/fleet-stamp.json: a digest of the unit states (see statesDigest)
+// and the pages written, with their sizes. It is written after
+// manifest.json, so a fleet stage stopped before its end leaves the stamp
+// of the one before it.
+type fleetStamp struct {
+	States  string                 `json:"states_sha256"`
+	Outputs []render.ManifestEntry `json:"outputs"`
+}
+
+func (s *site) fleetStampPath() string { return filepath.Join(s.dir, stateDir, "fleet-stamp.json") }
+
+// statesDigest is a SHA-256 over the tool version and the serial, size and
+// modification time of every unit state: a unit built, rebuilt or removed
+// changes it.
+func (s *site) statesDigest(serials []string) (string, error) {
+	h := sha256.New()
+	fmt.Fprintf(h, "%s\n", render.Version)
+	for _, serial := range serials {
+		fi, err := os.Stat(s.statePath(serial))
+		if err != nil {
+			return "", err
+		}
+		fmt.Fprintf(h, "%s %d %d\n", serial, fi.Size(), fi.ModTime().UnixNano())
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// fleetCurrent says whether the fleet pages in the site are those of its
+// unit states as they are: the stamp of the last fleet stage matches them
+// and its pages are in place, at their sizes. A build that changed no unit
+// then leaves the fleet pages alone (they would come out byte for byte the
+// same).
+func (s *site) fleetCurrent() bool {
+	data, err := os.ReadFile(s.fleetStampPath())
+	if err != nil {
+		return false
+	}
+	var st fleetStamp
+	if json.Unmarshal(data, &st) != nil || len(st.Outputs) == 0 {
+		return false
+	}
+	serials, err := s.serials()
+	if err != nil {
+		return false
+	}
+	if d, err := s.statesDigest(serials); err != nil || d != st.States {
+		return false
+	}
+	for _, o := range st.Outputs {
+		fi, err := os.Stat(filepath.Join(s.dir, filepath.FromSlash(o.Path)))
+		if err != nil || fi.Size() != o.Size {
+			return false
+		}
+	}
+	return true
 }
 
 // writeBytes writes a page its renderer returns whole.
