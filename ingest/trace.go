@@ -264,10 +264,6 @@ func parseScaled(s string, exp int) (float64, error) {
 	return v, nil
 }
 
-// exactPow10 holds the powers of ten that a float64 holds exactly.
-var exactPow10 = [23]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
-	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
-
 // fastScaled is parseScaled's short way for the numbers a trace is made
 // of. A decimal of at most 15 significant digits whose scale, with exp,
 // is within 10^+-22: its digits make a whole number m below 2^53 and the
@@ -278,6 +274,10 @@ var exactPow10 = [23]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1
 // digits, or a wider scale: the Eisel-Lemire algorithm the Touchstone
 // reader uses (tsEiselLemire), exact when it answers. ok is false for
 // anything else, which parseScaled reads the long way, errors included.
+//
+// It is tsScan's decomposition with the unit's power of ten added before
+// the one rounding (scaling tsScan's result would round twice), on a
+// string, and shares its tables: tsPow10 and tsEiselLemire.
 func fastScaled(s string, exp int) (float64, bool) {
 	i, neg := 0, false
 	if len(s) > 0 && (s[0] == '+' || s[0] == '-') {
@@ -337,9 +337,9 @@ func fastScaled(s string, exp int) (float64, bool) {
 	}
 	v := float64(m) // m < 10^15 < 2^53: exact
 	if k >= 0 {
-		v *= exactPow10[k]
+		v *= tsPow10[k]
 	} else {
-		v /= exactPow10[-k]
+		v /= tsPow10[-k]
 	}
 	if neg {
 		v = -v
