@@ -141,7 +141,8 @@ func (s *site) writeState(st *unitState) error {
 	if err != nil {
 		return err
 	}
-	return writeAtomic(s.statePath(st.Serial), data)
+	_, err = s.writeFile(path.Join(stateDir, "units", st.Serial+".json"), data)
+	return err
 }
 
 // writeUnit writes the unit's files into its folder and removes files of
@@ -158,10 +159,11 @@ func (s *site) writeUnit(serial string, files map[string][]byte) ([]render.Manif
 	sort.Strings(names)
 	var entries []render.ManifestEntry
 	for _, n := range names {
-		if err := writeAtomic(filepath.Join(dir, n), files[n]); err != nil {
+		e, err := s.writeFile(path.Join("units", serial, n), files[n])
+		if err != nil {
 			return nil, err
 		}
-		entries = append(entries, manifestEntry(path.Join("units", serial, n), files[n]))
+		entries = append(entries, e)
 	}
 	old, err := os.ReadDir(dir)
 	if err != nil {
@@ -391,7 +393,8 @@ func writeFleet(s *site) (err error) {
 	if err != nil {
 		return err
 	}
-	return writeAtomic(s.fleetStampPath(), stamp)
+	_, err = s.writeFile(path.Join(stateDir, "fleet-stamp.json"), stamp)
+	return err
 }
 
 // fleetStamp is what the fleet pages were last made from, kept in
@@ -404,7 +407,9 @@ type fleetStamp struct {
 	Outputs []render.ManifestEntry `json:"outputs"`
 }
 
-func (s *site) fleetStampPath() string { return filepath.Join(s.dir, stateDir, "fleet-stamp.json") }
+func (s *site) fleetStampPath() string {
+	return filepath.Join(s.dir, stateDir, "fleet-stamp.json")
+}
 
 // statesDigest is a SHA-256 over the tool version and the serial, size and
 // modification time of every unit state: a unit built, rebuilt or removed
@@ -465,11 +470,14 @@ func writeBytes(make func() ([]byte, error)) func(w io.Writer) error {
 }
 
 // atomicFile is a site file written under a temporary name and renamed
-// when complete (see writeAtomic), which also counts its size and SHA-256
-// for the manifest as it goes.
+// when complete, so that a reader (or a killed build) never sees a
+// half-written file under its final name. It counts the file's size and
+// SHA-256 for the manifest as it goes. Every file of the site is written
+// this way (createAtomic for a file made piece by piece, site.writeFile for
+// one made whole).
 type atomicFile struct {
 	f         *os.File
-	w         *bufio.Writer
+	w         *bufio.Writer // nil: writes go straight to f
 	h         hash.Hash
 	n         int64
 	rel, tmp  string
@@ -477,20 +485,45 @@ type atomicFile struct {
 	closed    bool
 }
 
-// createAtomic starts the file rel (slash-separated) of the site dir.
+// createAtomic starts the file rel (slash-separated) of the site dir,
+// buffered for writes in small pieces.
 func createAtomic(dir, rel string) (*atomicFile, error) {
+	a, err := createAtomicUnbuffered(dir, rel)
+	if err == nil {
+		a.w = bufio.NewWriterSize(a.f, 256<<10)
+	}
+	return a, err
+}
+
+func createAtomicUnbuffered(dir, rel string) (*atomicFile, error) {
 	p := filepath.Join(dir, filepath.FromSlash(rel))
 	f, err := os.Create(p + tempSuffix)
 	if err != nil {
 		return nil, err
 	}
-	return &atomicFile{f: f, w: bufio.NewWriterSize(f, 256<<10), h: sha256.New(), rel: rel,
-		tmp: p + tempSuffix, finalPath: p}, nil
+	return &atomicFile{f: f, h: sha256.New(), rel: rel, tmp: p + tempSuffix, finalPath: p}, nil
+}
+
+// writeFile writes the site file rel (slash-separated) whole and returns
+// its manifest entry.
+func (s *site) writeFile(rel string, data []byte) (render.ManifestEntry, error) {
+	a, err := createAtomicUnbuffered(s.dir, rel)
+	if err != nil {
+		return render.ManifestEntry{}, err
+	}
+	if _, err := a.Write(data); err != nil {
+		a.abort()
+		return render.ManifestEntry{}, err
+	}
+	return a.commit()
 }
 
 func (a *atomicFile) Write(p []byte) (int, error) {
 	a.h.Write(p) // a hash never fails
 	a.n += int64(len(p))
+	if a.w == nil {
+		return a.f.Write(p)
+	}
 	return a.w.Write(p)
 }
 
@@ -498,7 +531,10 @@ func (a *atomicFile) Write(p []byte) (int, error) {
 // returns its manifest entry.
 func (a *atomicFile) commit() (render.ManifestEntry, error) {
 	a.closed = true
-	err := a.w.Flush()
+	var err error
+	if a.w != nil {
+		err = a.w.Flush()
+	}
 	if cerr := a.f.Close(); err == nil {
 		err = cerr
 	}
@@ -520,24 +556,4 @@ func (a *atomicFile) abort() {
 	a.closed = true
 	a.f.Close()
 	os.Remove(a.tmp)
-}
-
-func manifestEntry(p string, data []byte) render.ManifestEntry {
-	sum := sha256.Sum256(data)
-	return render.ManifestEntry{Path: p, Size: int64(len(data)), SHA256: hex.EncodeToString(sum[:])}
-}
-
-// writeAtomic writes data under a temporary name and renames it, so that a
-// reader (or a killed build) never sees a half-written file under its
-// final name.
-func writeAtomic(p string, data []byte) error {
-	tmp := p + tempSuffix
-	if err := os.WriteFile(tmp, data, 0o644); err != nil {
-		return err
-	}
-	if err := os.Rename(tmp, p); err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	return nil
 }
