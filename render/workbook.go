@@ -165,14 +165,19 @@ func newXLBook(title, subject string, created time.Time) *xlBook {
 // newXLBookDescribed starts a workbook; precision says, in its
 // description, how its numbers are stored.
 func newXLBookDescribed(title, subject string, created time.Time, precision string) *xlBook {
+	return newXLBookStamped(title, subject, created.UTC().Format(time.RFC3339), created, precision)
+}
+
+// newXLBookStamped starts a workbook whose document properties are dated
+// stamp and whose zip entries are dated modified.
+func newXLBookStamped(title, subject, stamp string, modified time.Time, precision string) *xlBook {
 	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
 	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
 		if buf, ok := w.(*bytes.Buffer); ok {
 			buf.Grow(128<<10 + b.bulkSize()) // the workbook, written once
 		}
-		return &sortedZip{w: zip.NewWriter(w), modified: created, book: b}
+		return &sortedZip{w: zip.NewWriter(w), modified: modified, book: b}
 	})
-	stamp := created.UTC().Format(time.RFC3339)
 	b.check(b.f.SetDocProps(&excelize.DocProperties{
 		Title: title, Subject: subject, Creator: "gtpack", LastModifiedBy: "gtpack",
 		Created: stamp, Modified: stamp, Version: Version, Language: "en",
@@ -300,6 +305,10 @@ func xlCol(col int) string {
 func (b *xlBook) numStyle(format string) int {
 	if id, ok := b.numStyles[format]; ok {
 		return id
+	}
+	if b.f == nil { // a unit's cells: the styles are the skeleton's
+		b.check(fmt.Errorf("render: number format %q has no style in the workbook skeleton", format))
+		return 0
 	}
 	f := format
 	id, err := b.f.NewStyle(&excelize.Style{CustomNumFmt: &f})
@@ -463,38 +472,54 @@ func startedTime(s string) time.Time {
 }
 
 // UnitWorkbook returns the unit workbook: Summary, one sheet per beam with
-// a G/T chart, Limits, Uncertainty, Flags and Inputs.
+// a G/T chart, Limits, Uncertainty, Flags and Inputs. Its skeleton is made
+// once per shape (unitbook.go); the unit's cells are written into it.
 func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 	if u == nil {
 		return nil, fmt.Errorf("render: UnitWorkbook of a nil unit")
 	}
-	b := newXLBookDescribed("G/T acceptance workbook, unit "+u.Serial, "Unit "+u.Serial+", product "+u.Product, startedTime(u.Started),
-		"values as result.json holds them (to 1e-6; frequencies to its hertz), shown rounded.")
-
-	summary := b.addSheet("Summary")
-	beamSheets := make([]string, len(u.Beams))
+	shape := unitShape{limits: len(u.Limits), beams: make([]beamShape, len(u.Beams))}
+	cols := make([][]beamColumn, len(u.Beams))
 	for i := range u.Beams {
-		beamSheets[i] = b.addSheet("Beam " + u.Beams[i].ID)
+		bm := &u.Beams[i]
+		cols[i] = beamColumns(bm, u.Limits)
+		bs := beamShape{id: bm.ID, theta: bm.ThetaDeg, phi: bm.PhiDeg, n: len(bm.FrequencyHz),
+			firstGrid: sameGrid(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]xlColumn, len(cols[i]))}
+		for j, c := range cols[i] {
+			bs.cols[j] = c.xlColumn
+		}
+		shape.beams[i] = bs
 	}
-	limits := b.addSheet("Limits")
-	uncertainty := b.addSheet("Uncertainty")
-	flags := b.addSheet("Flags")
-	inputs := b.addSheet("Inputs")
-
-	gtValues := make([]string, len(u.Beams))
+	sk, err := skeletonFor(&shape)
+	if err != nil {
+		return nil, err
+	}
+	b := sk.cells()
 	for i := range u.Beams {
-		gtValues[i] = writeBeamSheet(b, beamSheets[i], &u.Beams[i], u.Limits)
+		beamTable(b, sk.beams[i], cols[i], len(u.Beams[i].FrequencyHz))
 	}
-	writeSummary(b, summary, u, beamSheets, gtValues)
-	writeLimitsSheet(b, limits, u.Limits)
-	writeUncertaintySheet(b, uncertainty, u)
-	writeFlagsSheet(b, flags, u)
-	writeInputsSheet(b, inputs, u)
-	return b.bytes()
+	summaryTable(b, sk.summary, u, sk.beams)
+	limitsTable(b, sk.limits, u.Limits)
+	uncertaintyTable(b, sk.uncertainty, u)
+	flagsTable(b, sk.flags, u)
+	inputsTable(b, sk.inputs, u)
+	if b.err != nil {
+		return nil, b.err
+	}
+	return sk.write(b.bulk, "G/T acceptance workbook, unit "+u.Serial, "Unit "+u.Serial+", product "+u.Product, startedTime(u.Started))
 }
 
-// summaryFields are the key/value rows of the Summary sheet.
-func summaryFields(u *reduce.Unit) [][2]any {
+// summaryLabels are the labels of the key/value rows of the Summary sheet,
+// from row 2; summaryValues are their values.
+var summaryLabels = []string{
+	"Unit", "Product", "Specification", "Run", "Started", "Verdict", "Decision rule", "Station", "Reference",
+	"Reference certificate", "Reference calibrated", "Reference due", "Operator", "Ambient (°C)", "Firmware", "Tool version",
+}
+
+// summaryVerdictRow is the Summary row of the unit's verdict.
+const summaryVerdictRow = 2 + 5
+
+func summaryValues(u *reduce.Unit) []any {
 	ref := u.Reference
 	refText := ref.ID
 	if ref.Description != "" {
@@ -508,100 +533,86 @@ func summaryFields(u *reduce.Unit) [][2]any {
 	if u.Station.Description != "" {
 		station += " - " + u.Station.Description
 	}
-	return [][2]any{
-		{"Unit", u.Serial},
-		{"Product", u.Product},
-		{"Specification", u.SpecTitle},
-		{"Run", u.Run},
-		{"Started", u.Started},
-		{"Verdict", u.Verdict},
-		{"Decision rule", u.DecisionRule},
-		{"Station", station},
-		{"Reference", refText},
-		{"Reference certificate", ref.Certificate},
-		{"Reference calibrated", ref.Calibrated},
-		{"Reference due", due},
-		{"Operator", u.Operator},
-		{"Ambient (°C)", u.AmbientC},
-		{"Firmware", u.Firmware},
-		{"Tool version", "gtpack " + Version},
+	return []any{
+		u.Serial, u.Product, u.SpecTitle, u.Run, u.Started, u.Verdict, u.DecisionRule, station, refText,
+		ref.Certificate, ref.Calibrated, due, u.Operator, u.AmbientC, u.Firmware, "gtpack " + Version,
 	}
 }
 
-func writeSummary(b *xlBook, sheet string, u *reduce.Unit, beamSheets, gtValues []string) {
-	b.set(sheet, 1, 1, "G/T acceptance workbook")
-	b.check(b.f.SetCellStyle(sheet, "A1", "A1", b.title))
+// The Summary sheet: its title in row 1, the key/value rows, a blank row,
+// the Limits title, header and rows, a blank row, the Beams title, header
+// and rows. summaryRows gives the rows of the Limits header and of the
+// Beams header for a number of limits.
+func summaryRows(limits int) (limitsHeader, beamsHeader int) {
+	limitsHeader = 2 + len(summaryLabels) + 2
+	return limitsHeader, limitsHeader + limits + 3
+}
+
+var (
+	summaryLimitColumns = []string{"Limit", "Beam", "Worst margin (dB)", "At (GHz)", "U (dB)", "Verdict"}
+	summaryBeamColumns  = []string{"Beam", "Sheet", "Theta (deg)", "Phi (deg)", "Polarization", "G/T form", "Points"}
+)
+
+// summaryFrame is the skeleton of the Summary sheet: column widths, the
+// verdict colours and the chart of the G/T of every beam on the first
+// beam's grid (a beam on another grid is shown on its own sheet only).
+func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []string) {
 	b.check(b.f.SetColWidth(sheet, "A", "A", 26))
 	b.check(b.f.SetColWidth(sheet, "B", "B", 34))
 	b.check(b.f.SetColWidth(sheet, "C", "F", 14))
-	row := 2
-	for _, kv := range summaryFields(u) {
-		b.set(sheet, 1, row, kv[0])
-		if v, ok := kv[1].(float64); ok {
-			b.setNum(sheet, 2, row, resultValue(v), nfTemp)
-		} else {
-			b.set(sheet, 2, row, kv[1])
-		}
-		if kv[0] == "Verdict" {
-			b.verdictRules(sheet, xlCell(2, row))
-		}
-		row++
+	b.verdictRules(sheet, xlCell(2, summaryVerdictRow))
+	limitsHeader, beamsHeader := summaryRows(s.limits)
+	if s.limits > 0 {
+		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", limitsHeader+1, limitsHeader+s.limits))
 	}
-	b.check(b.f.SetCellStyle(sheet, "A2", xlCell(1, row-1), b.header))
-
-	row++
-	b.set(sheet, 1, row, "Limits")
-	b.check(b.f.SetCellStyle(sheet, xlCell(1, row), xlCell(1, row), b.title))
-	row++
-	b.table(sheet, row, []xlColumn{
-		{header: "Limit"}, {header: "Beam"}, {header: "Worst margin (dB)"}, {header: "At (GHz)"},
-		{header: "U (dB)"}, {header: "Verdict"},
-	}, false)
-	first := row + 1
-	for _, l := range u.Limits {
-		row++
-		b.set(sheet, 1, row, l.Name)
-		b.set(sheet, 2, row, l.Beam)
-		b.setNum(sheet, 3, row, resultValue(l.WorstMarginDB), nfDB)
-		b.setNum(sheet, 4, row, resultGHz(l.AtFrequencyHz), nfGHz)
-		b.setNum(sheet, 5, row, resultValue(l.ExpandedUncertaintyDB), nfDB)
-		b.set(sheet, 6, row, l.Verdict)
-	}
-	if len(u.Limits) > 0 {
-		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", first, row))
-	}
-
-	row += 2
-	b.set(sheet, 1, row, "Beams")
-	b.check(b.f.SetCellStyle(sheet, xlCell(1, row), xlCell(1, row), b.title))
-	row++
-	b.table(sheet, row, []xlColumn{
-		{header: "Beam"}, {header: "Sheet"}, {header: "Theta (deg)"}, {header: "Phi (deg)"},
-		{header: "Polarization"}, {header: "G/T form"}, {header: "Points"},
-	}, false)
 	var series []chartSeries
-	for i, bm := range u.Beams {
-		row++
-		// One chart of the G/T of every beam on the first beam's grid (its
-		// frequencies are the categories); a beam on another grid is shown
-		// on its own sheet only.
-		if gtValues[i] != "" && sameGrid(bm.FrequencyHz, u.Beams[0].FrequencyHz) {
+	for i, bm := range s.beams {
+		if gtValues[i] != "" && bm.firstGrid {
+			row := beamsHeader + 1 + i
 			series = append(series, chartSeries{name: xlRef(sheet, 1, row, row), values: gtValues[i]})
 		}
-		b.set(sheet, 1, row, bm.ID)
-		b.set(sheet, 2, row, beamSheets[i])
-		b.setNum(sheet, 3, row, resultValue(bm.ThetaDeg), nfDeg)
-		b.setNum(sheet, 4, row, resultValue(bm.PhiDeg), nfDeg)
-		b.set(sheet, 5, row, bm.Polarization)
-		b.set(sheet, 6, row, bm.GTForm)
-		b.set(sheet, 7, row, len(bm.FrequencyHz))
 	}
-
 	if len(series) > 0 {
-		n := len(u.Beams[0].FrequencyHz)
 		b.lineChart(sheet, "H2", "G/T of the beams", "Frequency (GHz)", "G/T (dB/K)",
-			xlRef(beamSheets[0], 1, 2, n+1), series)
+			xlRef(beamSheets[0], 1, 2, s.beams[0].n+1), series)
 	}
+}
+
+// summaryTable is the unit's cells of the Summary sheet.
+func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) {
+	t := &bulkSheet{first: 1, width: len(summaryBeamColumns)}
+	t.rows = append(t.rows, []bulkCell{textCell("G/T acceptance workbook", b.title)})
+	for i, v := range summaryValues(u) {
+		row := []bulkCell{textCell(summaryLabels[i], b.header), {}}
+		switch x := v.(type) {
+		case float64:
+			row[1] = numCell(x, b.numStyle(nfTemp))
+		case string:
+			row[1] = textCell(x, 0)
+		}
+		t.rows = append(t.rows, row)
+	}
+	headerRow := func(title string, names []string) {
+		t.rows = append(t.rows, nil, []bulkCell{textCell(title, b.title)})
+		row := make([]bulkCell, len(names))
+		for i, n := range names {
+			row[i] = textCell(n, b.header)
+		}
+		t.rows = append(t.rows, row)
+	}
+	headerRow("Limits", summaryLimitColumns)
+	dB, ghz := b.numStyle(nfDB), b.numStyle(nfGHz)
+	for _, l := range u.Limits {
+		t.rows = append(t.rows, []bulkCell{textCell(l.Name, 0), textCell(l.Beam, 0), numCell(l.WorstMarginDB, dB),
+			freqCell(l.AtFrequencyHz, ghz), numCell(l.ExpandedUncertaintyDB, dB), textCell(l.Verdict, 0)})
+	}
+	headerRow("Beams", summaryBeamColumns)
+	deg := b.numStyle(nfDeg)
+	for i, bm := range u.Beams {
+		t.rows = append(t.rows, []bulkCell{textCell(bm.ID, 0), textCell(beamSheets[i], 0), numCell(bm.ThetaDeg, deg),
+			numCell(bm.PhiDeg, deg), textCell(bm.Polarization, 0), textCell(bm.GTForm, 0), numCell(float64(len(bm.FrequencyHz)), 0)})
+	}
+	b.addBulk(sheet, t)
 }
 
 func sameGrid(a, b []float64) bool {
@@ -673,32 +684,35 @@ func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 	return cols
 }
 
-// writeBeamSheet writes the frequency table and the G/T chart of a beam and
-// returns the range of its G/T values for the Summary chart ("" when the
-// beam has no frequencies).
-func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.LimitResult) string {
-	cols := beamColumns(bm, limits)
-	n := len(bm.FrequencyHz)
+// beamSheetFrame is the skeleton of a beam sheet: the frozen header row
+// and the G/T chart (with the beam's G/T limits). It returns the range of
+// the beam's G/T values for the Summary chart ("" when the beam has no
+// frequencies).
+func beamSheetFrame(b *xlBook, sheet string, bm *beamShape) string {
 	gt := ""
-	if n > 0 {
+	if n := bm.n; n > 0 {
 		// Series names are formulas: they point at the header cells.
 		categories := xlRef(sheet, 1, 2, n+1)
 		series := []chartSeries{{name: xlRef(sheet, 7, 1, 1), values: xlRef(sheet, 7, 2, n+1)}}
-		for ci, c := range cols {
+		for ci, c := range bm.cols {
 			if strings.HasPrefix(c.header, "Limit ") && strings.HasSuffix(c.header, "(dB/K)") {
 				series = append(series, chartSeries{name: xlRef(sheet, ci+1, 1, 1), values: xlRef(sheet, ci+1, 2, n+1), dash: true})
 			}
 		}
-		title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.ID, bm.ThetaDeg, bm.PhiDeg)
-		b.lineChart(sheet, xlCell(len(cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, series)
+		title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.id, bm.theta, bm.phi)
+		b.lineChart(sheet, xlCell(len(bm.cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, series)
 		gt = series[0].values
 	}
-	if b.err != nil {
-		return ""
-	}
-	// The panes through excelize; the column widths, the header row and
-	// the frequency table, the bulk of the workbook, are written at save
-	// time.
+	b.check(b.f.SetPanes(sheet, &excelize.Panes{
+		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
+		Selection: []excelize.Selection{{SQRef: "A2", ActiveCell: "A2", Pane: "bottomLeft"}},
+	}))
+	return gt
+}
+
+// beamTable is a beam sheet's cells: the column widths, the header row and
+// the frequency table of n points.
+func beamTable(b *xlBook, sheet string, cols []beamColumn, n int) {
 	t := &bulkSheet{first: 1, n: n, width: len(cols), rows: [][]bulkCell{make([]bulkCell, len(cols))},
 		cols: make([]bulkColumn, len(cols))}
 	t.widths = make([]float64, len(cols))
@@ -707,29 +721,18 @@ func writeBeamSheet(b *xlBook, sheet string, bm *reduce.Beam, limits []reduce.Li
 		t.rows[0][i] = textCell(c.header, b.header)
 		t.cols[i] = bulkColumn{values: c.values, start: c.start, style: b.numStyle(c.format), hz: c.hz}
 	}
-	b.check(b.f.SetPanes(sheet, &excelize.Panes{
-		Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft",
-		Selection: []excelize.Selection{{SQRef: "A2", ActiveCell: "A2", Pane: "bottomLeft"}},
-	}))
 	b.addBulk(sheet, t)
-	return gt
 }
 
-func writeLimitsSheet(b *xlBook, sheet string, limits []reduce.LimitResult) {
-	b.table(sheet, 1, []xlColumn{
-		{"Limit", "", 24}, {"Quantity", "", 9}, {"Beam", "", 9}, {"Statistic", "", 9},
-		{"Worst margin (dB)", nfDB, 12}, {"At (GHz)", nfGHz, 12},
-		{"Value (dB/K or dBi)", nfDB, 12}, {"Limit (dB/K or dBi)", nfDB, 12},
-		{"U (dB)", nfDB, 9}, {"Verdict", "", 16},
-	}, true)
-	for i, l := range limits {
-		r := i + 2
-		b.setRow(sheet, r, l.Name, l.Quantity, l.Beam, l.Statistic, resultValue(l.WorstMarginDB), resultGHz(l.AtFrequencyHz),
-			resultValue(l.ValueDB), resultValue(l.LimitDB), resultValue(l.ExpandedUncertaintyDB), l.Verdict)
+// limitsTable is the unit's rows of the Limits sheet.
+func limitsTable(b *xlBook, sheet string, limits []reduce.LimitResult) {
+	styles := b.columnStyles(limitsColumns)
+	t := &bulkSheet{first: 2, width: len(limitsColumns)}
+	for _, l := range limits {
+		t.rows = append(t.rows, bulkRow(styles, l.Name, l.Quantity, l.Beam, l.Statistic, l.WorstMarginDB, frequencyHz(l.AtFrequencyHz),
+			l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB, l.Verdict))
 	}
-	if len(limits) > 0 {
-		b.verdictRules(sheet, fmt.Sprintf("J2:J%d", len(limits)+1))
-	}
+	b.addBulk(sheet, t)
 }
 
 // budgetPoint chooses the frequency index at which a beam's budget is
@@ -769,17 +772,12 @@ func nearestIndex(grid []float64, f float64) int {
 	return k
 }
 
-func writeUncertaintySheet(b *xlBook, sheet string, u *reduce.Unit) {
-	cols := []xlColumn{
-		{"Beam", "", 9}, {"Budget", "", 8}, {"Frequency (GHz)", nfGHz, 14}, {"Chosen at", "", 30},
-		{"Term", "", 34}, {"Source", "", 9}, {"Distribution", "", 12}, {"Divisor", nfDiv, 9},
-		{"Value (dB)", nfDB, 11}, {"u (dB)", nfDB, 11},
-	}
-	b.table(sheet, 1, cols, true)
-	// The rows, one per budget term of every beam, are written at save
-	// time, each number with its column's format.
-	styles := b.columnStyles(cols)
-	t := &bulkSheet{first: 2, width: len(cols)}
+// uncertaintyTable is the unit's rows of the Uncertainty sheet: every
+// budget term of every beam at the frequency budgetPoint chooses, each
+// number with its column's format.
+func uncertaintyTable(b *xlBook, sheet string, u *reduce.Unit) {
+	styles := b.columnStyles(uncertaintyColumns)
+	t := &bulkSheet{first: 2, width: len(uncertaintyColumns)}
 	for i := range u.Beams {
 		bm := &u.Beams[i]
 		for _, part := range []struct {
@@ -844,28 +842,30 @@ func bulkRow(styles []int, values ...any) []bulkCell {
 	return row
 }
 
-func writeFlagsSheet(b *xlBook, sheet string, u *reduce.Unit) {
-	b.table(sheet, 1, []xlColumn{
-		{"Kind", "", 18}, {"Beam", "", 8}, {"File", "", 40}, {"Line", nfInt, 7}, {"Message", "", 90},
-	}, true)
-	row := 2
+// flagsTable is the unit's rows of the Flags sheet: its flags, then the
+// problems of its inputs.
+func flagsTable(b *xlBook, sheet string, u *reduce.Unit) {
+	styles := b.columnStyles(flagsColumns)
+	t := &bulkSheet{first: 2, width: len(flagsColumns)}
 	for _, f := range u.Flags {
-		b.setRow(sheet, row, f.Kind, f.Beam, nil, nil, f.Message)
-		row++
+		t.rows = append(t.rows, bulkRow(styles, f.Kind, f.Beam, nil, nil, f.Message))
 	}
 	for _, p := range u.Problems {
 		var line any
 		if p.Line > 0 {
 			line = p.Line
 		}
-		b.setRow(sheet, row, "problem", nil, p.File, line, p.Message)
-		row++
+		t.rows = append(t.rows, bulkRow(styles, "problem", nil, p.File, line, p.Message))
 	}
+	b.addBulk(sheet, t)
 }
 
-func writeInputsSheet(b *xlBook, sheet string, u *reduce.Unit) {
-	b.table(sheet, 1, []xlColumn{{"Path", "", 60}, {"Size (bytes)", nfInt, 13}, {"SHA-256", "", 70}}, true)
-	for i, in := range u.Inputs {
-		b.setRow(sheet, i+2, in.Path, in.Size, in.SHA256)
+// inputsTable is the unit's rows of the Inputs sheet.
+func inputsTable(b *xlBook, sheet string, u *reduce.Unit) {
+	styles := b.columnStyles(inputsColumns)
+	t := &bulkSheet{first: 2, width: len(inputsColumns)}
+	for _, in := range u.Inputs {
+		t.rows = append(t.rows, bulkRow(styles, in.Path, float64(in.Size), in.SHA256))
 	}
+	b.addBulk(sheet, t)
 }

@@ -111,12 +111,30 @@ func (b *xlBook) addBulk(sheet string, t *bulkSheet) {
 	b.bulk[sheet] = t
 }
 
-// bulkParts maps the zip part of each bulk sheet to its table, reading the
-// sheet names and their parts from xl/workbook.xml and its relationships.
+// bulkParts maps the zip part of each bulk sheet to its table.
 func bulkParts(bulk map[string]*bulkSheet, entries []*zipEntry) (map[string]*bulkSheet, error) {
 	if len(bulk) == 0 {
 		return nil, nil
 	}
+	sheets, err := sheetParts(entries)
+	if err != nil {
+		return nil, err
+	}
+	parts := map[string]*bulkSheet{}
+	for name, t := range bulk {
+		if p, ok := sheets[name]; ok {
+			parts[p] = t
+		}
+	}
+	if len(parts) != len(bulk) {
+		return nil, fmt.Errorf("render: %d of %d tables have no sheet part", len(bulk)-len(parts), len(bulk))
+	}
+	return parts, nil
+}
+
+// sheetParts maps each sheet name to its zip part, reading them from
+// xl/workbook.xml and its relationships.
+func sheetParts(entries []*zipEntry) (map[string]string, error) {
 	var workbook, rels []byte
 	for _, e := range entries {
 		switch e.name {
@@ -152,16 +170,13 @@ func bulkParts(bulk map[string]*bulkSheet, entries []*zipEntry) (map[string]*bul
 			target[r.ID] = path.Join("xl", r.Target)
 		}
 	}
-	parts := map[string]*bulkSheet{}
+	sheets := map[string]string{}
 	for _, s := range wb.Sheets {
-		if t, ok := bulk[s.Name]; ok {
-			parts[target[s.ID]] = t
+		if p, ok := target[s.ID]; ok {
+			sheets[s.Name] = p
 		}
 	}
-	if len(parts) != len(bulk) {
-		return nil, fmt.Errorf("render: %d of %d tables have no sheet part", len(bulk)-len(parts), len(bulk))
-	}
-	return parts, nil
+	return sheets, nil
 }
 
 // writeBulkSheet writes the sheet XML that excelize made, with the rows of

@@ -1,0 +1,369 @@
+package render
+
+import (
+	"archive/zip"
+	"bytes"
+	"encoding/binary"
+	"encoding/xml"
+	"fmt"
+	"hash/crc32"
+	"io"
+	"io/fs"
+	"sort"
+	"strconv"
+	"sync"
+	"time"
+
+	"github.com/klauspost/compress/flate"
+	"github.com/xuri/excelize/v2"
+)
+
+// The unit workbook is made in two parts. excelize makes what the units of
+// one product and specification share, the skeleton: the sheets, their
+// header rows, column formats and widths, panes, conditional formats,
+// charts, styles and the document properties (with slots for the unit's
+// title, subject and date). A skeleton depends only on the unit's shape
+// (unitShape: its beams, their grids and columns, its number of limits),
+// never on a measured value, so it is made once per shape and kept. Each
+// unit then adds its cells, written straight into the skeleton's sheets
+// (xlsxrows.go), fills the slots, and copies the skeleton's other parts
+// already compressed. excelize's share of a unit workbook (some 10 ms of
+// a 34 ms workbook of 16 beams of 801 points, most of it its charts) is so
+// paid once per shape instead of once per unit; the bytes of a workbook
+// do not depend on whether its skeleton was made for it or kept.
+
+// unitShape is everything of a unit that its workbook's skeleton depends
+// on.
+type unitShape struct {
+	beams  []beamShape
+	limits int
+}
+
+// beamShape is what a beam gives its sheet's skeleton and the Summary
+// chart.
+type beamShape struct {
+	id         string
+	theta, phi float64
+	n          int        // frequency points
+	cols       []xlColumn // the frequency table's columns
+	firstGrid  bool       // on the first beam's grid: a series of the Summary chart
+}
+
+// key is the shape as text, every field in full.
+func (s *unitShape) key() string {
+	b := strconv.AppendInt(nil, int64(s.limits), 10)
+	for _, bm := range s.beams {
+		b = append(b, '|')
+		b = strconv.AppendQuote(b, bm.id)
+		b = append(b, ' ')
+		b = strconv.AppendFloat(b, bm.theta, 'g', -1, 64)
+		b = append(b, ' ')
+		b = strconv.AppendFloat(b, bm.phi, 'g', -1, 64)
+		b = append(b, ' ')
+		b = strconv.AppendInt(b, int64(bm.n), 10)
+		b = strconv.AppendBool(append(b, ' '), bm.firstGrid)
+		for _, c := range bm.cols {
+			b = append(b, ' ')
+			b = strconv.AppendQuote(b, c.header)
+			b = strconv.AppendQuote(b, c.format)
+			b = strconv.AppendFloat(b, c.width, 'g', -1, 64)
+		}
+	}
+	return string(b)
+}
+
+// unitSkeleton is excelize's part of the unit workbooks of one shape.
+type unitSkeleton struct {
+	parts []skeletonPart // sorted by name
+	// sheetPart maps each sheet name to its zip part.
+	sheetPart map[string]string
+	// The styles the cells use.
+	numStyles     map[string]int
+	header, title int
+	// The sheet names.
+	summary, limits, uncertainty, flags, inputs string
+	beams                                       []string
+}
+
+// skeletonPart is one zip part of a skeleton: the XML of the sheets and of
+// the document properties, which each unit completes, and every other
+// part as it is stored (compressed, with its checksum).
+type skeletonPart struct {
+	name   string
+	xml    []byte // a sheet or docProps/core.xml; nil for the others
+	method uint16
+	stored []byte // the part as stored in the zip
+	crc    uint32
+	size   int
+}
+
+// The slots of docProps/core.xml that each unit fills.
+const (
+	slotTitle   = "gtpack-slot-title"
+	slotSubject = "gtpack-slot-subject"
+	slotStamp   = "gtpack-slot-stamp"
+	corePart    = "docProps/core.xml"
+)
+
+// unitPrecision is how a unit workbook stores its numbers, in its
+// description.
+const unitPrecision = "values as result.json holds them (to 1e-6; frequencies to its hertz), shown rounded."
+
+// unitFormats are the number formats of a unit workbook, made as styles in
+// this order before anything else.
+var unitFormats = []string{nfDB, nfGHz, nfDeg, nfTemp, nfDiv, nfInt}
+
+// skeletons holds the skeletons made so far, by shape. A build sees a few
+// shapes (one per product and specification); when more than
+// maxSkeletons have been made the store starts again.
+var skeletons struct {
+	sync.Mutex
+	m map[string]*unitSkeleton
+}
+
+const maxSkeletons = 32
+
+// skeletonFor returns the skeleton of shape s, made when it is new. Two
+// workers meeting a new shape at once both make it; they make the same.
+func skeletonFor(s *unitShape) (*unitSkeleton, error) {
+	k := s.key()
+	skeletons.Lock()
+	sk := skeletons.m[k]
+	skeletons.Unlock()
+	if sk != nil {
+		return sk, nil
+	}
+	sk, err := buildSkeleton(s)
+	if err != nil {
+		return nil, err
+	}
+	skeletons.Lock()
+	if skeletons.m == nil || len(skeletons.m) >= maxSkeletons {
+		skeletons.m = map[string]*unitSkeleton{}
+	}
+	skeletons.m[k] = sk
+	skeletons.Unlock()
+	return sk, nil
+}
+
+// Columns of the tables below a header row that excelize writes.
+var (
+	limitsColumns = []xlColumn{
+		{"Limit", "", 24}, {"Quantity", "", 9}, {"Beam", "", 9}, {"Statistic", "", 9},
+		{"Worst margin (dB)", nfDB, 12}, {"At (GHz)", nfGHz, 12},
+		{"Value (dB/K or dBi)", nfDB, 12}, {"Limit (dB/K or dBi)", nfDB, 12},
+		{"U (dB)", nfDB, 9}, {"Verdict", "", 16},
+	}
+	uncertaintyColumns = []xlColumn{
+		{"Beam", "", 9}, {"Budget", "", 8}, {"Frequency (GHz)", nfGHz, 14}, {"Chosen at", "", 30},
+		{"Term", "", 34}, {"Source", "", 9}, {"Distribution", "", 12}, {"Divisor", nfDiv, 9},
+		{"Value (dB)", nfDB, 11}, {"u (dB)", nfDB, 11},
+	}
+	flagsColumns = []xlColumn{
+		{"Kind", "", 18}, {"Beam", "", 8}, {"File", "", 40}, {"Line", nfInt, 7}, {"Message", "", 90},
+	}
+	inputsColumns = []xlColumn{{"Path", "", 60}, {"Size (bytes)", nfInt, 13}, {"SHA-256", "", 70}}
+)
+
+// buildSkeleton makes the skeleton of shape s with excelize.
+func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
+	b := newXLBookStamped(slotTitle, slotSubject, slotStamp, workbookEpoch, unitPrecision)
+	for _, f := range unitFormats {
+		b.numStyle(f)
+	}
+	sk := &unitSkeleton{header: b.header, title: b.title}
+	sk.summary = b.addSheet("Summary")
+	sk.beams = make([]string, len(s.beams))
+	for i, bm := range s.beams {
+		sk.beams[i] = b.addSheet("Beam " + bm.id)
+	}
+	sk.limits = b.addSheet("Limits")
+	sk.uncertainty = b.addSheet("Uncertainty")
+	sk.flags = b.addSheet("Flags")
+	sk.inputs = b.addSheet("Inputs")
+
+	gtValues := make([]string, len(s.beams))
+	for i := range s.beams {
+		gtValues[i] = beamSheetFrame(b, sk.beams[i], &s.beams[i])
+	}
+	summaryFrame(b, sk.summary, s, sk.beams, gtValues)
+	b.table(sk.limits, 1, limitsColumns, true)
+	if s.limits > 0 {
+		b.verdictRules(sk.limits, fmt.Sprintf("J2:J%d", s.limits+1))
+	}
+	b.table(sk.uncertainty, 1, uncertaintyColumns, true)
+	b.table(sk.flags, 1, flagsColumns, true)
+	b.table(sk.inputs, 1, inputsColumns, true)
+	sk.numStyles = b.numStyles
+	if b.err != nil {
+		return nil, b.err
+	}
+
+	var c partCollector
+	b.f.SetZipWriter(func(io.Writer) excelize.ZipWriter { return &c })
+	if ct := b.f.ContentTypes; ct != nil {
+		// excelize adds the image content types from a map.
+		sort.SliceStable(ct.Defaults, func(i, j int) bool { return ct.Defaults[i].Extension < ct.Defaults[j].Extension })
+	}
+	if _, err := b.f.WriteToBuffer(); err != nil {
+		return nil, err
+	}
+	if err := b.f.Close(); err != nil {
+		return nil, err
+	}
+	sort.SliceStable(c.entries, func(i, j int) bool { return c.entries[i].name < c.entries[j].name })
+	var err error
+	if sk.sheetPart, err = sheetParts(c.entries); err != nil {
+		return nil, err
+	}
+	sheets := map[string]bool{}
+	for _, p := range sk.sheetPart {
+		sheets[p] = true
+	}
+	// The shared parts are compressed once, at the best level.
+	var z bytes.Buffer
+	d, _ := flate.NewWriter(&z, flate.BestCompression) // a valid level never fails
+	for i, e := range c.entries {
+		if i > 0 && e.name == c.entries[i-1].name {
+			return nil, fmt.Errorf("render: workbook part %s written twice", e.name)
+		}
+		data := e.data.Bytes()
+		p := skeletonPart{name: e.name}
+		if sheets[e.name] || e.name == corePart {
+			p.xml = data
+		} else {
+			p.crc, p.size, p.method, p.stored = crc32.ChecksumIEEE(data), len(data), zip.Store, data
+			if len(data) >= 512 {
+				z.Reset()
+				d.Reset(&z)
+				if _, err := d.Write(data); err != nil {
+					return nil, err
+				}
+				if err := d.Close(); err != nil {
+					return nil, err
+				}
+				p.method, p.stored = zip.Deflate, bytes.Clone(z.Bytes())
+			}
+		}
+		sk.parts = append(sk.parts, p)
+	}
+	if len(sheets) != 5+len(s.beams) {
+		return nil, fmt.Errorf("render: the workbook skeleton has %d sheet parts, not %d", len(sheets), 5+len(s.beams))
+	}
+	return sk, nil
+}
+
+// partCollector is the zip writer given to excelize for a skeleton: it
+// keeps the parts.
+type partCollector struct{ entries []*zipEntry }
+
+func (c *partCollector) Create(name string) (io.Writer, error) {
+	e := &zipEntry{name: name}
+	c.entries = append(c.entries, e)
+	return &e.data, nil
+}
+
+func (c *partCollector) AddFS(fs.FS) error {
+	return fmt.Errorf("render: adding a file system to a workbook is not supported")
+}
+
+func (c *partCollector) Close() error { return nil }
+
+// cells returns a book for a unit's cells: the skeleton's styles, no
+// excelize file.
+func (sk *unitSkeleton) cells() *xlBook {
+	return &xlBook{numStyles: sk.numStyles, header: sk.header, title: sk.title}
+}
+
+// write writes the workbook of the skeleton with the tables of a unit
+// (by sheet name), its title, subject and date.
+func (sk *unitSkeleton) write(tables map[string]*bulkSheet, title, subject string, created time.Time) ([]byte, error) {
+	size := 0
+	for _, p := range sk.parts {
+		size += len(p.stored) + len(p.xml)/4 + 128
+	}
+	b := &xlBook{bulk: tables}
+	var out bytes.Buffer
+	out.Grow(size + b.bulkSize())
+	zw := zip.NewWriter(&out)
+	d := deflaters.Get().(*flate.Writer)
+	defer deflaters.Put(d)
+	zw.RegisterCompressor(zip.Deflate, func(w io.Writer) (io.WriteCloser, error) {
+		d.Reset(w)
+		return reusedDeflater{d}, nil
+	})
+	byPart := make(map[string]*bulkSheet, len(tables))
+	for name, t := range tables {
+		p, ok := sk.sheetPart[name]
+		if !ok {
+			return nil, fmt.Errorf("render: no sheet %q in the workbook skeleton", name)
+		}
+		byPart[p] = t
+	}
+	for _, p := range sk.parts {
+		if p.xml == nil {
+			w, err := zw.CreateRaw(rawHeader(p, created))
+			if err != nil {
+				return nil, err
+			}
+			if _, err := w.Write(p.stored); err != nil {
+				return nil, err
+			}
+			continue
+		}
+		w, err := zw.CreateHeader(&zip.FileHeader{Name: p.name, Method: zip.Deflate, Modified: created})
+		if err != nil {
+			return nil, err
+		}
+		switch t := byPart[p.name]; {
+		case p.name == corePart:
+			_, err = w.Write(fillCore(p.xml, title, subject, created.UTC().Format(time.RFC3339)))
+		case t != nil:
+			err = writeBulkSheet(w, p.xml, t)
+		default:
+			_, err = w.Write(p.xml)
+		}
+		if err != nil {
+			return nil, err
+		}
+	}
+	if err := zw.Close(); err != nil {
+		return nil, err
+	}
+	return out.Bytes(), nil
+}
+
+// rawHeader is the header of a part copied as stored, dated as
+// zip.Writer.CreateHeader dates a part (the MS-DOS time and the extended
+// timestamp), which CreateRaw leaves to its caller.
+func rawHeader(p skeletonPart, modified time.Time) *zip.FileHeader {
+	fh := &zip.FileHeader{
+		Name: p.name, Method: p.method, CRC32: p.crc,
+		CompressedSize64: uint64(len(p.stored)), UncompressedSize64: uint64(p.size),
+		Modified: modified,
+		// What CreateHeader sets: made by and needed to extract, version 2.0.
+		CreatorVersion: 20, ReaderVersion: 20,
+	}
+	fh.ModifiedDate = uint16(modified.Day() + int(modified.Month())<<5 + (modified.Year()-1980)<<9)
+	fh.ModifiedTime = uint16(modified.Second()/2 + modified.Minute()<<5 + modified.Hour()<<11)
+	var extra [9]byte
+	binary.LittleEndian.PutUint16(extra[0:], 0x5455) // extended timestamp
+	binary.LittleEndian.PutUint16(extra[2:], 5)
+	extra[4] = 1 // the modification time only
+	binary.LittleEndian.PutUint32(extra[5:], uint32(modified.Unix()))
+	fh.Extra = extra[:]
+	return fh
+}
+
+// fillCore fills the slots of docProps/core.xml, each value escaped as
+// encoding/xml escapes text.
+func fillCore(core []byte, title, subject, stamp string) []byte {
+	esc := func(s string) []byte {
+		var b bytes.Buffer
+		xml.EscapeText(&b, []byte(s)) // writes to memory: cannot fail
+		return b.Bytes()
+	}
+	core = bytes.ReplaceAll(core, []byte(slotTitle), esc(title))
+	core = bytes.ReplaceAll(core, []byte(slotSubject), esc(subject))
+	return bytes.ReplaceAll(core, []byte(slotStamp), esc(stamp))
+}

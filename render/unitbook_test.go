@@ -1,0 +1,91 @@
+package render
+
+import (
+	"bytes"
+	"testing"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// forgetSkeletons empties the store of workbook skeletons.
+func forgetSkeletons() {
+	skeletons.Lock()
+	skeletons.m = nil
+	skeletons.Unlock()
+}
+
+// A unit workbook is the same whether its skeleton was made for it or
+// kept from a unit of the same shape with other values, and units of
+// other shapes get skeletons of their own.
+func TestUnitWorkbookKeptSkeleton(t *testing.T) {
+	first := fixtureUnit(t, 3, 41)
+	// Same shape, other values and text: another unit of the product.
+	second := fixtureUnit(t, 3, 41)
+	second.Serial, second.Product, second.Started = "KP16-00018 <&>", "KU-PANEL-16 & co", "2026-11-04T10:00:00Z"
+	second.Verdict = reduce.VerdictFail
+	for i := range second.Beams {
+		for k := range second.Beams[i].GainDBi {
+			second.Beams[i].GainDBi[k] -= 0.75
+			second.Beams[i].GTdBPerK[k] -= 0.75
+		}
+	}
+	second.Limits[0].WorstMarginDB = -0.4
+	// Another shape with as many beams, points and limits: one beam is
+	// steered elsewhere (its chart's title changes).
+	other := fixtureUnit(t, 3, 41)
+	other.Beams[1].ThetaDeg = 25
+
+	forgetSkeletons()
+	fresh, err := UnitWorkbook(second)
+	if err != nil {
+		t.Fatal(err)
+	}
+	forgetSkeletons()
+	freshOther, err := UnitWorkbook(other)
+	if err != nil {
+		t.Fatal(err)
+	}
+
+	forgetSkeletons()
+	for _, u := range []*reduce.Unit{first, other} {
+		if _, err := UnitWorkbook(u); err != nil {
+			t.Fatal(err)
+		}
+	}
+	skeletons.Lock()
+	made := len(skeletons.m)
+	skeletons.Unlock()
+	if made != 2 {
+		t.Errorf("%d skeletons made for two shapes", made)
+	}
+	kept, err := UnitWorkbook(second)
+	if err != nil {
+		t.Fatal(err)
+	}
+	keptOther, err := UnitWorkbook(other)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(kept, fresh) {
+		t.Errorf("the workbook on a kept skeleton differs from the one on its own (%d and %d bytes)", len(kept), len(fresh))
+	}
+	if !bytes.Equal(keptOther, freshOther) {
+		t.Errorf("the other shape's workbook differs on a kept skeleton")
+	}
+	if bytes.Equal(kept, freshOther) {
+		t.Errorf("two shapes gave the same workbook")
+	}
+	// The kept skeleton's slots hold the second unit's title and date.
+	d := readWorkbook(t, kept)
+	if want := "G/T acceptance workbook, unit " + second.Serial; d.Props.Title != want {
+		t.Errorf("title %q, want %q", d.Props.Title, want)
+	}
+	if d.Props.Created != "2026-11-04T10:00:00" {
+		t.Errorf("created %q, want 2026-11-04T10:00:00", d.Props.Created)
+	}
+	s := d.sheet(t, "Summary")
+	if s.cell(2, 2) != second.Serial || s.cell(7, 2) != reduce.VerdictFail {
+		t.Errorf("Summary B2 %v, B7 %v: the second unit's serial and verdict expected", s.cell(2, 2), s.cell(7, 2))
+	}
+	checkZipTimes(t, kept, startedTime(second.Started))
+}
