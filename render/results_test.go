@@ -189,21 +189,21 @@ func TestEncodeIndentedLayout(t *testing.T) {
 	}
 	want := `{
   "schema": 1,
-  "hz": [10700000000, 10702562500, 12750000000],
+  "hz": [10700000000,10702562500,12750000000],
   "grid": [
-    [1.234568, -0.5],
-    [null, 2]
+    [1.234568,-0.5],
+    [null,2]
   ],
   "present": [
-    [true, false]
+    [true,false]
   ],
   "points": [
     {
       "name": "a",
-      "db": [0.3, 0]
+      "db": [0.3,0]
     }
   ],
-  "counts": [3, 4],
+  "counts": [3,4],
   "names": [
     "x",
     "y"
