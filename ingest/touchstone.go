@@ -1034,16 +1034,14 @@ func (t *tsReader) completeRecord(v []float64) error {
 				m[p] = complex(vals[2*p], vals[2*p+1])
 			}
 		case 'M':
-			for p := range m {
-				m[p] = tsPolar(vals[2*p], vals[2*p+1])
-			}
+			tsPolarPairs(m, vals, false)
 		default:
-			for p := range m {
-				mag, err := t.dbMagnitude(v, p)
-				if err != nil {
-					return err
+			if !tsPolarPairs(m, vals, true) {
+				for p := range m {
+					if _, err := t.dbMagnitude(v, p); err != nil {
+						return err
+					}
 				}
-				m[p] = tsPolar(mag, vals[2*p+1])
 			}
 		}
 		if N == 2 && t.order == "21_12" {
@@ -1096,7 +1094,7 @@ func (t *tsReader) completeRecord(v []float64) error {
 // finite RI and MA values; only a magnitude in dB can overflow.
 func (t *tsReader) dbMagnitude(v []float64, p int) (float64, error) {
 	db := v[1+2*p]
-	mag := math.Exp(db * (math.Ln10 / 20))
+	mag := tsExp10DB(db)
 	if mag > math.MaxFloat64 {
 		return 0, t.errf(t.recStart, "value pair %d of the point at frequency %s: %s dB is too large", p+1, tsFmtNum(v[0]), tsFmtNum(db))
 	}
