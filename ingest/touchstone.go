@@ -91,7 +91,8 @@ func ReadTouchstone(r io.Reader, name string) (*Network, error) {
 
 // tsBuffers is the scratch memory of one read, none of which the result
 // holds: kept in tsBufferPool for the next read, so that reading many files
-// does not allocate (and collect) a 64 KiB buffer each time.
+// does not allocate (and collect) a 256 KiB buffer each time. A quarter
+// of a megabyte takes a typical file in a few reads.
 type tsBuffers struct {
 	br       *bufio.Reader
 	lineVals []float64
@@ -100,7 +101,7 @@ type tsBuffers struct {
 }
 
 var tsBufferPool = sync.Pool{New: func() any {
-	return &tsBuffers{br: bufio.NewReaderSize(nil, 64*1024)}
+	return &tsBuffers{br: bufio.NewReaderSize(nil, 256*1024)}
 }}
 
 type tsReader struct {
@@ -216,6 +217,18 @@ func (t *tsReader) read() (*Network, error) {
 		if t.line == 1 {
 			raw = bytes.TrimPrefix(raw, []byte("\xef\xbb\xbf"))
 		}
+		if t.net != nil && !t.ended && !t.inInfo {
+			// A data line, the common case, is read first as it is: a
+			// comment in it, which the scan cannot take for a number,
+			// is looked for only when the scan stops early.
+			b := tsTrimSpace(raw)
+			if len(b) > 0 && (b[0]-'0' <= 9 || b[0] == '-' || b[0] == '+' || b[0] == '.') {
+				if err := t.data(b, true); err != nil {
+					return nil, err
+				}
+				continue
+			}
+		}
 		if i := bytes.IndexByte(raw, '!'); i >= 0 {
 			raw = raw[:i]
 		}
@@ -246,7 +259,7 @@ func (t *tsReader) read() (*Network, error) {
 				return nil, err
 			}
 		default:
-			if err := t.data(b); err != nil {
+			if err := t.data(b, false); err != nil {
 				return nil, err
 			}
 		}
@@ -857,14 +870,23 @@ func (t *tsReader) describeRecord() string {
 	return fmt.Sprintf("a %d-port frequency point has %d values (the frequency and %d pairs)", t.ports, t.recLen, pairs)
 }
 
-// data takes one line of numbers.
-func (t *tsReader) data(line []byte) error {
+// data takes one line of numbers. mayComment tells that the line may
+// still hold a comment ("!" to the end), to be cut off if the numbers stop
+// before its end.
+func (t *tsReader) data(line []byte, mayComment bool) error {
 	if t.net == nil {
 		if err := t.begin(); err != nil {
 			return err
 		}
 	}
-	b := line
+	vals, bad := tsScanLine(line, t.lineVals[:0])
+	if bad >= 0 && mayComment {
+		if i := bytes.IndexByte(line, '!'); i >= 0 {
+			line = tsTrimSpace(line[:i])
+			vals, bad = tsScanLine(line, vals[:0])
+		}
+	}
+	t.lineVals = vals
 	continuing := len(t.rec) > 0
 	if continuing {
 		t.recLines++
@@ -872,8 +894,6 @@ func (t *tsReader) data(line []byte) error {
 		t.recStart, t.recLines, t.recFirst = t.line, 1, 0
 		t.recByte = t.consumed - int64(len(line))
 	}
-	vals, bad := tsScanLine(b, t.lineVals[:0])
-	t.lineVals = vals
 	rec := t.rec
 	start := 0
 	if len(rec) == 0 && bad < 0 && len(vals) == t.recLen && !t.inNoise {
