@@ -7,5 +7,7 @@ package render
 // Version is the tool's version, written into every output. A build redoes
 // every unit whose state records another version, so it goes up whenever
 // what a unit's files hold changes (0.2.0: result.json, fleet.json and
-// manifest.json schema 2).
-const Version = "0.2.0"
+// manifest.json schema 2; 0.2.1: the same contents in other bytes, the
+// unit workbook made on a kept skeleton and JSON lists without a space
+// after each comma).
+const Version = "0.2.1"
