@@ -7,7 +7,7 @@ import (
 
 // BenchmarkTouchstoneScanLine times the number scanner alone on the data
 // lines of the benchmark files (each line in its own buffer with room
-// after it, as the reader's lines have).
+// after it, the line ending first, as the reader's lines have).
 func BenchmarkTouchstoneScanLine(b *testing.B) {
 	for _, format := range benchFormats {
 		data := benchFile(b, 2000, format)
@@ -16,6 +16,7 @@ func BenchmarkTouchstoneScanLine(b *testing.B) {
 			if len(l) > 0 && l[0] != '!' && l[0] != '#' {
 				buf := make([]byte, len(l), len(l)+64)
 				copy(buf, l)
+				buf[:len(l)+1][len(l)] = '\n'
 				lines = append(lines, buf)
 			}
 		}
