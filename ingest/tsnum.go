@@ -328,30 +328,32 @@ func tsPolar(mag, deg float64) complex128 {
 // test measures it). Beyond 2^1020 either way (about 6140 dB) it is
 // math.Exp's, which handles overflow, underflow and what is not finite.
 func tsExp10DB(db float64) float64 {
-	const (
-		kHi   = 0x1.542a5a12e1c5bp-03  // log2(10)/20 rounded to a float64
-		kLo   = -0x1.33e2bb36cd142p-57 // log2(10)/20 - kHi
-		round = 0x1.8p52               // adding it rounds to an integer
-		c1    = math.Ln2
-		c2    = math.Ln2 * math.Ln2 / 2
-		c3    = math.Ln2 * math.Ln2 * math.Ln2 / 6
-		c4    = math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 / 24
-		c5    = math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 / 120
-		c6    = math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 / 720
-	)
-	x := db * kHi
+	x := db * tsExpKHi
 	if !(math.Abs(x) < 1020) {
 		return math.Exp(db * (math.Ln10 / 20))
 	}
-	e := math.FMA(db, kHi, -x) + db*kLo // x + e is db*log2(10)/20
-	kd := (x*64 + round) - round        // x*64 to the nearest integer
+	e := math.FMA(db, tsExpKHi, -x) + db*tsExpKLo // x + e is db*log2(10)/20
+	kd := (x*64 + tsRound) - tsRound              // x*64 to the nearest integer
 	k := int64(kd)
-	r := (x - kd*(1.0/64)) + e                       // the subtraction is exact
-	p := r * (c1 + r*(c2+r*(c3+r*(c4+r*(c5+r*c6))))) // 2^r - 1
+	r := (x - kd*(1.0/64)) + e                                                     // the subtraction is exact
+	p := r * (tsExpC1 + r*(tsExpC2+r*(tsExpC3+r*(tsExpC4+r*(tsExpC5+r*tsExpC6))))) // 2^r - 1
 	t := &tsExp2Tab[k&63]
 	y := t[0] + (t[0]*p + t[1])
 	return y * math.Float64frombits(uint64(k>>6+1023)<<52)
 }
+
+// The constants of tsExp10DB.
+const (
+	tsExpKHi = 0x1.542a5a12e1c5bp-03  // log2(10)/20 rounded to a float64
+	tsExpKLo = -0x1.33e2bb36cd142p-57 // log2(10)/20 - tsExpKHi
+	tsRound  = 0x1.8p52               // adding it rounds to an integer
+	tsExpC1  = math.Ln2               // Taylor series of 2^r - 1
+	tsExpC2  = math.Ln2 * math.Ln2 / 2
+	tsExpC3  = math.Ln2 * math.Ln2 * math.Ln2 / 6
+	tsExpC4  = math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 / 24
+	tsExpC5  = math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 / 120
+	tsExpC6  = math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 * math.Ln2 / 720
+)
 
 // tsExp2Tab[j] is 2^(j/64) as the float64 nearest to it and the
 // difference to the exact value (computed with math/big; the test checks
@@ -446,8 +448,17 @@ func tsPolarPairs(m []complex128, vals []float64, db bool) bool {
 	for p := range m {
 		mag, deg := vals[2*p], vals[2*p+1]
 		if db {
-			mag = tsExp10DB(mag)
-			if mag > math.MaxFloat64 {
+			// tsExp10DB written out (the call costs as much as the rest).
+			x := mag * tsExpKHi
+			if math.Abs(x) < 1020 {
+				e := math.FMA(mag, tsExpKHi, -x) + mag*tsExpKLo
+				kd := (x*64 + tsRound) - tsRound
+				k := int64(kd)
+				r := (x - kd*(1.0/64)) + e
+				p := r * (tsExpC1 + r*(tsExpC2+r*(tsExpC3+r*(tsExpC4+r*(tsExpC5+r*tsExpC6)))))
+				t := &tsExp2Tab[k&63]
+				mag = (t[0] + (t[0]*p + t[1])) * math.Float64frombits(uint64(k>>6+1023)<<52)
+			} else if mag = tsExp10DB(mag); mag > math.MaxFloat64 {
 				return false
 			}
 		}
@@ -460,8 +471,7 @@ func tsPolarPairs(m []complex128, vals []float64, db bool) bool {
 			deg = math.Remainder(deg, 360) // exact
 			t = deg * (256.0 / 90)
 		}
-		const round = 0x1.8p52 // adding it rounds to an integer
-		kf := (t + round) - round
+		kf := (t + tsRound) - tsRound
 		k := int64(kf)
 		r := (deg - kf*(90.0/256)) * (math.Pi / 180) // the subtraction is exact
 		r2 := r * r
