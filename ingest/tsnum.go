@@ -335,8 +335,10 @@ func tsExp10DB(db float64) float64 {
 	e := math.FMA(db, tsExpKHi, -x) + db*tsExpKLo // x + e is db*log2(10)/20
 	kd := (x*64 + tsRound) - tsRound              // x*64 to the nearest integer
 	k := int64(kd)
-	r := (x - kd*(1.0/64)) + e                                                     // the subtraction is exact
-	p := r * (tsExpC1 + r*(tsExpC2+r*(tsExpC3+r*(tsExpC4+r*(tsExpC5+r*tsExpC6))))) // 2^r - 1
+	r := (x - kd*(1.0/64)) + e // the subtraction is exact
+	// 2^r - 1, the terms grouped to shorten the chain of operations.
+	r2 := r * r
+	p := r*(tsExpC1+r*tsExpC2) + r2*r*((tsExpC3+r*tsExpC4)+r2*(tsExpC5+r*tsExpC6))
 	t := &tsExp2Tab[k&63]
 	y := t[0] + (t[0]*p + t[1])
 	return y * math.Float64frombits(uint64(k>>6+1023)<<52)
@@ -455,7 +457,8 @@ func tsPolarPairs(m []complex128, vals []float64, db bool) bool {
 				kd := (x*64 + tsRound) - tsRound
 				k := int64(kd)
 				r := (x - kd*(1.0/64)) + e
-				p := r * (tsExpC1 + r*(tsExpC2+r*(tsExpC3+r*(tsExpC4+r*(tsExpC5+r*tsExpC6)))))
+				r2 := r * r
+				p := r*(tsExpC1+r*tsExpC2) + r2*r*((tsExpC3+r*tsExpC4)+r2*(tsExpC5+r*tsExpC6))
 				t := &tsExp2Tab[k&63]
 				mag = (t[0] + (t[0]*p + t[1])) * math.Float64frombits(uint64(k>>6+1023)<<52)
 			} else if mag = tsExp10DB(mag); mag > math.MaxFloat64 {
