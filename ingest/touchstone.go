@@ -148,6 +148,8 @@ type tsReader struct {
 	net      *Network
 	dataLine int          // line of the first network data
 	fmt      byte         // t.format's first letter once the data begins
+	full     bool         // t.matrix is "full", once the data begins
+	swap21   bool         // a 2-port file in the order 21_12, once the data begins
 	pairs    []complex128 // the values of one point as complex numbers
 	lineVals []float64    // the numbers of the current line
 	ws       []complex128 // scratch matrices for conversion
@@ -838,6 +840,8 @@ func (t *tsReader) begin() error {
 	}
 	t.net, t.dataLine = n, t.line
 	t.fmt = t.format[0]
+	t.full = t.matrix == "full"
+	t.swap21 = t.ports == 2 && t.order == "21_12"
 	np := t.ports * t.ports
 	if t.matrix != "full" {
 		np = t.ports * (t.ports + 1) / 2
@@ -1042,10 +1046,13 @@ func (t *tsReader) completeRecord(v []float64) error {
 	n.FrequencyHz = append(n.FrequencyHz, v[0]*t.unit)
 	base := len(n.S)
 	// Every element of the new matrix is written below.
-	n.S = slices.Grow(n.S, N*N)[:base+N*N]
+	if cap(n.S)-base < N*N {
+		n.S = slices.Grow(n.S, N*N)
+	}
+	n.S = n.S[:base+N*N]
 	m := n.S[base:]
 	vals := v[1:]
-	if t.matrix == "full" {
+	if t.full {
 		// Each pair straight to its place in the matrix, row by row.
 		m = m[:len(vals)/2]
 		switch t.fmt {
@@ -1064,7 +1071,7 @@ func (t *tsReader) completeRecord(v []float64) error {
 				}
 			}
 		}
-		if N == 2 && t.order == "21_12" {
+		if t.swap21 {
 			// The 2-port order S11 S21 S12 S22.
 			m[1], m[2] = m[2], m[1]
 		}
