@@ -1081,18 +1081,20 @@ func (t *tsReader) completeRecord(v []float64) error {
 			t.pairs = make([]complex128, np)
 		}
 		pairs := t.pairs[:np]
-		for p := range pairs {
-			switch t.fmt {
-			case 'R':
+		switch t.fmt {
+		case 'R':
+			for p := range pairs {
 				pairs[p] = complex(vals[2*p], vals[2*p+1])
-			case 'M':
-				pairs[p] = tsPolar(vals[2*p], vals[2*p+1])
-			default:
-				mag, err := t.dbMagnitude(v, p)
-				if err != nil {
-					return err
+			}
+		case 'M':
+			tsPolarPairs(pairs, vals, false)
+		default:
+			if !tsPolarPairs(pairs, vals, true) {
+				for p := range pairs {
+					if _, err := t.dbMagnitude(v, p); err != nil {
+						return err
+					}
 				}
-				pairs[p] = tsPolar(mag, vals[2*p+1])
 			}
 		}
 		p := 0
