@@ -1055,21 +1055,8 @@ func (t *tsReader) completeRecord(v []float64) error {
 	if t.full {
 		// Each pair straight to its place in the matrix, row by row.
 		m = m[:len(vals)/2]
-		switch t.fmt {
-		case 'R':
-			for p := range m {
-				m[p] = complex(vals[2*p], vals[2*p+1])
-			}
-		case 'M':
-			tsPolarPairs(m, vals, false)
-		default:
-			if !tsPolarPairs(m, vals, true) {
-				for p := range m {
-					if _, err := t.dbMagnitude(v, p); err != nil {
-						return err
-					}
-				}
-			}
+		if err := t.pairsToComplex(m, vals, v); err != nil {
+			return err
 		}
 		if t.swap21 {
 			// The 2-port order S11 S21 S12 S22.
@@ -1081,21 +1068,8 @@ func (t *tsReader) completeRecord(v []float64) error {
 			t.pairs = make([]complex128, np)
 		}
 		pairs := t.pairs[:np]
-		switch t.fmt {
-		case 'R':
-			for p := range pairs {
-				pairs[p] = complex(vals[2*p], vals[2*p+1])
-			}
-		case 'M':
-			tsPolarPairs(pairs, vals, false)
-		default:
-			if !tsPolarPairs(pairs, vals, true) {
-				for p := range pairs {
-					if _, err := t.dbMagnitude(v, p); err != nil {
-						return err
-					}
-				}
-			}
+		if err := t.pairsToComplex(pairs, vals, v); err != nil {
+			return err
 		}
 		p := 0
 		for i := 0; i < N; i++ {
@@ -1113,6 +1087,29 @@ func (t *tsReader) completeRecord(v []float64) error {
 	if t.param != 'S' {
 		if err := t.toS(m); err != nil {
 			return t.errf(t.recStart, "%c-parameters at frequency %s: %v", t.param, tsFmtNum(v[0]), err)
+		}
+	}
+	return nil
+}
+
+// pairsToComplex converts the pairs of vals (the numbers of record v after
+// its frequency) into dst in the file's format. An error is a magnitude in
+// dB too large for a float64, named with its record.
+func (t *tsReader) pairsToComplex(dst []complex128, vals, v []float64) error {
+	switch t.fmt {
+	case 'R':
+		for p := range dst {
+			dst[p] = complex(vals[2*p], vals[2*p+1])
+		}
+	case 'M':
+		tsPolarPairs(dst, vals, false)
+	default:
+		if !tsPolarPairs(dst, vals, true) {
+			for p := range dst {
+				if _, err := t.dbMagnitude(v, p); err != nil {
+					return err
+				}
+			}
 		}
 	}
 	return nil
