@@ -223,7 +223,8 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 		c.AddSeries("U band (k = 2)", nil, charts.WithSeriesId("band-w"),
 			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false), Stack: "uband"}),
 			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}),
-			charts.WithAreaStyleOpts(opts.AreaStyle{Color: "rgba(27,79,114,0.18)", Opacity: opts.Float(1)}))
+			charts.WithItemStyleOpts(opts.ItemStyle{Color: "rgba(27,79,114,0.45)"}),
+			charts.WithAreaStyleOpts(opts.AreaStyle{Color: "rgba(27,79,114,0.28)", Opacity: opts.Float(1)}))
 	}
 	for i := 0; i < maxLimits; i++ {
 		c.AddSeries(fmt.Sprintf("limit %d", i+1), nil, charts.WithSeriesId(fmt.Sprintf("limit-%d", i)),

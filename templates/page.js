@@ -120,7 +120,8 @@
       lo.push([r[0], ok ? y - u : null]);
       w.push([r[0], ok ? 2 * u : null]);
     });
-    var series = [{ id: 'band-lo', data: lo }, { id: 'band-w', data: w }];
+    // The band above the dimmed beams (z 2) and below the beam in focus (z 5).
+    var series = [{ id: 'band-lo', data: lo, z: 4 }, { id: 'band-w', data: w, z: 4 }];
     for (var i = 0; i < g.limitSeries; i++) {
       var l = fb.limits[i];
       series.push({ id: 'limit-' + i, name: l ? l.name : ' ', data: l ? l.data : [], showSymbol: !!(l && l.point), symbolSize: 10 });
