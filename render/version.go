@@ -8,6 +8,6 @@ package render
 // every unit whose state records another version, so it goes up whenever
 // what a unit's files hold changes (0.2.0: result.json, fleet.json and
 // manifest.json schema 2; 0.2.1: the same contents in other bytes, the
-// unit workbook made on a kept skeleton and JSON lists without a space
-// after each comma).
+// unit workbook made on a kept skeleton, JSON lists without a space
+// after each comma, and the report's U band drawn where it can be seen).
 const Version = "0.2.1"
