@@ -27,10 +27,11 @@ import (
 // never on a measured value, so it is made once per shape and kept. Each
 // unit then adds its cells, written straight into the skeleton's sheets
 // (xlsxrows.go), fills the slots, and copies the skeleton's other parts
-// already compressed. excelize's share of a unit workbook (some 10 ms of
-// a 34 ms workbook of 16 beams of 801 points, most of it its charts) is so
-// paid once per shape instead of once per unit; the bytes of a workbook
-// do not depend on whether its skeleton was made for it or kept.
+// already compressed. excelize's share of a unit workbook, most of it its
+// charts, is so paid once per shape instead of once per unit (a workbook
+// of 16 beams of 801 points went from 42-49 ms to 28-29 ms); the bytes of
+// a workbook do not depend on whether its skeleton was made for it or
+// kept.
 
 // unitShape is everything of a unit that its workbook's skeleton depends
 // on.
