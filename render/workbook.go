@@ -509,17 +509,8 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 	return sk.write(b.bulk, "G/T acceptance workbook, unit "+u.Serial, "Unit "+u.Serial+", product "+u.Product, startedTime(u.Started))
 }
 
-// summaryLabels are the labels of the key/value rows of the Summary sheet,
-// from row 2; summaryValues are their values.
-var summaryLabels = []string{
-	"Unit", "Product", "Specification", "Run", "Started", "Verdict", "Decision rule", "Station", "Reference",
-	"Reference certificate", "Reference calibrated", "Reference due", "Operator", "Ambient (°C)", "Firmware", "Tool version",
-}
-
-// summaryVerdictRow is the Summary row of the unit's verdict.
-const summaryVerdictRow = 2 + 5
-
-func summaryValues(u *reduce.Unit) []any {
+// summaryFields are the key/value rows of the Summary sheet, from row 2.
+func summaryFields(u *reduce.Unit) [][2]any {
 	ref := u.Reference
 	refText := ref.ID
 	if ref.Description != "" {
@@ -533,10 +524,36 @@ func summaryValues(u *reduce.Unit) []any {
 	if u.Station.Description != "" {
 		station += " - " + u.Station.Description
 	}
-	return []any{
-		u.Serial, u.Product, u.SpecTitle, u.Run, u.Started, u.Verdict, u.DecisionRule, station, refText,
-		ref.Certificate, ref.Calibrated, due, u.Operator, u.AmbientC, u.Firmware, "gtpack " + Version,
+	return [][2]any{
+		{"Unit", u.Serial},
+		{"Product", u.Product},
+		{"Specification", u.SpecTitle},
+		{"Run", u.Run},
+		{"Started", u.Started},
+		{"Verdict", u.Verdict},
+		{"Decision rule", u.DecisionRule},
+		{"Station", station},
+		{"Reference", refText},
+		{"Reference certificate", ref.Certificate},
+		{"Reference calibrated", ref.Calibrated},
+		{"Reference due", due},
+		{"Operator", u.Operator},
+		{"Ambient (°C)", u.AmbientC},
+		{"Firmware", u.Firmware},
+		{"Tool version", "gtpack " + Version},
 	}
+}
+
+// summaryLayout gives the Summary rows that do not depend on a unit's
+// values: the verdict's, and the header of its limits table.
+func summaryLayout() (verdictRow, limitsHeader int) {
+	fields := summaryFields(&reduce.Unit{})
+	for i, kv := range fields {
+		if kv[0] == "Verdict" {
+			verdictRow = 2 + i
+		}
+	}
+	return verdictRow, 2 + len(fields) + 2
 }
 
 // The Summary sheet: its title in row 1, the key/value rows, a blank row,
@@ -544,7 +561,7 @@ func summaryValues(u *reduce.Unit) []any {
 // and rows. summaryRows gives the rows of the Limits header and of the
 // Beams header for a number of limits.
 func summaryRows(limits int) (limitsHeader, beamsHeader int) {
-	limitsHeader = 2 + len(summaryLabels) + 2
+	_, limitsHeader = summaryLayout()
 	return limitsHeader, limitsHeader + limits + 3
 }
 
@@ -560,7 +577,8 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 	b.check(b.f.SetColWidth(sheet, "A", "A", 26))
 	b.check(b.f.SetColWidth(sheet, "B", "B", 34))
 	b.check(b.f.SetColWidth(sheet, "C", "F", 14))
-	b.verdictRules(sheet, xlCell(2, summaryVerdictRow))
+	verdictRow, _ := summaryLayout()
+	b.verdictRules(sheet, xlCell(2, verdictRow))
 	limitsHeader, beamsHeader := summaryRows(s.limits)
 	if s.limits > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", limitsHeader+1, limitsHeader+s.limits))
@@ -582,9 +600,9 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) {
 	t := &bulkSheet{first: 1, width: len(summaryBeamColumns)}
 	t.rows = append(t.rows, []bulkCell{textCell("G/T acceptance workbook", b.title)})
-	for i, v := range summaryValues(u) {
-		row := []bulkCell{textCell(summaryLabels[i], b.header), {}}
-		switch x := v.(type) {
+	for _, kv := range summaryFields(u) {
+		row := []bulkCell{textCell(kv[0].(string), b.header), {}}
+		switch x := kv[1].(type) {
 		case float64:
 			row[1] = numCell(x, b.numStyle(nfTemp))
 		case string:

@@ -269,8 +269,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 
 	t.Run("summary", func(t *testing.T) {
 		s := d.sheet(t, "Summary")
-		for i, v := range summaryValues(ru) {
-			kv := [2]any{summaryLabels[i], v}
+		for i, kv := range summaryFields(ru) {
 			r := i + 2
 			if s.cell(r, 1) != kv[0] {
 				t.Errorf("A%d = %v, want %v", r, s.cell(r, 1), kv[0])
