@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"hash/crc32"
 	"io"
-	"io/fs"
 	"sort"
 	"strconv"
 	"sync"
@@ -212,7 +211,9 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	if err := b.f.Close(); err != nil {
 		return nil, err
 	}
-	sort.SliceStable(c.entries, func(i, j int) bool { return c.entries[i].name < c.entries[j].name })
+	if err := c.sorted(); err != nil {
+		return nil, err
+	}
 	var err error
 	if sk.sheetPart, err = sheetParts(c.entries); err != nil {
 		return nil, err
@@ -224,10 +225,7 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	// The shared parts are compressed once, at the best level.
 	var z bytes.Buffer
 	d, _ := flate.NewWriter(&z, flate.BestCompression) // a valid level never fails
-	for i, e := range c.entries {
-		if i > 0 && e.name == c.entries[i-1].name {
-			return nil, fmt.Errorf("render: workbook part %s written twice", e.name)
-		}
+	for _, e := range c.entries {
 		data := e.data.Bytes()
 		p := skeletonPart{name: e.name}
 		if sheets[e.name] || e.name == corePart {
@@ -256,17 +254,7 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 
 // partCollector is the zip writer given to excelize for a skeleton: it
 // keeps the parts.
-type partCollector struct{ entries []*zipEntry }
-
-func (c *partCollector) Create(name string) (io.Writer, error) {
-	e := &zipEntry{name: name}
-	c.entries = append(c.entries, e)
-	return &e.data, nil
-}
-
-func (c *partCollector) AddFS(fs.FS) error {
-	return fmt.Errorf("render: adding a file system to a workbook is not supported")
-}
+type partCollector struct{ zipParts }
 
 func (c *partCollector) Close() error { return nil }
 

@@ -82,9 +82,9 @@ type xlBook struct {
 // excelize writes some parts in map order, and archive/zip would otherwise
 // leave the time to the caller.
 type sortedZip struct {
+	zipParts
 	w        *zip.Writer
 	modified time.Time
-	entries  []*zipEntry
 	book     *xlBook
 }
 
@@ -93,14 +93,29 @@ type zipEntry struct {
 	data bytes.Buffer
 }
 
-func (z *sortedZip) Create(name string) (io.Writer, error) {
+// zipParts keeps the parts excelize creates, in memory, in the order
+// created.
+type zipParts struct{ entries []*zipEntry }
+
+func (z *zipParts) Create(name string) (io.Writer, error) {
 	e := &zipEntry{name: name}
 	z.entries = append(z.entries, e)
 	return &e.data, nil
 }
 
-func (z *sortedZip) AddFS(fs.FS) error {
+func (z *zipParts) AddFS(fs.FS) error {
 	return errors.New("render: adding a file system to a workbook is not supported")
+}
+
+// sorted sorts the parts by name and refuses a name written twice.
+func (z *zipParts) sorted() error {
+	sort.SliceStable(z.entries, func(i, j int) bool { return z.entries[i].name < z.entries[j].name })
+	for i := 1; i < len(z.entries); i++ {
+		if z.entries[i].name == z.entries[i-1].name {
+			return fmt.Errorf("render: workbook part %s written twice", z.entries[i].name)
+		}
+	}
+	return nil
 }
 
 // deflaters holds compressors between workbooks: a new one costs more to
@@ -127,15 +142,14 @@ func (z *sortedZip) Close() error {
 		d.Reset(out)
 		return reusedDeflater{d}, nil
 	})
-	sort.SliceStable(z.entries, func(i, j int) bool { return z.entries[i].name < z.entries[j].name })
+	if err := z.sorted(); err != nil {
+		return err
+	}
 	parts, err := bulkParts(z.book.bulk, z.entries)
 	if err != nil {
 		return err
 	}
-	for i, e := range z.entries {
-		if i > 0 && e.name == z.entries[i-1].name {
-			return fmt.Errorf("render: workbook part %s written twice", e.name)
-		}
+	for _, e := range z.entries {
 		method := zip.Deflate
 		if e.data.Len() < 512 && parts[e.name] == nil {
 			method = zip.Store // relationship parts and the like: not worth a compressor's start
