@@ -1,6 +1,7 @@
 package render
 
 import (
+	"encoding/binary"
 	"math"
 	"slices"
 	"strconv"
@@ -39,6 +40,9 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 	neg := n < 0
 	if neg {
 		n = -n
+	}
+	if (decimals == 6 && n < 1e9) || (decimals == 3 && n < 1e6) {
+		return appendSmallDecimal(b, uint64(n), neg, decimals)
 	}
 	// Division by a constant is a multiplication; by a variable it is
 	// one of the slowest instructions.
@@ -87,6 +91,67 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 	}
 	return b[:at+i]
 }
+
+// appendSmallDecimal is appendDecimal's common case: n > 0 units of the
+// last of 6 (or 3) decimals, with a whole part below 1000. Each group of
+// three digits is one table entry, stored four bytes at a time (the fourth
+// is overwritten or cut off), and the trailing zeros of the fraction come
+// from a table too.
+func appendSmallDecimal(b []byte, n uint64, neg bool, decimals int) []byte {
+	if cap(b)-len(b) < 24 {
+		b = slices.Grow(b, 24)
+	}
+	at := len(b)
+	d := b[at : at+24]
+	i := 0
+	if neg {
+		d[0] = '-'
+		i = 1
+	}
+	var whole, hi, lo uint64
+	if decimals == 6 {
+		whole, hi, lo = n/1e6, n/1e3%1e3, n%1e3
+	} else {
+		whole, lo = n/1e3, n%1e3
+	}
+	w := 1
+	if whole >= 10 {
+		w++
+	}
+	if whole >= 100 {
+		w++
+	}
+	binary.LittleEndian.PutUint32(d[i:], digits3[whole]>>(8*(3-w)))
+	i += w
+	switch {
+	case decimals == 6 && lo != 0:
+		d[i] = '.'
+		binary.LittleEndian.PutUint32(d[i+1:], digits3[hi])
+		binary.LittleEndian.PutUint32(d[i+4:], digits3[lo])
+		i += 7 - int(zeros3[lo])
+	case decimals == 6 && hi != 0:
+		d[i] = '.'
+		binary.LittleEndian.PutUint32(d[i+1:], digits3[hi])
+		i += 4 - int(zeros3[hi])
+	case decimals == 3 && lo != 0:
+		d[i] = '.'
+		binary.LittleEndian.PutUint32(d[i+1:], digits3[lo])
+		i += 4 - int(zeros3[lo])
+	}
+	return b[:at+i]
+}
+
+// digits3[x] holds the three decimal digits of x (below 1000) in its low
+// three bytes, first digit lowest; zeros3[x] counts their trailing zeros.
+var digits3, zeros3 = func() (d [1000]uint32, z [1000]uint8) {
+	for x := range d {
+		d[x] = uint32('0'+x/100) | uint32('0'+x/10%10)<<8 | uint32('0'+x%10)<<16
+		for y := x; z[x] < 3 && y%10 == 0; y /= 10 {
+			z[x]++
+		}
+	}
+	return
+}()
 
 // wholePow10 holds 10^0 to 10^15.
 var wholePow10 = [16]int64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}

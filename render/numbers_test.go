@@ -68,3 +68,21 @@ func TestAppendUint(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkAppendJSONFloat formats values of the magnitudes of a unit's
+// results (dB, dB/K, kelvin) as result.json and the workbook write them.
+func BenchmarkAppendJSONFloat(b *testing.B) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	vals := make([]float64, 4096)
+	for i := range vals {
+		vals[i] = (rng.Float64()*2 - 1) * math.Pow(10, float64(rng.IntN(4)-1))
+	}
+	buf := make([]byte, 0, 64<<10)
+	for b.Loop() {
+		buf = buf[:0]
+		for _, v := range vals {
+			buf = appendJSONFloat(buf, v)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(vals)), "ns/value")
+}
