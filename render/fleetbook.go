@@ -200,7 +200,7 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 					series = append(series, chartSeries{name: xlRef(sheet, col, 1, 1), values: xlRef(sheet, col, first, r-1), dash: col > 6})
 				}
 				b.lineChart(sheet, xlCell(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin in test order", p.Product, l.Name),
-					"Test order", "Worst margin (dB)", xlRef(sheet, 3, first, r-1), series)
+					"Test order", "Worst margin (dB)", xlRef(sheet, 3, first, r-1), chartX{points: r - first}, series)
 				charts++
 			}
 		}
@@ -263,7 +263,8 @@ func writeBand(b *xlBook, sheet string, f *reduce.Fleet) {
 			{name: xlRef(sheet, 5, 1, 1), values: xlRef(sheet, 5, first, r-1), dash: true},
 		}
 		b.lineChart(sheet, xlCell(8, 2+charts*22), fmt.Sprintf("%s: boresight G/T band over %d units", p.Product, g.Units),
-			"Frequency (GHz)", "G/T (dB/K)", xlRef(sheet, 2, first, r-1), series)
+			"Frequency (GHz)", "G/T (dB/K)", xlRef(sheet, 2, first, r-1), chartX{points: r - first, numeric: true,
+				min: bandEdge(g.FrequencyHz, false), max: bandEdge(g.FrequencyHz, true)}, series)
 		charts++
 	}
 }

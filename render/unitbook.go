@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"hash/crc32"
 	"io"
+	"math"
 	"sort"
 	"strconv"
 	"sync"
@@ -45,8 +46,36 @@ type beamShape struct {
 	id         string
 	theta, phi float64
 	n          int        // frequency points
+	lo, hi     float64    // the frequency axis, GHz: the band rounded out to 0.1 GHz
 	cols       []xlColumn // the frequency table's columns
 	firstGrid  bool       // on the first beam's grid: a series of the Summary chart
+}
+
+// axis is the frequency axis of the beam's charts.
+func (bm *beamShape) axis() chartX {
+	return chartX{points: bm.n, numeric: true, min: bm.lo, max: bm.hi}
+}
+
+// bandEdge is the first (or, when last, the last) finite frequency of an
+// ascending grid in GHz, rounded outwards to 0.1 GHz; 0 when there is
+// none. Rounded, it is the same for units whose grids differ a little, so
+// that they share a skeleton.
+func bandEdge(hz []float64, last bool) float64 {
+	for k := range hz {
+		f := hz[k]
+		if last {
+			f = hz[len(hz)-1-k]
+		}
+		switch {
+		case math.IsNaN(f) || math.IsInf(f, 0):
+			continue
+		case last:
+			return math.Ceil(f/1e8) / 10
+		default:
+			return math.Floor(f/1e8) / 10
+		}
+	}
+	return 0
 }
 
 // key is the shape as text, every field in full.
@@ -62,6 +91,8 @@ func (s *unitShape) key() string {
 		b = append(b, ' ')
 		b = strconv.AppendInt(b, int64(bm.n), 10)
 		b = strconv.AppendBool(append(b, ' '), bm.firstGrid)
+		b = strconv.AppendFloat(append(b, ' '), bm.lo, 'g', -1, 64)
+		b = strconv.AppendFloat(append(b, ' '), bm.hi, 'g', -1, 64)
 		for _, c := range bm.cols {
 			b = append(b, ' ')
 			b = strconv.AppendQuote(b, c.header)
@@ -226,7 +257,7 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	var z bytes.Buffer
 	d, _ := flate.NewWriter(&z, flate.BestCompression) // a valid level never fails
 	for _, e := range c.entries {
-		data := e.data.Bytes()
+		data := numericXValues(e.name, e.data.Bytes())
 		p := skeletonPart{name: e.name}
 		if sheets[e.name] || e.name == corePart {
 			p.xml = data

@@ -2,6 +2,7 @@ package render
 
 import (
 	"bytes"
+	"math"
 	"testing"
 
 	"gtpack.example/gtpack/reduce"
@@ -88,4 +89,24 @@ func TestUnitWorkbookKeptSkeleton(t *testing.T) {
 		t.Errorf("Summary B2 %v, B7 %v: the second unit's serial and verdict expected", s.cell(2, 2), s.cell(7, 2))
 	}
 	checkZipTimes(t, kept, startedTime(second.Started))
+}
+
+// bandEdge rounds the band outwards to 0.1 GHz and passes over
+// frequencies that are not finite.
+func TestBandEdge(t *testing.T) {
+	nan := math.NaN()
+	for _, c := range []struct {
+		hz       []float64
+		lo, hi   float64
+		describe string
+	}{
+		{[]float64{10.7e9, 11e9, 12.75e9}, 10.7, 12.8, "a Ku-band grid"},
+		{[]float64{nan, 10.75e9, 12.7e9, math.Inf(1)}, 10.7, 12.7, "ends not finite"},
+		{[]float64{nan}, 0, 0, "nothing finite"},
+		{nil, 0, 0, "no grid"},
+	} {
+		if lo, hi := bandEdge(c.hz, false), bandEdge(c.hz, true); math.Abs(lo-c.lo) > 1e-12 || math.Abs(hi-c.hi) > 1e-12 {
+			t.Errorf("%s: %v to %v, want %v to %v", c.describe, lo, hi, c.lo, c.hi)
+		}
+	}
 }

@@ -161,7 +161,7 @@ func (z *sortedZip) Close() error {
 		if t := parts[e.name]; t != nil {
 			err = writeBulkSheet(w, e.data.Bytes(), t)
 		} else {
-			_, err = w.Write(e.data.Bytes())
+			_, err = w.Write(numericXValues(e.name, e.data.Bytes()))
 		}
 		if err != nil {
 			return err
@@ -169,6 +169,18 @@ func (z *sortedZip) Close() error {
 	}
 	z.entries = nil
 	return z.w.Close()
+}
+
+// numericXValues makes the x values of the XY series of a chart part
+// numbers: excelize refers to them as text (strRef), which a spreadsheet
+// may plot as 1, 2, 3 instead of the frequencies. Other parts are returned
+// as they are.
+func numericXValues(name string, part []byte) []byte {
+	if !strings.HasPrefix(name, "xl/charts/chart") || !bytes.Contains(part, []byte("<xVal><strRef>")) {
+		return part
+	}
+	part = bytes.ReplaceAll(part, []byte("<xVal><strRef>"), []byte("<xVal><numRef>"))
+	return bytes.ReplaceAll(part, []byte("</strRef></xVal>"), []byte("</numRef></xVal>"))
 }
 
 // newXLBook starts a workbook with the fleet workbook's description.
@@ -415,9 +427,20 @@ type chartSeries struct {
 	dash         bool
 }
 
-// lineChart adds a native line chart of series over the categories range
-// at cell.
-func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string, series []chartSeries) {
+// chartX is the horizontal axis of a chart: categories (points of them),
+// or, when numeric, values (frequencies) on an axis from min to max.
+type chartX struct {
+	points   int
+	numeric  bool
+	min, max float64
+}
+
+// lineChart adds a native chart of series, drawn as lines without
+// markers, over the categories range at cell. On a numeric axis it is an
+// XY chart, so that the axis is labelled at round values whatever the
+// number of points; on a category axis about eight labels are shown. The
+// labels stand below the plot, not where the value axis crosses zero.
+func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string, x chartX, series []chartSeries) {
 	if len(series) == 0 {
 		return
 	}
@@ -428,15 +451,27 @@ func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string
 		Legend:       excelize.ChartLegend{Position: "bottom"},
 		ShowBlanksAs: "gap",
 		XAxis: excelize.ChartAxis{
-			Title:         excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: xTitle}}},
-			NumFmt:        excelize.ChartNumFmt{CustomNumFmt: "0.00"},
-			TickLabelSkip: 0,
+			Title:             excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: xTitle}}},
+			NumFmt:            excelize.ChartNumFmt{CustomNumFmt: "0.00"},
+			TickLabelPosition: excelize.ChartTickLabelLow,
+			TickLabelSkip:     max(1, x.points/8),
 		},
 		YAxis: excelize.ChartAxis{
 			Title:          excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: yTitle}}},
 			MajorGridLines: true,
 			NumFmt:         excelize.ChartNumFmt{CustomNumFmt: "0.0"},
+			// The frequency labels below the plot on an XY chart too.
+			TickLabelPosition: excelize.ChartTickLabelLow,
 		},
+	}
+	if x.numeric {
+		c.Type = excelize.Scatter
+		c.XAxis.TickLabelSkip = 0
+		c.XAxis.NumFmt.CustomNumFmt = "0.0"
+		c.XAxis.MajorGridLines = true
+		if x.max > x.min {
+			c.XAxis.Minimum, c.XAxis.Maximum = &x.min, &x.max
+		}
 	}
 	for _, s := range series {
 		cs := excelize.ChartSeries{
@@ -446,6 +481,9 @@ func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string
 		}
 		if s.dash {
 			cs.Line.Dash = excelize.LineDashDash
+		}
+		if x.numeric {
+			cs.Line.Type = excelize.LineSolid // an XY series has no line unless asked
 		}
 		c.Series = append(c.Series, cs)
 	}
@@ -498,6 +536,7 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 		bm := &u.Beams[i]
 		cols[i] = beamColumns(bm, u.Limits)
 		bs := beamShape{id: bm.ID, theta: bm.ThetaDeg, phi: bm.PhiDeg, n: len(bm.FrequencyHz),
+			lo: bandEdge(bm.FrequencyHz, false), hi: bandEdge(bm.FrequencyHz, true),
 			firstGrid: sameGrid(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]xlColumn, len(cols[i]))}
 		for j, c := range cols[i] {
 			bs.cols[j] = c.xlColumn
@@ -606,7 +645,7 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 	}
 	if len(series) > 0 {
 		b.lineChart(sheet, "H2", "G/T of the beams", "Frequency (GHz)", "G/T (dB/K)",
-			xlRef(beamSheets[0], 1, 2, s.beams[0].n+1), series)
+			xlRef(beamSheets[0], 1, 2, s.beams[0].n+1), s.beams[0].axis(), series)
 	}
 }
 
@@ -732,7 +771,7 @@ func beamSheetFrame(b *xlBook, sheet string, bm *beamShape) string {
 			}
 		}
 		title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.id, bm.theta, bm.phi)
-		b.lineChart(sheet, xlCell(len(bm.cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, series)
+		b.lineChart(sheet, xlCell(len(bm.cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, bm.axis(), series)
 		gt = series[0].values
 	}
 	b.check(b.f.SetPanes(sheet, &excelize.Panes{

@@ -44,12 +44,17 @@ for ws in wb.worksheets:
         ser = []
         for s in ch.series:
             tx = s.tx.strRef.f if s.tx is not None and s.tx.strRef is not None else None
-            val = s.val.numRef.f if s.val is not None and s.val.numRef is not None else None
+            # An XY chart's series has x and y values where a line chart's
+            # has categories and values.
+            v, c = (s.yVal, s.xVal) if type(ch).__name__ == "ScatterChart" else (s.val, s.cat)
+            val = v.numRef.f if v is not None and v.numRef is not None else None
             cat = None
-            if s.cat is not None:
-                cat = s.cat.numRef.f if s.cat.numRef is not None else (s.cat.strRef.f if s.cat.strRef is not None else None)
-            ser.append({"tx": tx, "val": val, "cat": cat})
-        charts.append({"type": type(ch).__name__, "series": ser})
+            if c is not None:
+                cat = c.numRef.f if c.numRef is not None else (c.strRef.f if c.strRef is not None else None)
+            ser.append({"tx": tx, "val": val, "cat": cat, "catnum": c is not None and c.numRef is not None})
+        x = ch.x_axis
+        charts.append({"type": type(ch).__name__, "series": ser,
+            "xmin": x.scaling.min, "xmax": x.scaling.max, "xlabels": x.tickLblPos})
     cfs = []
     for cf in ws.conditional_formatting:
         rules = []
@@ -80,7 +85,12 @@ type xlDumpSheet struct {
 	Formats [][]string
 	Charts  []struct {
 		Type   string
-		Series []struct{ Tx, Val, Cat string }
+		Series []struct {
+			Tx, Val, Cat string
+			CatNum       bool // the categories (x values) are referred to as numbers
+		}
+		XMin, XMax *float64 // the horizontal axis's fixed ends, if any
+		XLabels    string   // where its labels stand
 	}
 	Freeze *string
 	Widths [][3]float64 // min and max column, width
@@ -301,7 +311,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 				}
 			}
 		}
-		if len(s.Charts) != 1 || s.Charts[0].Type != "LineChart" || len(s.Charts[0].Series) != len(u.Beams) {
+		if len(s.Charts) != 1 || s.Charts[0].Type != "ScatterChart" || len(s.Charts[0].Series) != len(u.Beams) {
 			t.Fatalf("Summary charts %+v, want one line chart of %d series", s.Charts, len(u.Beams))
 		}
 		if s.Charts[0].Series[4].Val != "'Beam a_very_long_beam(identifie'!$G$2:$G$402" {
@@ -522,8 +532,14 @@ func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm, rb *reduce.Beam) {
 			t.Errorf("column %d (%s) width %v, want %v", ci+1, c.header, w, c.width)
 		}
 	}
-	if len(s.Charts) != 1 || s.Charts[0].Type != "LineChart" {
-		t.Fatalf("charts %+v, want one line chart", s.Charts)
+	if len(s.Charts) != 1 || s.Charts[0].Type != "ScatterChart" {
+		t.Fatalf("charts %+v, want one XY chart", s.Charts)
+	}
+	// The frequency axis: the band rounded out to 0.1 GHz, labelled below
+	// the plot.
+	if ch := s.Charts[0]; ch.XMin == nil || ch.XMax == nil || *ch.XMin != math.Floor(bm.FrequencyHz[0]/1e8)/10 ||
+		*ch.XMax != math.Ceil(bm.FrequencyHz[n-1]/1e8)/10 || ch.XLabels != "low" {
+		t.Errorf("frequency axis from %v to %v, labels %q; want the band rounded out to 0.1 GHz, labels low", ch.XMin, ch.XMax, ch.XLabels)
 	}
 	ser := s.Charts[0].Series
 	if len(ser) != 1+len(bm.LimitCurves) {
@@ -531,7 +547,7 @@ func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm, rb *reduce.Beam) {
 	}
 	q := "'" + s.Title + "'!"
 	last := n + 1
-	if ser[0].Val != q+"$G$2:$G$"+itoa(last) || ser[0].Cat != q+"$A$2:$A$"+itoa(last) || ser[0].Tx != q+"$G$1:$G$1" {
+	if ser[0].Val != q+"$G$2:$G$"+itoa(last) || ser[0].Cat != q+"$A$2:$A$"+itoa(last) || !ser[0].CatNum || ser[0].Tx != q+"$G$1:$G$1" {
 		t.Errorf("G/T series %+v", ser[0])
 	}
 	if len(ser) > 1 && ser[1].Val != q+"$I$2:$I$"+itoa(last) {
@@ -744,7 +760,7 @@ func TestFleetWorkbookReadBack(t *testing.T) {
 				t.Errorf("band row %d: %v", r, b.Rows[r-1])
 			}
 		}
-		if len(b.Charts) != 1 || len(b.Charts[0].Series) != 3 || b.Charts[0].Series[0].Cat != "'Band'!$B$2:$B$102" {
+		if len(b.Charts) != 1 || b.Charts[0].Type != "ScatterChart" || len(b.Charts[0].Series) != 3 || b.Charts[0].Series[0].Cat != "'Band'!$B$2:$B$102" {
 			t.Errorf("band charts %+v", b.Charts)
 		}
 	})
