@@ -9,5 +9,6 @@ package render
 // what a unit's files hold changes (0.2.0: result.json, fleet.json and
 // manifest.json schema 2; 0.2.1: the same contents in other bytes, the
 // unit workbook made on a kept skeleton, JSON lists without a space
-// after each comma, and the report's U band drawn where it can be seen).
+// after each comma, the report's U band drawn where it can be seen, and
+// the workbook's frequency charts as XY charts).
 const Version = "0.2.1"
