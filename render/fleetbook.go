@@ -200,7 +200,7 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 					series = append(series, chartSeries{name: xlRef(sheet, col, 1, 1), values: xlRef(sheet, col, first, r-1), dash: col > 6})
 				}
 				b.lineChart(sheet, xlCell(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin in test order", p.Product, l.Name),
-					"Test order", "Worst margin (dB)", xlRef(sheet, 3, first, r-1), chartX{points: r - first}, series)
+					"Test order", "Worst margin (dB)", xlRef(sheet, 3, first, r-1), chartX{points: r - first, format: "0"}, series)
 				charts++
 			}
 		}

@@ -427,10 +427,12 @@ type chartSeries struct {
 	dash         bool
 }
 
-// chartX is the horizontal axis of a chart: categories (points of them),
-// or, when numeric, values (frequencies) on an axis from min to max.
+// chartX is the horizontal axis of a chart: categories (points of them,
+// their labels in format, "0.00" when empty), or, when numeric, values
+// (frequencies) on an axis from min to max.
 type chartX struct {
 	points   int
+	format   string
 	numeric  bool
 	min, max float64
 }
@@ -463,6 +465,9 @@ func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string
 			// The frequency labels below the plot on an XY chart too.
 			TickLabelPosition: excelize.ChartTickLabelLow,
 		},
+	}
+	if x.format != "" {
+		c.XAxis.NumFmt.CustomNumFmt = x.format
 	}
 	if x.numeric {
 		c.Type = excelize.Scatter
