@@ -41,8 +41,21 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 	if neg {
 		n = -n
 	}
+	// The text (at most 1 + 15 + 1 digits and signs) is written in place
+	// at the end of b: a call to copy a few bytes cost as much as making
+	// them.
+	if cap(b)-len(b) < 24 {
+		b = slices.Grow(b, 24)
+	}
+	at := len(b)
+	d := b[at : at+24]
+	i := 0
+	if neg {
+		d[0] = '-'
+		i = 1
+	}
 	if (decimals == 6 && n < 1e9) || (decimals == 3 && n < 1e6) {
-		return appendSmallDecimal(b, uint64(n), neg, decimals)
+		return b[:at+i+putSmallDecimal(d[i:], uint64(n), decimals)]
 	}
 	// Division by a constant is a multiplication; by a variable it is
 	// one of the slowest instructions.
@@ -56,19 +69,6 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 		whole, frac = n/1e4, n%1e4
 	default:
 		whole, frac = n/int64(p), n%int64(p)
-	}
-	// The text (at most 1 + 15 + 1 digits and signs) is written in place
-	// at the end of b: a call to copy a few bytes cost as much as making
-	// them.
-	if cap(b)-len(b) < 24 {
-		b = slices.Grow(b, 24)
-	}
-	at := len(b)
-	d := b[at : at+24]
-	i := 0
-	if neg {
-		d[0] = '-'
-		i = 1
 	}
 	w := 1
 	for w < 15 && whole >= wholePow10[w] {
@@ -92,22 +92,14 @@ func appendDecimal(b []byte, v float64, decimals int) []byte {
 	return b[:at+i]
 }
 
-// appendSmallDecimal is appendDecimal's common case: n > 0 units of the
-// last of 6 (or 3) decimals, with a whole part below 1000. Each group of
-// three digits is one table entry, stored four bytes at a time (the fourth
-// is overwritten or cut off), and the trailing zeros of the fraction come
-// from a table too.
-func appendSmallDecimal(b []byte, n uint64, neg bool, decimals int) []byte {
-	if cap(b)-len(b) < 24 {
-		b = slices.Grow(b, 24)
-	}
-	at := len(b)
-	d := b[at : at+24]
+// putSmallDecimal writes appendDecimal's common case into d (room for 12
+// bytes) and returns its length: n > 0 units of the last of 6 (or 3)
+// decimals, with a whole part below 1000. Each group of three digits is
+// one table entry, stored four bytes at a time (the fourth is overwritten
+// or cut off), and the trailing zeros of the fraction come from a table
+// too.
+func putSmallDecimal(d []byte, n uint64, decimals int) int {
 	i := 0
-	if neg {
-		d[0] = '-'
-		i = 1
-	}
 	var whole, hi, lo uint64
 	if decimals == 6 {
 		whole, hi, lo = n/1e6, n/1e3%1e3, n%1e3
@@ -138,7 +130,7 @@ func appendSmallDecimal(b []byte, n uint64, neg bool, decimals int) []byte {
 		binary.LittleEndian.PutUint32(d[i+1:], digits3[lo])
 		i += 4 - int(zeros3[lo])
 	}
-	return b[:at+i]
+	return i
 }
 
 // digits3[x] holds the three decimal digits of x (below 1000) in its low

@@ -9,7 +9,6 @@ import (
 	"hash/crc32"
 	"io"
 	"math"
-	"sort"
 	"strconv"
 	"sync"
 	"time"
@@ -230,16 +229,10 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 		return nil, b.err
 	}
 
+	// excelize's parts are kept, not written: b.bytes() returns nothing.
 	var c partCollector
 	b.f.SetZipWriter(func(io.Writer) excelize.ZipWriter { return &c })
-	if ct := b.f.ContentTypes; ct != nil {
-		// excelize adds the image content types from a map.
-		sort.SliceStable(ct.Defaults, func(i, j int) bool { return ct.Defaults[i].Extension < ct.Defaults[j].Extension })
-	}
-	if _, err := b.f.WriteToBuffer(); err != nil {
-		return nil, err
-	}
-	if err := b.f.Close(); err != nil {
+	if _, err := b.bytes(); err != nil {
 		return nil, err
 	}
 	if err := c.sorted(); err != nil {
@@ -257,7 +250,7 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	var z bytes.Buffer
 	d, _ := flate.NewWriter(&z, flate.BestCompression) // a valid level never fails
 	for _, e := range c.entries {
-		data := numericXValues(e.name, e.data.Bytes())
+		data := e.data.Bytes()
 		p := skeletonPart{name: e.name}
 		if sheets[e.name] || e.name == corePart {
 			p.xml = data
@@ -302,16 +295,10 @@ func (sk *unitSkeleton) write(tables map[string]*bulkSheet, title, subject strin
 	for _, p := range sk.parts {
 		size += len(p.stored) + len(p.xml)/4 + 128
 	}
-	b := &xlBook{bulk: tables}
 	var out bytes.Buffer
-	out.Grow(size + b.bulkSize())
+	out.Grow(size + bulkSize(tables))
 	zw := zip.NewWriter(&out)
-	d := deflaters.Get().(*flate.Writer)
-	defer deflaters.Put(d)
-	zw.RegisterCompressor(zip.Deflate, func(w io.Writer) (io.WriteCloser, error) {
-		d.Reset(w)
-		return reusedDeflater{d}, nil
-	})
+	defer useDeflater(zw)()
 	byPart := make(map[string]*bulkSheet, len(tables))
 	for name, t := range tables {
 		p, ok := sk.sheetPart[name]

@@ -107,12 +107,17 @@ func (z *zipParts) AddFS(fs.FS) error {
 	return errors.New("render: adding a file system to a workbook is not supported")
 }
 
-// sorted sorts the parts by name and refuses a name written twice.
+// sorted sorts the parts by name, refuses a name written twice and makes
+// the x values of XY charts numbers (numericXValues).
 func (z *zipParts) sorted() error {
 	sort.SliceStable(z.entries, func(i, j int) bool { return z.entries[i].name < z.entries[j].name })
-	for i := 1; i < len(z.entries); i++ {
-		if z.entries[i].name == z.entries[i-1].name {
-			return fmt.Errorf("render: workbook part %s written twice", z.entries[i].name)
+	for i, e := range z.entries {
+		if i > 0 && e.name == z.entries[i-1].name {
+			return fmt.Errorf("render: workbook part %s written twice", e.name)
+		}
+		if fixed := numericXValues(e.name, e.data.Bytes()); fixed != nil {
+			e.data.Reset()
+			e.data.Write(fixed)
 		}
 	}
 	return nil
@@ -125,6 +130,17 @@ var deflaters = sync.Pool{New: func() any {
 	return w
 }}
 
+// useDeflater gives zw a pooled compressor for its deflated parts and
+// returns the function that gives it back, once zw is closed.
+func useDeflater(zw *zip.Writer) (release func()) {
+	d := deflaters.Get().(*flate.Writer)
+	zw.RegisterCompressor(zip.Deflate, func(out io.Writer) (io.WriteCloser, error) {
+		d.Reset(out)
+		return reusedDeflater{d}, nil
+	})
+	return func() { deflaters.Put(d) }
+}
+
 // reusedDeflater is one compressor reset for each part in turn: zip.Writer
 // closes a part's compressor before it starts the next.
 type reusedDeflater struct{ *flate.Writer }
@@ -136,12 +152,7 @@ func (z *sortedZip) Close() error {
 	// BestSpeed took 82 ms, and its output is smaller (1.46 MB against
 	// 1.57 MB); compress/flate's default level was 3.4 times slower than
 	// its BestSpeed for 15 % less.
-	d := deflaters.Get().(*flate.Writer)
-	defer deflaters.Put(d)
-	z.w.RegisterCompressor(zip.Deflate, func(out io.Writer) (io.WriteCloser, error) {
-		d.Reset(out)
-		return reusedDeflater{d}, nil
-	})
+	defer useDeflater(z.w)()
 	if err := z.sorted(); err != nil {
 		return err
 	}
@@ -161,7 +172,7 @@ func (z *sortedZip) Close() error {
 		if t := parts[e.name]; t != nil {
 			err = writeBulkSheet(w, e.data.Bytes(), t)
 		} else {
-			_, err = w.Write(numericXValues(e.name, e.data.Bytes()))
+			_, err = w.Write(e.data.Bytes())
 		}
 		if err != nil {
 			return err
@@ -171,13 +182,13 @@ func (z *sortedZip) Close() error {
 	return z.w.Close()
 }
 
-// numericXValues makes the x values of the XY series of a chart part
-// numbers: excelize refers to them as text (strRef), which a spreadsheet
-// may plot as 1, 2, 3 instead of the frequencies. Other parts are returned
-// as they are.
+// numericXValues returns a chart part with the x values of its XY series
+// made numbers, or nil when the part is not a chart with such series:
+// excelize refers to them as text (strRef), which a spreadsheet may plot as
+// 1, 2, 3 instead of the frequencies.
 func numericXValues(name string, part []byte) []byte {
 	if !strings.HasPrefix(name, "xl/charts/chart") || !bytes.Contains(part, []byte("<xVal><strRef>")) {
-		return part
+		return nil
 	}
 	part = bytes.ReplaceAll(part, []byte("<xVal><strRef>"), []byte("<xVal><numRef>"))
 	return bytes.ReplaceAll(part, []byte("</strRef></xVal>"), []byte("</numRef></xVal>"))
@@ -185,13 +196,7 @@ func numericXValues(name string, part []byte) []byte {
 
 // newXLBook starts a workbook with the fleet workbook's description.
 func newXLBook(title, subject string, created time.Time) *xlBook {
-	return newXLBookDescribed(title, subject, created, "values to 15 significant digits, shown rounded.")
-}
-
-// newXLBookDescribed starts a workbook; precision says, in its
-// description, how its numbers are stored.
-func newXLBookDescribed(title, subject string, created time.Time, precision string) *xlBook {
-	return newXLBookStamped(title, subject, created.UTC().Format(time.RFC3339), created, precision)
+	return newXLBookStamped(title, subject, created.UTC().Format(time.RFC3339), created, "values to 15 significant digits, shown rounded.")
 }
 
 // newXLBookStamped starts a workbook whose document properties are dated
@@ -200,7 +205,7 @@ func newXLBookStamped(title, subject, stamp string, modified time.Time, precisio
 	b := &xlBook{f: excelize.NewFile(), numStyles: map[string]int{}, used: map[string]bool{}}
 	b.f.SetZipWriter(func(w io.Writer) excelize.ZipWriter {
 		if buf, ok := w.(*bytes.Buffer); ok {
-			buf.Grow(128<<10 + b.bulkSize()) // the workbook, written once
+			buf.Grow(128<<10 + bulkSize(b.bulk)) // the workbook, written once
 		}
 		return &sortedZip{w: zip.NewWriter(w), modified: modified, book: b}
 	})
@@ -602,25 +607,20 @@ func summaryFields(u *reduce.Unit) [][2]any {
 	}
 }
 
-// summaryLayout gives the Summary rows that do not depend on a unit's
-// values: the verdict's, and the header of its limits table.
-func summaryLayout() (verdictRow, limitsHeader int) {
+// summaryLayout gives the rows of the Summary sheet that do not depend on
+// a unit's values: its title in row 1, the key/value rows (the verdict's
+// is verdictRow), a blank row, the Limits title and header (limitsHeader),
+// a row per limit, a blank row, the Beams title and header (beamsHeader),
+// a row per beam.
+func summaryLayout(limits int) (verdictRow, limitsHeader, beamsHeader int) {
 	fields := summaryFields(&reduce.Unit{})
 	for i, kv := range fields {
 		if kv[0] == "Verdict" {
 			verdictRow = 2 + i
 		}
 	}
-	return verdictRow, 2 + len(fields) + 2
-}
-
-// The Summary sheet: its title in row 1, the key/value rows, a blank row,
-// the Limits title, header and rows, a blank row, the Beams title, header
-// and rows. summaryRows gives the rows of the Limits header and of the
-// Beams header for a number of limits.
-func summaryRows(limits int) (limitsHeader, beamsHeader int) {
-	_, limitsHeader = summaryLayout()
-	return limitsHeader, limitsHeader + limits + 3
+	limitsHeader = 2 + len(fields) + 2
+	return verdictRow, limitsHeader, limitsHeader + limits + 3
 }
 
 var (
@@ -635,9 +635,8 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 	b.check(b.f.SetColWidth(sheet, "A", "A", 26))
 	b.check(b.f.SetColWidth(sheet, "B", "B", 34))
 	b.check(b.f.SetColWidth(sheet, "C", "F", 14))
-	verdictRow, _ := summaryLayout()
+	verdictRow, limitsHeader, beamsHeader := summaryLayout(s.limits)
 	b.verdictRules(sheet, xlCell(2, verdictRow))
-	limitsHeader, beamsHeader := summaryRows(s.limits)
 	if s.limits > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", limitsHeader+1, limitsHeader+s.limits))
 	}

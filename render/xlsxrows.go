@@ -95,9 +95,9 @@ func textCell(s string, style int) bulkCell {
 // bulkSize is a guess, on the high side, at the compressed size of the
 // bulk tables: 7 bytes a cell, where 16 beam sheets of 801 points of
 // result.json's values took 5.9 (of 15-digit values, 7.6).
-func (b *xlBook) bulkSize() int {
+func bulkSize(tables map[string]*bulkSheet) int {
 	cells := 0
-	for _, t := range b.bulk {
+	for _, t := range tables {
 		cells += t.n*len(t.cols) + len(t.rows)*t.width
 	}
 	return 7 * cells
