@@ -1006,7 +1006,8 @@ func (t *tsReader) endRecord() error {
 func (t *tsReader) completeRecord(v []float64) error {
 	n := t.net
 	if t.inNoise {
-		mag, ang := v[2], v[3]
+		var gamma [1]complex128
+		tsPolarPairs(gamma[:], v[2:4], false)
 		rn := v[4]
 		if t.version == 1 {
 			rn *= real(t.z0[0])
@@ -1014,7 +1015,7 @@ func (t *tsReader) completeRecord(v []float64) error {
 		n.Noise = append(n.Noise, NoisePoint{
 			FrequencyHz:                 v[0] * t.unit,
 			MinNoiseFigureDB:            v[1],
-			GammaOpt:                    tsPolar(mag, ang),
+			GammaOpt:                    gamma[0],
 			EffectiveNoiseResistanceOhm: rn,
 		})
 		if t.nnoise >= 0 && len(n.Noise) > t.nnoise {

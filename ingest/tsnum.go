@@ -12,8 +12,8 @@ import (
 // The numbers are exactly those of strconv.ParseFloat (the tests check
 // that bit for bit). The conversion of a record's pairs (tsPolarPairs,
 // tsExp10DB) reduces angles exactly in degrees and comes within an ulp of
-// the exact values, which the tests measure against math/big; tsPolar,
-// for noise data, is math.Sincos's computation, bit for bit.
+// the exact values, which the tests measure against math/big. The noise
+// block's reflection coefficient goes through the same conversion.
 
 // tsEightDigits reads b[i:i+8] as eight decimal digits, if they are eight
 // ASCII digits. The check and the conversion work on all eight bytes at
@@ -253,71 +253,6 @@ func tsScanRun(b []byte, i int, out []float64, k int) (int, int, tsToken) {
 	return i, k, tsToken{}
 }
 
-// Coefficients of the sine and cosine polynomials on [-Pi/4, Pi/4], those
-// of the Go standard library's math package (from the Cephes library).
-var (
-	tsSinCoef = [6]float64{
-		1.58962301576546568060e-10, // 0x3de5d8fd1fd19ccd
-		-2.50507477628578072866e-8, // 0xbe5ae5e5a9291f5d
-		2.75573136213857245213e-6,  // 0x3ec71de3567d48a1
-		-1.98412698295895385996e-4, // 0xbf2a01a019bfdf03
-		8.33333333332211858878e-3,  // 0x3f8111111110f7d0
-		-1.66666666666666307295e-1, // 0xbfc5555555555548
-	}
-	tsCosCoef = [6]float64{
-		-1.13585365213876817300e-11, // 0xbda8fa49a0861a9b
-		2.08757008419747316778e-9,   // 0x3e21ee9d7b4e3f05
-		-2.75573141792967388112e-7,  // 0xbe927e4f7eac4bc6
-		2.48015872888517045348e-5,   // 0x3efa01a019c844f5
-		-1.38888888888730564116e-3,  // 0xbf56c16c16c14f91
-		4.16666666666665929218e-2,   // 0x3fa555555555554b
-	}
-)
-
-// tsPolar is mag at angle deg (degrees): mag (cos + j sin) of deg*Pi/180.
-//
-// It is math.Sincos's own computation (Cody-Waite reduction by Pi/4 in
-// three parts, the same polynomials, the same order of operations, so the
-// same bits), written without the branches that depend on the octant:
-// angles in a file are spread over the circle, so those branches are
-// mispredicted about half the time, and cost more than the arithmetic.
-// Zero, very large angles (2^29 radians and beyond, where math.Sincos
-// reduces differently) and anything not finite go to math.Sincos itself.
-func tsPolar(mag, deg float64) complex128 {
-	const (
-		pi4a = 7.85398125648498535156e-1  // 0x3fe921fb40000000, Pi/4 split into three parts
-		pi4b = 3.77489470793079817668e-8  // 0x3e64442d00000000,
-		pi4c = 2.69515142907905952645e-15 // 0x3ce8469898cc5170,
-	)
-	x := deg * (math.Pi / 180)
-	ax := math.Abs(x)
-	if x == 0 || !(ax < 1<<29) {
-		s, c := math.Sincos(x)
-		return complex(mag*c, mag*s)
-	}
-	// Conversions through int64, cheaper in Go than through uint64, give
-	// the same numbers below 2^29.
-	j := int64(ax * (4 / math.Pi))
-	j += j & 1 // map zeros to origin
-	y := float64(j)
-	z := ((ax - y*pi4a) - y*pi4b) - y*pi4c
-	zz := z * z
-	cos := 1.0 - 0.5*zz + zz*zz*((((((tsCosCoef[0]*zz)+tsCosCoef[1])*zz+tsCosCoef[2])*zz+tsCosCoef[3])*zz+tsCosCoef[4])*zz+tsCosCoef[5])
-	sin := z + z*zz*((((((tsSinCoef[0]*zz)+tsSinCoef[1])*zz+tsSinCoef[2])*zz+tsSinCoef[3])*zz+tsSinCoef[4])*zz+tsSinCoef[5])
-	// j is even: octants 0, 2, 4, 6. Octants 4 and 6 negate both; octants
-	// 2 and 6 swap sine and cosine and negate the (new) cosine.
-	o := uint64(j) & 7
-	half := o >> 2       // octant 4 or 6
-	swap := (o >> 1) & 1 // octant 2 or 6
-	sb, cb := math.Float64bits(sin), math.Float64bits(cos)
-	d := (sb ^ cb) & -swap // all ones when swapping
-	sb ^= d
-	cb ^= d
-	sb ^= half<<63 ^ math.Float64bits(x)&(1<<63)
-	cb ^= (half ^ swap) << 63
-	return complex(mag*math.Float64frombits(cb), mag*math.Float64frombits(sb))
-}
-
 // tsExp10DB is 10^(db/20), the linear magnitude of a value in dB, to about
 // half an ulp: db times log2(10)/20 in two parts (the product's rounding
 // error kept with a fused multiply-add), 2^x split into 2^(k/64) from a
@@ -440,11 +375,11 @@ var tsExp2Tab = [64][2]float64{
 // math/big; the test checks them), those of the rest from short Taylor
 // series (the first neglected terms below 2^-60), and the angle sum
 // formulas join them, k's quarter turns last, without a branch. The
-// components come within an ulp of the exact values; unlike tsPolar they
-// are not math.Sincos's bits, but multiples of 90 degrees give exact zeros
-// and ones, and angles of many turns lose nothing to their conversion to
+// components come within an ulp of the exact values; they are not
+// math.Sincos's bits, but multiples of 90 degrees give exact zeros and
+// ones, and angles of many turns lose nothing to their conversion to
 // radians. Angles of 10^11 degrees and beyond are first reduced by
-// math.Remainder (exact too); angles not finite go to tsPolar (NaN).
+// math.Remainder (exact too); angles not finite give NaN.
 func tsPolarPairs(m []complex128, vals []float64, db bool) bool {
 	vals = vals[:2*len(m)]
 	for p := range m {
@@ -468,7 +403,7 @@ func tsPolarPairs(m []complex128, vals []float64, db bool) bool {
 		t := deg * (256.0 / 90)
 		if !(math.Abs(t) < 1<<40) {
 			if !(math.Abs(deg) <= math.MaxFloat64) {
-				m[p] = tsPolar(mag, deg) // NaN
+				m[p] = complex(math.NaN(), math.NaN())
 				continue
 			}
 			deg = math.Remainder(deg, 360) // exact
