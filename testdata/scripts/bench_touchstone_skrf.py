@@ -14,11 +14,14 @@ import time
 with contextlib.redirect_stdout(io.StringIO()):
     import skrf as rf
 
+# Batches per file: SKRF_BENCH_BATCHES, 5 unless set.
+batches = int(os.environ.get("SKRF_BENCH_BATCHES", "5"))
+
 for path in sys.argv[1:]:
-    # The best of five batches of at least 0.6 s each, as on the Go side:
+    # The best of the batches of at least 0.6 s each, as on the Go side:
     # other load on the machine only ever adds time.
     per = float("inf")
-    for batch in range(5):
+    for batch in range(batches):
         reads = 0
         start, wall = time.process_time(), time.perf_counter()
         while reads < 2 or time.perf_counter() - wall < 0.6:
