@@ -57,6 +57,10 @@ func tsDigitsValue(w uint64, r int) uint64 {
 
 var tsPow10u = [9]uint64{1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100000000}
 
+// tsPow10u19[r] is 10^(19-r): a mantissa below it takes r more digits
+// and stays below 10^19.
+var tsPow10u19 = [9]uint64{1e19, 1e18, 1e17, 1e16, 1e15, 1e14, 1e13, 1e12, 1e11}
+
 // tsDigits reads the run of ASCII digits that starts at b[i] into mant
 // (each digit multiplies mant by ten and adds itself) and returns mant and
 // the index after the run. Fraction parts, often 6 to 17 digits long, go
@@ -164,8 +168,8 @@ const tsFastPad = 32
 
 // tsScanFast reads the numbers of b from index i on into out[k:] while
 // they have the form of nearly every data file: [sign], one to three
-// digits, a point, digits (19 digits at most in all), then white space or
-// the line's end. It returns the index of the first token it did not read
+// digits, a point, up to 24 digits (the mantissa below 10^19), then white
+// space or the line's end. It returns the index of the first token it did not read
 // (len(b) at the end) and the new count in out. It reads up to tsFastPad
 // bytes after b, in b's capacity, but a token that would go past b's end
 // is left to tsScanRun.
@@ -182,7 +186,7 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 	n := len(b)
 	bb := b[:n+tsFastPad]
 	for i < n {
-		t := bb[i : i+32 : i+32]
+		t := (*[32]byte)(bb[i : i+32])
 		c := t[0]
 		s := int(tsSignTab[c] & 1)
 		d := t[s] - '0'
@@ -206,7 +210,6 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 		if t[q] != '.' {
 			return i, k
 		}
-		nw := q - s // digits before the point
 		q++
 		w := binary.LittleEndian.Uint64(t[q : q+8])
 		r := tsDigitRun(w)
@@ -218,8 +221,11 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 			mant = mant*tsPow10u[r] + tsDigitsValue(w, r) // up to 19 digits
 			f += r
 			if r == 8 {
+				// Up to 8 more digits, while the mantissa stays below
+				// 10^19 (the point's place does not matter: all digits
+				// go into mant exactly).
 				w = binary.LittleEndian.Uint64(t[q+16 : q+24])
-				if r = tsDigitRun(w); nw+f+r > 19 {
+				if r = tsDigitRun(w); mant >= tsPow10u19[r] {
 					return i, k
 				}
 				mant = mant*tsPow10u[r] + tsDigitsValue(w, r)
@@ -227,7 +233,7 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 			}
 		}
 		e := q + f // the token's end in t
-		if i+e > n || i+e < n && !tsSpaceTab[t[e&31]] {
+		if i+e > n || i+e < n && !tsSpaceTab[t[e&31]] || f > 22 {
 			return i, k
 		}
 		v := float64(mant) / tsPow10[f]
