@@ -170,7 +170,8 @@ const tsFastPad = 32
 // they have the form of nearly every data file: [sign], one to three
 // digits, a point, up to 24 digits (the mantissa below 10^19), then white
 // space or the line's end. It returns the index of the first token it did not read
-// (len(b) at the end) and the new count in out. It reads up to tsFastPad
+// (len(b) at the end) and the new count in out, which it fills at most.
+// It stops at a line feed too. It reads up to tsFastPad
 // bytes after b, in b's capacity, but a token that would go past b's end
 // is left to tsScanRun.
 //
@@ -185,7 +186,7 @@ const tsFastPad = 32
 func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 	n := len(b)
 	bb := b[:n+tsFastPad]
-	for i < n {
+	for i < n && k < len(out) {
 		t := (*[32]byte)(bb[i : i+32])
 		c := t[0]
 		s := int(tsSignTab[c] & 1)
@@ -245,7 +246,10 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 		}
 		out[k] = math.Float64frombits(math.Float64bits(v) | tsNegBit(c == '-'))
 		k++
-		for i += e; i < n && tsSpaceTab[bb[i]]; i++ {
+		// White space but a line feed: at one, which is not a number
+		// either, a read of whole buffers (plainLines) learns that the
+		// line ended.
+		for i += e; i < n && tsBlankTab[bb[i]]; i++ {
 		}
 	}
 	return i, k

@@ -2,8 +2,12 @@ package ingest
 
 import (
 	"bytes"
+	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"reflect"
 	"slices"
 	"strconv"
 	"testing"
@@ -87,4 +91,120 @@ func TestTouchstoneScanFast(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestTouchstonePlainLines reads files with plainLines (data lines straight
+// from the read buffer) and without it (every line through nextLine and
+// data), and wants the same network, bit for bit, or the same error. The
+// files: the corpus; networks written by WriteTouchstone and as
+// instruments write them (fixed digits, one point a line), some larger
+// than the read buffer; and each of those changed at random places: a
+// comment line or a comment after the numbers, a blank line, CRLF, a line
+// wrapped, a line repeated (a frequency not above the one before), a
+// number spoiled, a keyword, the file cut short.
+func TestTouchstonePlainLines(t *testing.T) {
+	rng := rand.New(rand.NewPCG(15, 16))
+	type file struct {
+		name string
+		data []byte
+	}
+	var files []file
+	if paths, err := filepath.Glob(filepath.Join(corpusDir, "*", "*")); err == nil {
+		for _, p := range paths {
+			if data, err := os.ReadFile(p); err == nil && (filepath.Ext(p) == ".ts" || tsPortsFromName(p) > 0) {
+				files = append(files, file{filepath.Base(p), data})
+			}
+		}
+	}
+	instrument := func(n *Network, format, unit string, digits int) []byte {
+		scale := map[string]float64{"Hz": 1, "kHz": 1e3, "MHz": 1e6, "GHz": 1e9}[unit]
+		var buf bytes.Buffer
+		fmt.Fprintf(&buf, "! instrument-style file, made-up data\n# %s S %s R 50\n", unit, format)
+		N := n.Ports
+		for k, f := range n.FrequencyHz {
+			buf.WriteString(strconv.FormatFloat(f/scale, 'f', 6, 64))
+			for j := 0; j < N*N; j++ {
+				idx := j
+				if N == 2 {
+					idx = []int{0, 2, 1, 3}[j]
+				}
+				a, b := tsPair(n.S[k*N*N+idx], format)
+				fmt.Fprintf(&buf, " %s %s", strconv.FormatFloat(a, 'g', digits, 64), strconv.FormatFloat(b, 'g', digits, 64))
+			}
+			buf.WriteString("\n")
+		}
+		return buf.Bytes()
+	}
+	for it := 0; it < 40; it++ {
+		ports := 1 + rng.IntN(4)
+		points := 1 + rng.IntN(60)
+		if it%8 == 0 {
+			points = 3000 + rng.IntN(2000) // past the 256 KiB read buffer
+		}
+		z0 := make([]float64, ports)
+		for i := range z0 {
+			z0[i] = 50
+		}
+		n := randomNetwork(rng, ports, points, z0)
+		format := []string{"RI", "MA", "DB"}[rng.IntN(3)]
+		unit := []string{"Hz", "kHz", "MHz", "GHz"}[rng.IntN(4)]
+		name := fmt.Sprintf("gen%d.s%dp", it, ports)
+		if it%2 == 0 && ports <= 2 {
+			files = append(files, file{name, instrument(n, format, unit, 6+rng.IntN(5))})
+			continue
+		}
+		var buf bytes.Buffer
+		if err := WriteTouchstone(&buf, n, TouchstoneFormat{Version: 1 + rng.IntN(2), Parameter: "S", Format: format, FrequencyUnit: unit}); err != nil {
+			t.Fatal(err)
+		}
+		files = append(files, file{name, buf.Bytes()})
+	}
+	changes := []func(lines [][]byte, k int) [][]byte{
+		func(l [][]byte, k int) [][]byte { return slices.Insert(l, k, []byte("! a comment")) },
+		func(l [][]byte, k int) [][]byte { l[k] = append(slices.Clip(l[k]), " ! a comment"...); return l },
+		func(l [][]byte, k int) [][]byte { return slices.Insert(l, k, []byte("   ")) },
+		func(l [][]byte, k int) [][]byte { l[k] = append(slices.Clip(l[k]), '\r'); return l },
+		func(l [][]byte, k int) [][]byte {
+			if len(l[k]) < 2 {
+				return l
+			}
+			if i := bytes.IndexByte(l[k][1:], ' '); i >= 0 {
+				l[k] = slices.Concat(l[k][:i+1], []byte("\n"), l[k][i+2:])
+			}
+			return l
+		},
+		func(l [][]byte, k int) [][]byte { return slices.Insert(l, k, slices.Clone(l[k])) },
+		func(l [][]byte, k int) [][]byte {
+			if len(l[k]) > 0 {
+				l[k] = slices.Clone(l[k])
+				l[k][rng.IntN(len(l[k]))] = "x.-e 9\t"[rng.IntN(7)]
+			}
+			return l
+		},
+		func(l [][]byte, k int) [][]byte { return slices.Insert(l, k, []byte("[End]")) },
+		func(l [][]byte, k int) [][]byte { return l[:k] },
+	}
+	cases := 0
+	for _, f := range files {
+		variants := [][]byte{f.data}
+		for v := 0; v < 6; v++ {
+			lines := bytes.Split(slices.Clone(f.data), []byte("\n"))
+			for c := 0; c < 1+rng.IntN(3) && len(lines) > 0; c++ {
+				lines = changes[rng.IntN(len(changes))](lines, rng.IntN(len(lines)))
+			}
+			variants = append(variants, bytes.Join(lines, []byte("\n")))
+		}
+		for _, data := range variants {
+			cases++
+			want, werr := readTouchstone(bytes.NewReader(data), f.name, false)
+			got, gerr := readTouchstone(bytes.NewReader(data), f.name, true)
+			if (werr == nil) != (gerr == nil) || werr != nil && werr.Error() != gerr.Error() {
+				t.Fatalf("%s: error %v, want %v", f.name, gerr, werr)
+			}
+			if werr == nil && !reflect.DeepEqual(got, want) {
+				t.Fatalf("%s: networks differ", f.name)
+			}
+		}
+	}
+	t.Logf("%d files read both ways", cases)
 }
