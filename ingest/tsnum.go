@@ -164,18 +164,18 @@ func tsScanLine(b []byte, dst []float64) ([]float64, int) {
 
 // tsFastPad is how many bytes after a line tsScanFast reads: the line's
 // buffer must hold them (what they hold does not matter).
-const tsFastPad = 32
+const tsFastPad = 64
 
 // tsScanFast reads the numbers of b from index i on into out[k:] while
-// they have the form of nearly every data file: [sign], one to three
-// digits, a point, up to 24 digits (the mantissa below 10^19), then white
-// space or the line's end. It returns the index of the first token it did not read
+// they have the form of nearly every data file: [sign], 1 to 15 digits,
+// a point and up to 24 digits or none (the mantissa below 10^19), then
+// white space or the line's end. It returns the index of the first token it did not read
 // (len(b) at the end) and the new count in out, which it fills at most.
 // It stops at a line feed too. It reads up to tsFastPad
 // bytes after b, in b's capacity, but a token that would go past b's end
 // is left to tsScanRun.
 //
-// Each token is read in a window of 32 bytes, so that the compiler checks
+// Each token is read in a window of 64 bytes, so that the compiler checks
 // bounds once a token rather than at every byte: the whole part byte by
 // byte (on the regular layout of a data file the processor predicts
 // where it ends, as in tsScanRun), the fraction in groups of eight bytes
@@ -187,7 +187,7 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 	n := len(b)
 	bb := b[:n+tsFastPad]
 	for i < n && k < len(out) {
-		t := (*[32]byte)(bb[i : i+32])
+		t := (*[64]byte)(bb[i : i+64])
 		c := t[0]
 		s := int(tsSignTab[c] & 1)
 		d := t[s] - '0'
@@ -202,39 +202,49 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 			if d = t[q&3] - '0'; d <= 9 {
 				mant = mant*10 + uint64(d)
 				q++
-				if t[q&7]-'0' <= 9 {
-					return i, k // four digits or more
+				// More (frequencies in Hz): up to 15 digits.
+				for q < 16 && t[q]-'0' <= 9 {
+					mant = mant*10 + uint64(t[q]-'0')
+					q++
+				}
+				if q == 16 {
+					return i, k
 				}
 			}
 		}
-		q &= 7
-		if t[q] != '.' {
-			return i, k
-		}
-		q++
-		w := binary.LittleEndian.Uint64(t[q : q+8])
-		r := tsDigitRun(w)
-		mant = mant*tsPow10u[r] + tsDigitsValue(w, r)
-		f := r // digits after the point
-		if r == 8 {
-			w = binary.LittleEndian.Uint64(t[q+8 : q+16])
-			r = tsDigitRun(w)
-			mant = mant*tsPow10u[r] + tsDigitsValue(w, r) // up to 19 digits
-			f += r
+		q &= 15
+		f := 0 // digits after the point
+		if t[q] == '.' {
+			q++
+			w := binary.LittleEndian.Uint64(t[q : q+8])
+			r := tsDigitRun(w)
+			if mant >= tsPow10u19[r] {
+				return i, k
+			}
+			mant = mant*tsPow10u[r] + tsDigitsValue(w, r)
+			f = r
 			if r == 8 {
-				// Up to 8 more digits, while the mantissa stays below
-				// 10^19 (the point's place does not matter: all digits
-				// go into mant exactly).
-				w = binary.LittleEndian.Uint64(t[q+16 : q+24])
+				w = binary.LittleEndian.Uint64(t[q+8 : q+16])
 				if r = tsDigitRun(w); mant >= tsPow10u19[r] {
 					return i, k
 				}
 				mant = mant*tsPow10u[r] + tsDigitsValue(w, r)
 				f += r
+				if r == 8 {
+					// Up to 8 more digits, while the mantissa stays below
+					// 10^19 (the point's place does not matter: all digits
+					// go into mant exactly).
+					w = binary.LittleEndian.Uint64(t[q+16 : q+24])
+					if r = tsDigitRun(w); mant >= tsPow10u19[r] {
+						return i, k
+					}
+					mant = mant*tsPow10u[r] + tsDigitsValue(w, r)
+					f += r
+				}
 			}
 		}
 		e := q + f // the token's end in t
-		if i+e > n || i+e < n && !tsSpaceTab[t[e&31]] || f > 22 {
+		if i+e > n || i+e < n && !tsSpaceTab[t[e&63]] || f > 22 {
 			return i, k
 		}
 		v := float64(mant) / tsPow10[f]
