@@ -162,8 +162,9 @@ type tsReader struct {
 	lineVals []float64    // the numbers of the current line
 	ws       []complex128 // scratch matrices for conversion
 	// slowLines: every line goes through nextLine and data, plainLines
-	// having met a line it does not take.
+	// having met lines it does not take (notPlain of them).
 	slowLines bool
+	notPlain  int
 }
 
 // plainLines reads the data lines that need none of data's rules straight
@@ -172,9 +173,7 @@ type tsReader struct {
 // above the one before, its numbers in the form tsScanFast reads, with no
 // comment. Those are nearly all the lines of a data file. It returns at
 // the first line that is anything else, left unread for nextLine and
-// data; at a line of numbers that is not such a line (a wrapped point, a
-// comment after the numbers, the noise block) it sets slowLines, for the
-// next lines are likely the same.
+// data.
 func (t *tsReader) plainLines() error {
 	if t.inNoise || t.ended || t.inInfo || t.refPending || len(t.rec) > 0 {
 		return nil
@@ -204,13 +203,17 @@ func (t *tsReader) plainLines() error {
 		if i >= len(b) || b[i] != '\n' && bytes.IndexByte(b[i:], '\n') < 0 {
 			return nil // the line goes on past b: nextLine reads it
 		}
-		if b[i] != '\n' || k != t.recLen {
-			t.slowLines = true
-			return nil
-		}
 		last := t.net.FrequencyHz[len(t.net.FrequencyHz)-1]
-		if hz := out[0] * t.unit; !(hz > last) || math.IsInf(hz, 0) {
-			t.slowLines = true // checkFrequency's errors, or the noise block
+		if b[i] != '\n' || k != t.recLen || !(out[0]*t.unit > last) || math.IsInf(out[0]*t.unit, 0) {
+			// Not a plain line: a number in another form, a comment
+			// after the numbers, a wrapped point, the noise block, an
+			// error. After a few of them the path stays off for the
+			// file (its points are wrapped, or its numbers are in
+			// forms tsScanFast does not read), to spare reading their
+			// lines twice.
+			if t.notPlain++; t.notPlain == 8 {
+				t.slowLines = true
+			}
 			return nil
 		}
 		t.line++
