@@ -215,6 +215,9 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 		q &= 15
 		f := 0 // digits after the point
 		if t[q] == '.' {
+			// Up to three groups of eight bytes, written out: a loop
+			// over them, or a function for a group (too large for Go to
+			// inline), measured 10 to 40 % slower on the scan.
 			q++
 			w := binary.LittleEndian.Uint64(t[q : q+8])
 			r := tsDigitRun(w)
