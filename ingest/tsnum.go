@@ -180,8 +180,8 @@ const tsFastPad = 64
 // bounds once a token rather than at every byte: the whole part byte by
 // byte (on the regular layout of a data file the processor predicts
 // where it ends, as in tsScanRun), the fraction in groups of eight bytes
-// at known places. This takes a quarter less time than tsScanRun on the
-// benchmark files. The value is Clinger's (a mantissa up to 2^53, and a
+// at known places. This took 11 to 22 % less time than tsScanRun on the
+// benchmark files' lines. The value is Clinger's (a mantissa up to 2^53, and a
 // power of ten up to 10^22) or Eisel-Lemire's, each exact as strconv's.
 func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 	n := len(b)
@@ -580,7 +580,8 @@ func tsPolarPairs(m []complex128, vals []float64, db bool) bool {
 		cl := e[2]*cm - e[0]*sr + e[3]
 		re := math.FMA(mag, e[2], mag*cl)
 		im := math.FMA(mag, e[0], mag*sl)
-		// Adding zero turns the -0 of the negated zeros into +0.
+		// Adding zero turns a -0 (a zero component of a negative
+		// magnitude) into +0.
 		m[p] = complex(re+0, im+0)
 	}
 	return true
