@@ -68,8 +68,9 @@ func readTouchstone(r io.Reader, name string, plain bool) (*Network, error) {
 		format:   "MA",
 		order:    "21_12",
 		matrix:   "full",
-
-		slowLines: !plain,
+	}
+	if !plain {
+		t.notPlain = tsMaxNotPlain
 	}
 	// The input's size, when it tells it, lets the arrays be sized once
 	// after the first point instead of growing by copying.
@@ -161,11 +162,16 @@ type tsReader struct {
 	pairs    []complex128 // the values of one point as complex numbers
 	lineVals []float64    // the numbers of the current line
 	ws       []complex128 // scratch matrices for conversion
-	// slowLines: every line goes through nextLine and data, plainLines
-	// having met lines it does not take (notPlain of them).
-	slowLines bool
-	notPlain  int
+	// notPlain counts the lines of numbers plainLines did not take; at
+	// tsMaxNotPlain every line goes through nextLine and data.
+	notPlain int
 }
+
+// tsMaxNotPlain is how many lines of numbers plainLines leaves to data
+// before it stays off for the file: a file whose points are wrapped, or
+// whose numbers are in forms tsScanFast does not read, has its lines read
+// twice no more than this.
+const tsMaxNotPlain = 8
 
 // plainLines reads the data lines that need none of data's rules straight
 // from the read buffer, without finding their ends first: a line that
@@ -207,13 +213,8 @@ func (t *tsReader) plainLines() error {
 		if b[i] != '\n' || k != t.recLen || !(out[0]*t.unit > last) || math.IsInf(out[0]*t.unit, 0) {
 			// Not a plain line: a number in another form, a comment
 			// after the numbers, a wrapped point, the noise block, an
-			// error. After a few of them the path stays off for the
-			// file (its points are wrapped, or its numbers are in
-			// forms tsScanFast does not read), to spare reading their
-			// lines twice.
-			if t.notPlain++; t.notPlain == 8 {
-				t.slowLines = true
-			}
+			// error.
+			t.notPlain++
 			return nil
 		}
 		t.line++
@@ -281,7 +282,7 @@ func tsPortsFromName(name string) int {
 func (t *tsReader) read() (*Network, error) {
 	t.nfreq, t.nnoise = -1, -1
 	for {
-		if t.net != nil && len(t.net.FrequencyHz) > 0 && !t.slowLines {
+		if t.net != nil && len(t.net.FrequencyHz) > 0 && t.notPlain < tsMaxNotPlain {
 			if err := t.plainLines(); err != nil {
 				return nil, err
 			}

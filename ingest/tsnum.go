@@ -94,70 +94,35 @@ func tsNegBit(neg bool) uint64 {
 	return b
 }
 
-// tsSigDigits is the number of significant digits of a token of nd digits
-// that starts at b[s] (digits and at most one point): nd less its leading
-// zeros. Only tokens of more than 19 digits ask.
-func tsSigDigits(b []byte, s, nd int) int {
-	for i := s; i < len(b) && (b[i] == '0' || b[i] == '.'); i++ {
-		if b[i] == '0' {
-			nd--
-		}
-	}
-	return nd
-}
-
 // tsScanLine appends the numbers of a line (which starts with a token) to
 // dst. It stops at the first token that is not a number and returns its
 // index, or -1.
 //
-// tsScanFast reads the form of nearly every data file when the line's
-// buffer has room after it; tsScanRun reads the other common forms; the
-// tokens it leaves are finished here (Eisel-Lemire for long mantissas,
-// tsScan for everything else). After a token of another form the fast
-// path goes on, until a second one in the line: tsScanRun then reads the
-// rest (a file of another form then costs one try a line).
+// tsScanFast reads the form of nearly every data file; a token of another
+// form (a mantissa of more than 19 digits, an exponent of four digits, ...)
+// is read by tsScan, and tsScanFast goes on after it. tsScanFast reads
+// past the line's end, in the bytes after it that its buffer holds: a line
+// without them (near the end of the read buffer) is copied first.
 func tsScanLine(b []byte, dst []float64) ([]float64, int) {
+	if cap(b)-len(b) < tsFastPad {
+		b = append(make([]byte, 0, len(b)+tsFastPad), b...)
+	}
 	// A number takes at least two bytes (a digit and a space) but the last.
 	dst = slices.Grow(dst, len(b)/2+1)
 	base := len(dst)
 	out := dst[base:cap(dst)]
 	i, k := 0, 0
-	fast, tries := cap(b)-len(b) >= tsFastPad, 0
 	for {
-		stop := len(out)
-		if fast {
-			if i, k = tsScanFast(b, i, out, k); i >= len(b) {
-				return dst[:base+k], -1
-			}
-			if tries++; tries == 1 {
-				stop = k + 1 // tsScanRun reads this token only
-			} else {
-				fast = false
-			}
-		}
-		var tok tsToken
-		i, k, tok = tsScanRun(b, i, out, k, stop)
-		if i >= len(b) {
+		if i, k = tsScanFast(b, i, out, k); i >= len(b) {
 			return dst[:base+k], -1
 		}
-		if k == stop {
-			continue
-		}
-		v, ok := 0.0, false
-		end := tok.end
-		if tok.form {
-			v, ok = tsEiselLemire(tok.mant, tok.exp, tok.neg)
-		}
+		v, n, ok := tsScan(b[i:])
 		if !ok {
-			var n int
-			if v, n, ok = tsScan(b[i:]); !ok {
-				return dst[:base+k], base + k
-			}
-			end = i + n
+			return dst[:base+k], base + k
 		}
 		out[k] = v
 		k++
-		for i = end; i < len(b) && tsSpaceTab[b[i]]; i++ {
+		for i += n; i < len(b) && tsSpaceTab[b[i]]; i++ {
 		}
 	}
 }
@@ -167,22 +132,23 @@ func tsScanLine(b []byte, dst []float64) ([]float64, int) {
 const tsFastPad = 64
 
 // tsScanFast reads the numbers of b from index i on into out[k:] while
-// they have the form of nearly every data file: [sign], 1 to 15 digits,
-// a point and up to 24 digits or none (the mantissa below 10^19), an
-// exponent of one to three digits or none, then white space or the
-// line's end. It returns the index of the first token it did not read
-// (len(b) at the end) and the new count in out, which it fills at most.
-// It stops at a line feed too. It reads up to tsFastPad
-// bytes after b, in b's capacity, but a token that would go past b's end
-// is left to tsScanRun.
+// they have the form of nearly every data file: [sign], up to 15 digits,
+// a point and up to 24 digits or none (one digit at least, the mantissa
+// below 10^19), an exponent of one to three digits or none, then white
+// space or the line's end. It returns the index of the first token it did
+// not read (len(b) at the end) and the new count in out, which it fills at
+// most. It stops at a line feed too. It reads up to tsFastPad bytes after
+// b, which b's capacity must hold, but a token that would go past b's end
+// is left to the caller.
 //
 // Each token is read in a window of 64 bytes, so that the compiler checks
 // bounds once a token rather than at every byte: the whole part byte by
-// byte (on the regular layout of a data file the processor predicts
-// where it ends, as in tsScanRun), the fraction in groups of eight bytes
-// at known places. This took 11 to 22 % less time than tsScanRun on the
-// benchmark files' lines. The value is Clinger's (a mantissa up to 2^53, and a
-// power of ten up to 10^22) or Eisel-Lemire's, each exact as strconv's.
+// byte (on the regular layout of a data file the processor predicts where
+// it ends; branch-free forms measured slower, see DEVELOPERS.md), the
+// fraction in groups of eight bytes at known places. This took 11 to 22 %
+// less time than the scanner before it on the benchmark files' lines. The
+// value is Clinger's (a mantissa up to 2^53, and a power of ten up to
+// 10^22) or Eisel-Lemire's, each exact as strconv's.
 func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 	n := len(b)
 	bb := b[:n+tsFastPad]
@@ -191,12 +157,15 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 		c := t[0]
 		s := int(tsSignTab[c] & 1)
 		d := t[s] - '0'
-		if d > 9 {
-			return i, k
-		}
 		mant := uint64(d)
 		q := s + 1 // the point, after a whole part of one digit
-		if d = t[q] - '0'; d <= 9 {
+		if d > 9 {
+			// No whole part: a point and a digit (".5"), or no number.
+			if t[s] != '.' || t[s+1]-'0' > 9 {
+				return i, k
+			}
+			mant, q = 0, s
+		} else if d = t[q] - '0'; d <= 9 {
 			mant = mant*10 + uint64(d)
 			q++
 			if d = t[q&3] - '0'; d <= 9 {
@@ -249,7 +218,7 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 		e := q + f // the token's end in t
 		exp := -f
 		if t[e&63]|0x20 == 'e' {
-			// An exponent: [sign], one to three digits (as in tsScanRun).
+			// An exponent: [sign], one to three digits.
 			j := e + 1
 			eneg := t[j&63] == '-'
 			j += int(tsSignTab[t[j&63]] & 1)
@@ -292,123 +261,6 @@ func tsScanFast(b []byte, i int, out []float64, k int) (int, int) {
 		}
 	}
 	return i, k
-}
-
-// tsToken is what tsScanRun read of a token that it did not finish: form
-// tells that it has the common form, with its digits in mant (at most 19
-// significant), its power of ten and sign, and ends at end.
-type tsToken struct {
-	mant uint64
-	exp  int
-	neg  bool
-	form bool
-	end  int
-}
-
-// tsScanRun reads the numbers of b from index i on into out[k:] while they
-// have the common form, [sign]digits[.digits][e[sign]digits] followed by
-// white space or the end, and Clinger's fast path decides their value (a
-// mantissa below 2^53, a power of ten up to 22), until out holds stop
-// numbers. It returns the index of the first token it did not finish
-// (len(b) at the end), the new count in out, and what it read of that
-// token. out has room for every number.
-//
-// The loop calls nothing, so that the compiler keeps its state in
-// registers. Its digit loops are mostly plain on purpose: on the regular
-// layout of a data file the processor predicts where the digits of a
-// token end and runs ahead, while computing that end from eight bytes at
-// once makes every number wait for the one before it (measured slower for
-// the whole part and the first digits of the fraction). Only the last,
-// up to seven, digits of a fraction are taken in one step, as their count
-// is what varies most from number to number.
-func tsScanRun(b []byte, i int, out []float64, k, stop int) (int, int, tsToken) {
-	for i < len(b) && k < stop {
-		// The sign without a branch: signs in a data file are as good as
-		// random, and a mispredicted branch costs more than this.
-		c := b[i]
-		neg := c == '-'
-		j := i + int(tsSignTab[c])
-		s := j
-		var mant uint64
-		for j < len(b) && b[j]-'0' <= 9 {
-			mant = mant*10 + uint64(b[j]-'0')
-			j++
-		}
-		nd, exp := j-s, 0
-		if j < len(b) && b[j] == '.' {
-			j++
-			fs := j
-			for j+8 <= len(b) {
-				w, ok := tsEightDigits(b, j)
-				if !ok {
-					break
-				}
-				mant = mant*100000000 + w
-				j += 8
-			}
-			if j+8 <= len(b) {
-				// The rest, up to seven digits, in one step: their count
-				// varies from number to number, and a loop over them
-				// would often mispredict its end.
-				w := binary.LittleEndian.Uint64(b[j:])
-				r := tsDigitRun(w)
-				mant = mant*tsPow10u[r] + tsDigitsValue(w, r)
-				j += r
-			} else {
-				for j < len(b) && b[j]-'0' <= 9 {
-					mant = mant*10 + uint64(b[j]-'0')
-					j++
-				}
-			}
-			nd += j - fs
-			exp = fs - j
-		}
-		if j < len(b) && !tsSpaceTab[b[j]] {
-			// An exponent, e or E, [sign], one to three digits, then
-			// the end or white space; anything else is not a number of
-			// this form.
-			if b[j]|0x20 != 'e' {
-				return i, k, tsToken{}
-			}
-			j++
-			eneg := false
-			if j < len(b) && (b[j] == '+' || b[j] == '-') {
-				eneg = b[j] == '-'
-				j++
-			}
-			e, es := 0, j
-			for j < len(b) && b[j]-'0' <= 9 && j-es < 4 {
-				e = e*10 + int(b[j]-'0')
-				j++
-			}
-			if j == es || j-es == 4 || j < len(b) && !tsSpaceTab[b[j]] {
-				return i, k, tsToken{}
-			}
-			if eneg {
-				e = -e
-			}
-			exp += e
-		}
-		if nd == 0 || nd > 19 && tsSigDigits(b, s, nd) > 19 {
-			return i, k, tsToken{}
-		}
-		if mant > 1<<53 || exp < -22 || exp > 22 {
-			return i, k, tsToken{mant: mant, exp: exp, neg: neg, form: true, end: j}
-		}
-		// Clinger's fast path, as in tsScan; the sign as a bit (negation
-		// flips it).
-		v := float64(mant)
-		if exp > 0 {
-			v *= tsPow10[exp]
-		} else if exp < 0 {
-			v /= tsPow10[-exp]
-		}
-		out[k] = math.Float64frombits(math.Float64bits(v) | tsNegBit(neg))
-		k++
-		for i = j; i < len(b) && tsSpaceTab[b[i]]; i++ {
-		}
-	}
-	return i, k, tsToken{}
 }
 
 // tsExp10DB is 10^(db/20), the linear magnitude of a value in dB, to about

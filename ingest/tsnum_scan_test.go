@@ -43,12 +43,13 @@ func BenchmarkTouchstoneScanLine(b *testing.B) {
 	}
 }
 
-// TestTouchstoneScanFast checks the line scanner with room after the line
-// (where tsScanFast reads past its end) against the same line without room
-// (tsScanRun and the rest only, which TestTouchstoneNumbers checks against
-// strconv.ParseFloat): the same numbers bit for bit, the same bad token.
-// The bytes after the line are random digits, points, signs and spaces,
-// which must not change a number that ends the line.
+// TestTouchstoneScanFast checks the line scanner, with room after the line
+// (where tsScanFast reads past its end) and without (the line is copied),
+// against each token read alone by tsParseNumber (tsScan, which
+// TestTouchstoneNumbers checks against strconv.ParseFloat): the same
+// numbers bit for bit, the same bad token. The bytes after the line are
+// random digits, points, signs and spaces, which must not change a number
+// that ends the line.
 func TestTouchstoneScanFast(t *testing.T) {
 	rng := rand.New(rand.NewPCG(13, 14))
 	odd := []string{"1.5", "-0.25", "+1.25", ".5", "-.5", "5.", "-5.", "0.", "123.456", "999.999", "1234.5",
@@ -84,14 +85,25 @@ func TestTouchstoneScanFast(t *testing.T) {
 		for j := range after {
 			after[j] = "0123456789.-+eE \t\n!"[rng.IntN(19)]
 		}
-		want, wbad := tsScanLine(slices.Clip(buf), nil)
-		got, gbad := tsScanLine(buf, nil)
-		if gbad != wbad || len(got) != len(want) {
-			t.Fatalf("%q: got %v (bad token %d), want %v (%d)", line, got, gbad, want, wbad)
+		var want []float64
+		wbad := -1
+		for j, tok := range tsFields(line) {
+			v, ok := tsParseNumber(tok)
+			if !ok {
+				wbad = j
+				break
+			}
+			want = append(want, v)
 		}
-		for j := range want {
-			if math.Float64bits(got[j]) != math.Float64bits(want[j]) {
-				t.Fatalf("%q: got %v, want %v", line, got, want)
+		for _, b := range [][]byte{buf, slices.Clip(buf)} {
+			got, gbad := tsScanLine(b, nil)
+			if gbad != wbad || len(got) != len(want) {
+				t.Fatalf("%q: got %v (bad token %d), want %v (%d)", line, got, gbad, want, wbad)
+			}
+			for j := range want {
+				if math.Float64bits(got[j]) != math.Float64bits(want[j]) {
+					t.Fatalf("%q: got %v, want %v", line, got, want)
+				}
 			}
 		}
 	}
