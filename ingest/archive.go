@@ -12,6 +12,8 @@ import (
 	"strings"
 	"sync"
 	"time"
+
+	"gopkg.in/yaml.v3"
 )
 
 // Open discovers an archive: the stations, references and specs at the
@@ -21,7 +23,19 @@ import (
 //
 // Choices made here:
 //   - A run.yaml that is refused (broken YAML, unknown key, ...) is not in
-//     Units; its problems name it.
+//     any unit's Runs; its problems name it. Its serial and start are read
+//     leniently (recoverRun): with a serial it is in that unit's Refused
+//     (a unit whose only run.yaml is refused is listed with no Runs), so
+//     that an older good run is not taken for the acceptance run without
+//     a word; without one it is in Archive.Orphans. A folder that cannot
+//     be read is an orphan too: it may hold a run.
+//   - Identifiers are unique regardless of case (CheckIdentifier has the
+//     rest of the rule). Of two serial spellings that differ only in case,
+//     the one of the good run whose run.yaml path sorts first stands (of
+//     the refused runs when the serial has no good run); every run of the
+//     other spelling is refused and reported at its serial line. A
+//     station, reference or spec whose id (product) differs only in case
+//     from one read before is refused.
 //   - A run that names an unknown (or refused) station, reference or spec
 //     stays in Units, so that its unit is listed as incomplete; the problem
 //     is in Archive.Problems at the run.yaml line of that key (see
@@ -101,6 +115,7 @@ func open(root string, lean bool) (*Archive, error) {
 		Specs:      map[string]*Spec{},
 	}
 	fsys := newArchiveFS(root)
+	stationIDs, refIDs, specIDs := foldedIDs{}, foldedIDs{}, foldedIDs{}
 	refusedStations := map[string]string{}
 	refusedRefs := map[string]string{}
 	refusedSpecs := map[string]string{}
@@ -113,6 +128,9 @@ func open(root string, lean bool) (*Archive, error) {
 		if prev, dup := a.Stations[s.ID]; dup {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "station id %q is already defined in %s; expected each id once (this file is ignored)", s.ID, prev.File))
 			return nil
+		}
+		if first, twin := stationIDs.twin(s.ID, rel); twin {
+			return Problemf(rel, keyLine(data, "id"), "station id %q is the same as %q in %s, regardless of case; expected each id once, in one spelling", s.ID, first.id, first.file)
 		}
 		a.Stations[s.ID] = s
 		return nil
@@ -140,6 +158,9 @@ func open(root string, lean bool) (*Archive, error) {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "reference id %q is already defined in %s; expected each id once (this file is ignored)", ref.ID, prev.File))
 			return nil
 		}
+		if first, twin := refIDs.twin(ref.ID, rel); twin {
+			return Problemf(rel, keyLine(data, "id"), "reference id %q is the same as %q in %s, regardless of case; expected each id once, in one spelling", ref.ID, first.id, first.file)
+		}
 		a.References[ref.ID] = ref
 		return nil
 	})
@@ -152,27 +173,37 @@ func open(root string, lean bool) (*Archive, error) {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "spec for product %q is already defined in %s; expected one spec per product (this file is ignored)", s.Product, prev.File))
 			return nil
 		}
+		if first, twin := specIDs.twin(s.Product, rel); twin {
+			return Problemf(rel, keyLine(data, "product"), "spec for product %q is the same product as %q in %s, regardless of case; expected one spec per product, in one spelling", s.Product, first.id, first.file)
+		}
 		a.Specs[s.Product] = s
 		return nil
 	})
 
-	var runs []*Run
-	for _, parsed := range parseRuns(fsys, fsys.runFiles(&a.Problems), lean) {
+	files, unreadable := fsys.runFiles(&a.Problems)
+	var good []checkedRun
+	var refused []*refusal
+	for i, parsed := range parseRuns(fsys, files, lean) {
 		if parsed.problems != nil {
 			a.Problems = append(a.Problems, parsed.problems...)
+			refused = append(refused, &refusal{
+				run:        &RefusedRun{File: files[i], Dir: path.Dir(files[i]), Serial: parsed.serial, Started: parsed.started, Problems: parsed.problems},
+				serialLine: parsed.serialLine,
+			})
 			continue
 		}
 		r := parsed.run
 		rootRelative(r)
+		var probs []*Problem
 		check := func(key, kind, id, folder string, known bool, refused map[string]string) {
 			if known {
 				return
 			}
 			if f, ok := refused[id]; ok {
-				a.Problems = append(a.Problems, Problemf(r.File, r.KeyLines[key], "%s %q is not available: %s was refused", kind, id, f))
+				probs = append(probs, Problemf(r.File, r.KeyLines[key], "%s %q is not available: %s was refused", kind, id, f))
 				return
 			}
-			a.Problems = append(a.Problems, Problemf(r.File, r.KeyLines[key], "%s %q is unknown; expected one defined in %s/ (%s)", kind, id, folder, knownList(kind, a)))
+			probs = append(probs, Problemf(r.File, r.KeyLines[key], "%s %q is unknown; expected one defined in %s/ (%s)", kind, id, folder, knownList(kind, a)))
 		}
 		_, okS := a.Stations[r.Station]
 		check("station", "station", r.Station, "stations", okS, refusedStations)
@@ -180,7 +211,45 @@ func open(root string, lean bool) (*Archive, error) {
 		check("reference", "reference", r.Reference, "references", okR, refusedRefs)
 		_, okP := a.Specs[r.Product]
 		check("product", "spec for product", r.Product, "specs", okP, refusedSpecs)
-		runs = append(runs, r)
+		a.Problems = append(a.Problems, probs...)
+		good = append(good, checkedRun{r, probs})
+	}
+
+	// One spelling per serial regardless of case: QDA-1 and qda-1 would be
+	// one folder of the site on a system that ignores case. The good runs
+	// choose first, in path order, so that a broken file never takes a
+	// unit's name from a good one; a serial with refused runs only takes
+	// the spelling of its first refused run.
+	serials := foldedIDs{}
+	for _, c := range good {
+		serials.twin(c.run.Serial, c.run.File)
+	}
+	for _, rf := range refused {
+		if rf.run.Serial != "" {
+			serials.twin(rf.run.Serial, rf.run.File)
+		}
+	}
+	for _, rf := range refused {
+		if rf.run.Serial == "" {
+			continue
+		}
+		if first, twin := serials.twin(rf.run.Serial, rf.run.File); twin {
+			p := twinSerial(rf.run.File, rf.serialLine, rf.run.Serial, first)
+			a.Problems = append(a.Problems, p)
+			rf.run.Problems = append(rf.run.Problems, p)
+		}
+	}
+	var runs []*Run
+	for _, c := range good {
+		r := c.run
+		first, twin := serials.twin(r.Serial, r.File)
+		if !twin {
+			runs = append(runs, r)
+			continue
+		}
+		p := twinSerial(r.File, r.KeyLines["serial"], r.Serial, first)
+		a.Problems = append(a.Problems, p)
+		refused = append(refused, &refusal{run: &RefusedRun{File: r.File, Dir: r.Dir, Serial: r.Serial, Started: r.Started, Problems: append(c.problems, p)}})
 	}
 
 	// Group by serial; oldest first; a repeated start time is a duplicate.
@@ -208,8 +277,79 @@ func open(root string, lean bool) (*Archive, error) {
 		}
 		u.Runs = append(u.Runs, r)
 	}
+
+	// Refused runs join the unit of their serial, made when it has no good
+	// run; the rest are orphans.
+	for _, rr := range unreadable {
+		refused = append(refused, &refusal{run: rr})
+	}
+	sort.Slice(refused, func(i, j int) bool { return refused[i].path() < refused[j].path() })
+	units := map[string]*Unit{}
+	for _, u := range a.Units {
+		units[strings.ToLower(u.Serial)] = u
+	}
+	for _, rf := range refused {
+		if rf.run.Serial == "" {
+			a.Orphans = append(a.Orphans, rf.run)
+			continue
+		}
+		k := strings.ToLower(rf.run.Serial)
+		u := units[k]
+		if u == nil {
+			u = &Unit{Serial: serials[k].id}
+			units[k] = u
+			a.Units = append(a.Units, u)
+		}
+		u.Refused = append(u.Refused, rf.run)
+	}
+	sort.Slice(a.Units, func(i, j int) bool { return a.Units[i].Serial < a.Units[j].Serial })
 	a.Problems = SortProblems(a.Problems)
 	return a, nil
+}
+
+// checkedRun is a good run and the problems its station, reference and
+// spec gave (they do not refuse it).
+type checkedRun struct {
+	run      *Run
+	problems []*Problem
+}
+
+// refusal is a refused run and the line of its serial in run.yaml, where
+// a case twin is reported.
+type refusal struct {
+	run        *RefusedRun
+	serialLine int
+}
+
+// path is what refused runs are sorted by: the run.yaml, or the folder
+// that could not be read.
+func (rf *refusal) path() string {
+	if rf.run.File != "" {
+		return rf.run.File
+	}
+	return rf.run.Dir
+}
+
+func twinSerial(file string, line int, serial string, first foldedID) *Problem {
+	return Problemf(file, line, "serial %q is the same unit as %q in %s, regardless of case; expected one spelling of each serial (this run is refused)", serial, first.id, first.file)
+}
+
+// foldedIDs holds the first spelling of each identifier by its lower case,
+// and the file it came from.
+type foldedIDs map[string]foldedID
+
+type foldedID struct{ id, file string }
+
+// twin notes id (of file) when its lower case is new, and otherwise
+// returns the first spelling, with true when id is spelled otherwise.
+func (f foldedIDs) twin(id, file string) (foldedID, bool) {
+	k := strings.ToLower(id)
+	first, ok := f[k]
+	if !ok {
+		f[k] = foldedID{id, file}
+		return foldedID{}, false
+	}
+	return first, first.id != id
 }
 
 // ProblemsOf returns the discovery problems that name r's run.yaml (an
@@ -395,9 +535,14 @@ func (f *archiveFS) yamlFiles(folder string, probs *[]*Problem) []string {
 	return out
 }
 
-// runFiles lists every run.yaml below the root, skipping '.' folders.
-func (f *archiveFS) runFiles(probs *[]*Problem) []string {
+// runFiles lists every run.yaml below the root, skipping '.' folders, and
+// the folders that cannot be read: each may hold a run, so it is an orphan
+// refused run with its Dir (and no File). The document folders at the root
+// (stations, references, specs, approvals) hold no runs; their readers
+// report them.
+func (f *archiveFS) runFiles(probs *[]*Problem) ([]string, []*RefusedRun) {
 	var out []string
+	var unreadable []*RefusedRun
 	filepath.WalkDir(f.root, func(p string, d fs.DirEntry, err error) error {
 		rel, rerr := filepath.Rel(f.root, p)
 		if rerr != nil {
@@ -406,7 +551,11 @@ func (f *archiveFS) runFiles(probs *[]*Problem) []string {
 		rel = filepath.ToSlash(rel)
 		if err != nil {
 			if rel != "." {
-				*probs = append(*probs, Problemf(rel, 0, "cannot be read (%v)", err))
+				p := Problemf(rel, 0, "cannot be read (%v)", err)
+				*probs = append(*probs, p)
+				if d != nil && d.IsDir() && !documentFolders[strings.Split(rel, "/")[0]] {
+					unreadable = append(unreadable, &RefusedRun{Dir: rel, Problems: []*Problem{p}})
+				}
 			}
 			if d != nil && d.IsDir() {
 				return fs.SkipDir
@@ -425,13 +574,21 @@ func (f *archiveFS) runFiles(probs *[]*Problem) []string {
 		return nil
 	})
 	sort.Strings(out)
-	return out
+	return out, unreadable
 }
 
-// parsedRun is one run.yaml read and parsed, or the problems that refused it.
+// documentFolders are the folders at the archive root that the contract
+// gives to other documents than runs.
+var documentFolders = map[string]bool{"stations": true, "references": true, "specs": true, "approvals": true}
+
+// parsedRun is one run.yaml read and parsed, or the problems that refused
+// it and what recoverRun could read of it.
 type parsedRun struct {
-	run      *Run
-	problems []*Problem
+	run        *Run
+	problems   []*Problem
+	serial     string
+	serialLine int
+	started    time.Time
 }
 
 // parseRuns reads and parses run files on every core: on a large archive
@@ -454,6 +611,7 @@ func parseRuns(fsys *archiveFS, files []string, lean bool) []parsedRun {
 				r, err := ParseRun(data, files[i])
 				if err != nil {
 					out[i].problems = Problems(err)
+					out[i].serial, out[i].serialLine, out[i].started = recoverRun(data)
 					continue
 				}
 				if lean {
@@ -486,4 +644,56 @@ func readDocuments(fsys *archiveFS, folder string, probs *[]*Problem, refused ma
 			refused[base] = rel
 		}
 	}
+}
+
+// topLevel returns the value nodes of the top-level keys of the first YAML
+// document in data, the first of a repeated key; nil when yaml.v3 cannot
+// parse it (it gives no partial tree) or it is not a mapping. It is the
+// lenient reading of a document the strict readers refused.
+func topLevel(data []byte) map[string]*yaml.Node {
+	var doc yaml.Node
+	if err := yaml.NewDecoder(bytes.NewReader(data)).Decode(&doc); err != nil || len(doc.Content) == 0 {
+		return nil
+	}
+	m := resolve(doc.Content[0])
+	if m == nil || m.Kind != yaml.MappingNode {
+		return nil
+	}
+	out := map[string]*yaml.Node{}
+	for i := 0; i+1 < len(m.Content); i += 2 {
+		k, v := resolve(m.Content[i]), resolve(m.Content[i+1])
+		if k == nil || k.Kind != yaml.ScalarNode || v == nil {
+			continue
+		}
+		if _, seen := out[k.Value]; !seen {
+			out[k.Value] = v
+		}
+	}
+	return out
+}
+
+// keyLine returns the line of key's value in data, 0 when it cannot be
+// found.
+func keyLine(data []byte, key string) int {
+	if v := topLevel(data)[key]; v != nil {
+		return v.Line
+	}
+	return 0
+}
+
+// recoverRun reads the serial and start of a refused run.yaml, so that the
+// refusal stays with its unit. Only what the strict reader would take is
+// taken: a serial that CheckIdentifier accepts, a start in RFC 3339;
+// anything else is left unknown ("", 0, zero time).
+func recoverRun(data []byte) (serial string, line int, started time.Time) {
+	top := topLevel(data)
+	if v := top["serial"]; v != nil && v.Kind == yaml.ScalarNode && v.Tag != "!!null" && CheckIdentifier(v.Value) == nil {
+		serial, line = v.Value, v.Line
+	}
+	if v := top["started"]; v != nil && v.Kind == yaml.ScalarNode {
+		if t, err := time.Parse(time.RFC3339, v.Value); err == nil {
+			started = t
+		}
+	}
+	return serial, line, started
 }

@@ -265,9 +265,13 @@ func TestBrokenArchive(t *testing.T) {
 			var probs []*Problem
 			u := bySerial[c.serial]
 			if c.serial == "BRK-UNKNOWN-KEY" {
-				// A refused run.yaml is not a run; discovery reports it.
-				if u != nil {
-					t.Fatal("a refused run.yaml is listed as a unit")
+				// A refused run.yaml is not a run; discovery reports it,
+				// and keeps it with its unit, which has no good run.
+				if u == nil || len(u.Runs) != 0 || len(u.Refused) != 1 || u.AcceptanceRefused() != u.Refused[0] || u.Acceptance() != nil {
+					t.Fatalf("a refused run.yaml alone makes unit %+v; expected one with no runs and it refused", u)
+				}
+				if rr := u.Refused[0]; rr.File != c.file || rr.Dir != "units/"+c.serial || rr.Serial != c.serial || rr.Started.IsZero() || len(rr.Problems) != 1 {
+					t.Errorf("refused run %+v", rr)
 				}
 				for _, p := range a.Problems {
 					if strings.HasPrefix(p.File, "units/"+c.serial+"/") {
@@ -411,7 +415,7 @@ func TestOpenCases(t *testing.T) {
 		}, 1, "references/t.csv", 3, "not above the previous 12 GHz"},
 		{"refused run", func(t *testing.T, f map[string]string) {
 			f["u/a/run.yaml"] = strings.Replace(f["u/a/run.yaml"], "schema: 1", "schema: 2", 1)
-		}, 0, "u/a/run.yaml", 1, "schema 2 is not supported"},
+		}, 1, "u/a/run.yaml", 1, "schema 2 is not supported"},
 		{"hidden folder", func(t *testing.T, f map[string]string) {
 			f["u/.trash/run.yaml"] = "not: a run\n"
 		}, 1, "", 0, ""},

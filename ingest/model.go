@@ -307,13 +307,70 @@ type RunData struct {
 
 // Unit is one serial number and its runs, oldest first: the last run is the
 // acceptance run, the others are its history.
+//
+// Refused lists the run.yaml files of this serial that were refused (see
+// RefusedRun). A unit may have Refused and no Runs at all: its only run.yaml
+// is broken. Such a unit is still listed, so that it is shown as a unit
+// that cannot be judged rather than missing from the archive.
 type Unit struct {
-	Serial string
-	Runs   []*Run
+	Serial  string
+	Runs    []*Run
+	Refused []*RefusedRun // in the order of their run.yaml paths
 }
 
-// Acceptance returns the run with the latest start.
-func (u *Unit) Acceptance() *Run { return u.Runs[len(u.Runs)-1] }
+// Acceptance returns the run with the latest start, or nil when the unit
+// has only refused runs.
+func (u *Unit) Acceptance() *Run {
+	if len(u.Runs) == 0 {
+		return nil
+	}
+	return u.Runs[len(u.Runs)-1]
+}
+
+// AcceptanceRefused returns the refused run that stands where the
+// acceptance run would be, or nil. A refused run whose start is unknown,
+// or not before the start of the latest good run, may be the unit's real
+// acceptance test: judging the older good run in its place would be wrong.
+// A refused run that started before the latest good run is only broken
+// history. When several stand there, an unknown start wins (it may be the
+// newest), then the latest start.
+func (u *Unit) AcceptanceRefused() *RefusedRun {
+	var best *RefusedRun
+	for _, rr := range u.Refused {
+		if n := len(u.Runs); n > 0 && !rr.Started.IsZero() && rr.Started.Before(u.Runs[n-1].Started) {
+			continue
+		}
+		switch {
+		case best == nil:
+			best = rr
+		case best.Started.IsZero():
+		case rr.Started.IsZero() || rr.Started.After(best.Started):
+			best = rr
+		}
+	}
+	return best
+}
+
+// RefusedRun is a run.yaml that discovery refused: broken YAML, an unknown
+// key, a bad value, a serial spelled like another unit's but for case, or a
+// file (or folder) that cannot be read at all. Its problems are also in
+// Archive.Problems. Serial and Started are read from the refused file
+// leniently, when they can be: a refused run with a serial belongs to that
+// unit (Unit.Refused); one without is in Archive.Orphans.
+type RefusedRun struct {
+	// File is the run.yaml path relative to the archive root, with '/';
+	// "" for a folder that could not be read (it may hold a run.yaml).
+	File string
+	// Dir is the run's folder relative to the archive root, with '/'.
+	Dir string
+	// Serial is the serial as the file writes it (for a case twin, not the
+	// unit's spelling), or "" when it cannot be read or is not a valid
+	// identifier.
+	Serial string
+	// Started is the start time, zero when it cannot be read.
+	Started  time.Time
+	Problems []*Problem
+}
 
 // Archive is what discovery found: the shared documents, every run grouped
 // by unit, and every problem met on the way. Data files of the runs are not
@@ -326,7 +383,12 @@ type Archive struct {
 	References map[string]*Reference // by id
 	Specs      map[string]*Spec      // by product
 	Units      []*Unit               // sorted by serial
+	// Orphans are refused runs that belong to no unit: their serial could
+	// not be read, or their folder or run.yaml could not be read at all.
+	// In the order of their paths.
+	Orphans []*RefusedRun
 	// Problems lists what discovery refused: broken YAML, escaping paths,
-	// duplicate runs. A run whose run.yaml was refused is not in Units.
+	// duplicate runs. A run whose run.yaml was refused is not in any
+	// Unit's Runs; it is in its Unit's Refused, or in Orphans.
 	Problems []*Problem
 }

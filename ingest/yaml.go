@@ -291,6 +291,21 @@ func (m *ymap) str(key string) (string, bool) {
 	return n.Value, true
 }
 
+// ident returns an identifier (serial, product, station or reference id,
+// beam id): text that CheckIdentifier accepts, since it becomes a folder or
+// file name of the site.
+func (m *ymap) ident(key string) (string, bool) {
+	s, ok := m.str(key)
+	if !ok {
+		return "", false
+	}
+	if err := CheckIdentifier(s); err != nil {
+		m.p.errf(m.line(key), "%s: %s %v", m.what, key, err)
+		return "", false
+	}
+	return s, true
+}
+
 // oneOf returns a text value that must be one of choices.
 func (m *ymap) oneOf(key string, choices ...string) (string, bool) {
 	s, ok := m.str(key)

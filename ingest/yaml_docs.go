@@ -27,7 +27,7 @@ func ParseStation(data []byte, name string) (*Station, error) {
 	}
 	s := &Station{File: name}
 	s.Schema = m.schema()
-	s.ID, _ = m.str("id")
+	s.ID, _ = m.ident("id")
 	if m.has("description") {
 		s.Description, _ = m.str("description")
 	}
@@ -123,7 +123,7 @@ func parseReference(data []byte, name string) (*Reference, int, error) {
 	}
 	r := &Reference{File: name}
 	r.Schema = m.schema()
-	r.ID, _ = m.str("id")
+	r.ID, _ = m.ident("id")
 	if m.has("description") {
 		r.Description, _ = m.str("description")
 	}
@@ -203,7 +203,7 @@ func ParseSpec(data []byte, name string) (*Spec, error) {
 	}
 	s := &Spec{File: name}
 	s.Schema = m.schema()
-	s.Product, _ = m.str("product")
+	s.Product, _ = m.ident("product")
 	if m.has("title") {
 		s.Title, _ = m.str("title")
 	}

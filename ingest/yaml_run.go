@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"regexp"
 	"strconv"
+	"strings"
 
 	"gopkg.in/yaml.v3"
 )
@@ -72,10 +73,10 @@ func ParseRun(data []byte, name string) (*Run, error) {
 		}
 	}
 	r.Schema = m.schema()
-	r.Serial, _ = m.str("serial")
-	r.Product, _ = m.str("product")
-	r.Station, _ = m.str("station")
-	r.Reference, _ = m.str("reference")
+	r.Serial, _ = m.ident("serial")
+	r.Product, _ = m.ident("product")
+	r.Station, _ = m.ident("station")
+	r.Reference, _ = m.ident("reference")
 	r.Started, _ = m.instant("started")
 	r.Operator, _ = m.str("operator")
 	if v, ok := m.num("ambient_c"); ok {
@@ -113,17 +114,23 @@ func ParseRun(data []byte, name string) (*Run, error) {
 		if len(items) == 0 {
 			m.invalid("beams", "is an empty list")
 		}
-		ids := map[string]int{}
+		// By the id in lower case: b00 and B00 would be one file name on
+		// a system that ignores case, so they are one beam.
+		ids := map[string]*Beam{}
 		for i, it := range items {
 			b, ok := parseBeam(p, it, i, r.KeyLines)
 			if !ok {
 				continue
 			}
-			if first, dup := ids[b.ID]; dup {
-				p.errf(b.Line, "run: beam id %q is repeated (first on line %d); expected each beam id once", b.ID, first)
+			if first, dup := ids[strings.ToLower(b.ID)]; dup {
+				if first.ID == b.ID {
+					p.errf(b.Line, "run: beam id %q is repeated (first on line %d); expected each beam id once", b.ID, first.Line)
+				} else {
+					p.errf(b.Line, "run: beam id %q is the same beam as %q (line %d), regardless of case; expected each beam id once, in one spelling", b.ID, first.ID, first.Line)
+				}
 				continue
 			}
-			ids[b.ID] = b.Line
+			ids[strings.ToLower(b.ID)] = &b
 			r.Beams = append(r.Beams, b)
 		}
 	}
@@ -154,7 +161,7 @@ func parseBeam(p *yparser, n *yaml.Node, i int, lines map[string]int) (Beam, boo
 		return Beam{}, false
 	}
 	b := Beam{Line: m.node.Line}
-	b.ID, _ = m.str("id")
+	b.ID, _ = m.ident("id")
 	if v, ok := m.num("theta_deg"); ok {
 		if v < 0 || v >= 90 {
 			m.invalid("theta_deg", "%v is outside [0, 90)", v)
