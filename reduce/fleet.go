@@ -17,6 +17,12 @@ type UnitSummary struct {
 	// Boresight is the G/T of the beam closest to boresight, for the
 	// fleet's per-frequency band; nil when the unit has none.
 	Boresight *BoresightTrace `json:"boresight,omitempty"`
+	// Stale says why the unit's files in the site are those of an earlier
+	// build (its acceptance run was refused); empty when they are current.
+	Stale string `json:"stale,omitempty"`
+	// NoReport is set when the site holds no report for the unit (its
+	// only runs were refused).
+	NoReport bool `json:"no_report,omitempty"`
 }
 
 // BoresightTrace is one unit's G/T against frequency at boresight.
@@ -32,17 +38,22 @@ type Fleet struct {
 	Schema   int            `json:"schema"`
 	Units    []FleetUnit    `json:"units"` // sorted by serial
 	Products []ProductFleet `json:"products"`
+	// Notices say what the pages do not show as they should (units a
+	// build could not write); empty when all is well.
+	Notices []string `json:"notices,omitempty"`
 }
 
 // FleetUnit is the fleet's view of one unit: what the overview and the
 // fleet workbook show of it, one entry per limit name rather than one per
 // limit and beam.
 type FleetUnit struct {
-	Serial  string           `json:"serial"`
-	Product string           `json:"product"`
-	Started string           `json:"started"`
-	Verdict string           `json:"verdict"`
-	Limits  []FleetUnitLimit `json:"limits"` // in the order of the names' first results
+	Serial   string           `json:"serial"`
+	Product  string           `json:"product"`
+	Started  string           `json:"started"`
+	Verdict  string           `json:"verdict"`
+	Limits   []FleetUnitLimit `json:"limits"`              // in the order of the names' first results
+	Stale    string           `json:"stale,omitempty"`     // see UnitSummary.Stale
+	NoReport bool             `json:"no_report,omitempty"` // see UnitSummary.NoReport
 }
 
 // FleetUnitLimit is a unit's result for one limit name over all the beams

@@ -148,7 +148,7 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 		return s
 	}
 	rec := fleetRecord{FleetUnit: FleetUnit{Serial: u.Serial, Product: u.Product, Started: u.Started,
-		Verdict: u.Verdict, Limits: []FleetUnitLimit{}}}
+		Verdict: u.Verdict, Limits: []FleetUnitLimit{}, Stale: u.Stale, NoReport: u.NoReport}}
 	for _, l := range u.Limits {
 		j := -1
 		for k := range rec.Limits {

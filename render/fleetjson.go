@@ -16,7 +16,7 @@ func WriteFleetJSON(w io.Writer, f *reduce.Fleet) error {
 	if f == nil {
 		return errors.New("render: FleetJSON of a nil fleet")
 	}
-	// The layout of appendJSON for reduce.Fleet's three fields.
+	// The layout of appendJSON for reduce.Fleet's fields (notices only when there are any).
 	b := append(make([]byte, 0, 64<<10), '{')
 	b = appendNewline(b, 1)
 	b = appendJSONString(b, "schema")
@@ -51,6 +51,15 @@ func WriteFleetJSON(w io.Writer, f *reduce.Fleet) error {
 	b = append(b, ':', ' ')
 	if b, err = appendJSON(b, reflect.ValueOf(f.Products), 1); err != nil {
 		return err
+	}
+	if len(f.Notices) > 0 {
+		b = append(b, ',')
+		b = appendNewline(b, 1)
+		b = appendJSONString(b, "notices")
+		b = append(b, ':', ' ')
+		if b, err = appendJSON(b, reflect.ValueOf(f.Notices), 1); err != nil {
+			return err
+		}
 	}
 	b = appendNewline(b, 0)
 	b = append(b, '}', '\n')

@@ -41,6 +41,7 @@ type indexView struct {
 	Histogram *chartSpec
 	Products  []productView
 	Cautions  string
+	Notices   []string
 }
 
 type unitRow struct {
@@ -66,7 +67,7 @@ type limitStatsRow struct {
 }
 
 func indexModel(f *reduce.Fleet) (*indexView, error) {
-	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions}
+	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions, Notices: f.Notices}
 	counts := map[string]int{}
 	var margins []float64
 	for _, u := range f.Units {

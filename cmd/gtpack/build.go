@@ -1,14 +1,17 @@
 package main
 
 import (
+	"errors"
 	"flag"
 	"fmt"
 	"hash/fnv"
 	"io"
 	"os"
+	"path"
 	"path/filepath"
 	"runtime"
 	"runtime/debug"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -84,6 +87,7 @@ type unitOutcome struct {
 	serial   string
 	state    *unitState
 	skipped  bool
+	stale    bool // the acceptance run was refused: the last build is kept
 	problems []*ingest.Problem
 	err      error
 }
@@ -106,10 +110,9 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	// workbook, the parsed inputs) over a live heap of a few tens of MB.
 	// At the default GOGC of 100 the collector ran several times a unit,
 	// and stopping the workers for it took a fifth of the CPU of a build.
-	// Unless GOGC is set, a build collects at 400 % growth instead, which
-	// took the sample archive at -j 2 from 68 to 118 MB resident. A soft
-	// memory limit keeps that growth from reaching the machine's memory on a
-	// large archive: near it the collector runs as often as it must.
+	// Unless GOGC is set, a build collects at 400 % growth instead. A soft
+	// memory limit keeps that growth from reaching the machine's memory on
+	// a large archive: near it the collector runs as often as it must.
 	//
 	// Discovery comes first, at the default rate: parsing ten thousand
 	// run.yaml files makes some 2 GB of short-lived garbage around 10 MB
@@ -124,14 +127,30 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	if os.Getenv("GOMEMLIMIT") == "" {
 		defer debug.SetMemoryLimit(debug.SetMemoryLimit(softMemoryLimit(o.jobs)))
 	}
-	site, err := openSite(o.site)
-	if err != nil {
-		return exitRefused, err
+	// A shard build holds its shard; anything that writes the fleet pages
+	// (a whole build, --only) holds the whole site.
+	scope := lockScope{}
+	if o.shardN > 0 && o.only == "" {
+		scope = lockScope{o.shardK, o.shardN}
 	}
+	site, err := openSite(o.site, true, "build", scope)
+	if err != nil {
+		return openSiteCode(err), err
+	}
+	defer site.close()
 	refused := false
 	for _, p := range archive.Problems {
 		fmt.Fprintln(stderr, p.Error())
 		refused = true
+	}
+	// What the fleet pages were made from, before this build changes a
+	// unit: if they cannot be made again, they stay only while it holds.
+	statesBefore, err := site.statesDigest()
+	if err != nil {
+		return exitSite, err
+	}
+	if err := adoptOrphans(site, archive); err != nil {
+		return exitSite, err
 	}
 
 	mine := func(serial string) bool {
@@ -153,12 +172,16 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	}
 	// Units that left the archive leave the site, unless the build is
 	// restricted to one serial (the rest of the archive was not looked at
-	// for that purpose).
+	// for that purpose). Only the files gtpack wrote for them go.
 	if o.only == "" {
-		if err := site.removeUnitsExcept(func(serial string) bool {
+		removed, err := site.removeUnitsExcept(func(serial string) bool {
 			return inArchive[serial] || !mine(serial)
-		}); err != nil {
-			return exitRefused, err
+		})
+		if err != nil {
+			return exitSite, err
+		}
+		if len(removed) > 0 && !o.quiet {
+			fmt.Fprintf(stderr, "gtpack: removed %d unit(s) that left the archive: %s\n", len(removed), listSome(removed))
 		}
 	}
 
@@ -184,51 +207,169 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 		close(outcomes)
 	}()
 
-	var built, skipped, incomplete, failed int
+	var built, skipped, incomplete, stale, failed int
+	var unwritten []string
+	owned := map[string]bool{}
+	thisBuild := map[string]bool{}
 	for out := range outcomes {
+		thisBuild[out.serial] = true
 		for _, p := range out.problems {
 			prog.println(fmt.Sprintf("%s (unit %s)", p.Error(), out.serial))
 			refused = true
 		}
+		var se *siteError
 		switch {
+		case errors.As(out.err, &se):
+			unwritten = append(unwritten, out.serial)
+			prog.println(fmt.Sprintf("%s: not written: %v", out.serial, out.err))
 		case out.err != nil:
 			failed++
 			refused = true
 			prog.println(fmt.Sprintf("%s: %v", out.serial, out.err))
+		case out.stale:
+			stale++
+			refused = true
 		case out.skipped:
 			skipped++
 		default:
 			built++
 		}
-		if out.state != nil && out.state.Summary.Verdict == reduce.VerdictIncomplete {
-			incomplete++
+		if out.state != nil {
+			if out.err == nil && out.state.Summary.Verdict == reduce.VerdictIncomplete {
+				incomplete++
+			}
+			for _, e := range out.state.Outputs {
+				owned[e.Path] = true
+			}
 		}
 		prog.unitDone(out)
 	}
 	prog.finish()
+	sort.Strings(unwritten)
 
-	if o.shardN == 0 && !site.fleetCurrent() {
-		// The fleet stage reads the states back from the site (the page
-		// cache has them) rather than holding them from the unit stage:
-		// its memory must not grow with the number of units. Its live heap
-		// is a few tens of MB, but decoding the states makes some 160 kB
-		// of garbage a unit: at the unit stage's GOGC of 400 the heap would
-		// grow to five times the live one before a collection.
-		if os.Getenv("GOGC") == "" {
-			debug.SetGCPercent(100)
+	code := exitOK
+	if refused {
+		code = exitRefused
+	}
+	var fleetErr error
+	if len(unwritten) > 0 {
+		code = exitSite
+	}
+	if o.shardN == 0 {
+		switch {
+		case site.hasPending():
+			// A unit's commit stopped half-way: its state may not describe
+			// its folder, so no manifest is made from the states now.
+			fleetErr = fmt.Errorf("the fleet pages and manifest.json were not written: some unit(s) could not be committed whole (see above); the next build finishes them")
+		case len(unwritten) > 0 || !site.fleetCurrent():
+			// The fleet stage reads the states back from the site (the page
+			// cache has them) rather than holding them from the unit stage:
+			// its memory must not grow with the number of units. Decoding
+			// the states makes some 160 kB of garbage a unit: at the unit
+			// stage's GOGC of 400 the heap would grow to five times the
+			// live one before a collection.
+			if os.Getenv("GOGC") == "" {
+				debug.SetGCPercent(100)
+			}
+			var notices []string
+			if len(unwritten) > 0 {
+				notices = append(notices, fmt.Sprintf("%d unit(s) could not be written by the last build and show the files of the build before it, if any: %s. Run the build again once the site can be written.", len(unwritten), strings.Join(unwritten, ", ")))
+			}
+			serials, err := site.serials()
+			if err == nil {
+				err = writeFleet(site, serials, notices)
+			}
+			fleetErr = err
 		}
-		if err := writeFleet(site); err != nil {
-			return exitRefused, err
+		if fleetErr != nil {
+			code = exitSite
+			fmt.Fprintf(stderr, "gtpack: %v\n", fleetErr)
+			// The fleet pages of the build before no longer describe the
+			// units under them: they go, rather than show hashes and
+			// verdicts that are not those of the files.
+			if d, err := site.statesDigest(); err == nil && d == statesBefore {
+				// No unit changed: the pages there still describe them.
+			} else if dropped := site.dropFleet(); len(dropped) > 0 {
+				fmt.Fprintf(stderr, "gtpack: removed the fleet pages of the build before (%s): they no longer describe the units; build again once the site can be written\n", strings.Join(dropped, ", "))
+			}
 		}
+	}
+	if st, ok := site.readFleetStamp(); ok {
+		for _, e := range st.Outputs {
+			owned[e.Path] = true
+		}
+	}
+	if theirs := site.personsFiles(owned, thisBuild, o.shardN == 0 && o.only == ""); len(theirs) > 0 {
+		fmt.Fprintf(stderr, "gtpack: left %d file(s) in %s that gtpack did not write: %s\n", len(theirs), o.site, listSome(theirs))
 	}
 	if !o.quiet {
-		fmt.Fprintf(stderr, "gtpack: %d unit(s) built, %d unchanged, %d incomplete, %d failed, in %.1f s -> %s\n",
-			built, skipped, incomplete, failed, time.Since(start).Seconds(), o.site)
+		fmt.Fprintf(stderr, "gtpack: %d unit(s) built, %d unchanged, %d stale, %d incomplete, %d failed, %d not written, in %.1f s -> %s\n",
+			built, skipped, stale, incomplete, failed, len(unwritten), time.Since(start).Seconds(), o.site)
 	}
-	if refused {
-		return exitRefused, nil
+	return code, nil
+}
+
+// listSome lists up to ten names, and how many more there are.
+func listSome(names []string) string {
+	if len(names) <= 10 {
+		return strings.Join(names, ", ")
 	}
-	return exitOK, nil
+	return fmt.Sprintf("%s and %d more", strings.Join(names[:10], ", "), len(names)-10)
+}
+
+// openSiteCode is the exit code of a site that could not be opened: 2 for
+// a folder that is not a site, 3 for one that cannot be written now.
+func openSiteCode(err error) int {
+	var ns *notSiteError
+	if errors.As(err, &ns) {
+		return exitUsage
+	}
+	return exitSite
+}
+
+// adoptOrphans gives the refused runs whose serial could not be read (an
+// unreadable folder or run.yaml) to the unit that the site recorded them
+// for, so that an older run does not silently become its acceptance run.
+func adoptOrphans(site *site, a *ingest.Archive) error {
+	if len(a.Orphans) == 0 {
+		return nil
+	}
+	serials, err := site.serials()
+	if err != nil {
+		return err
+	}
+	byFile := map[string]string{}
+	for _, serial := range serials {
+		st, err := site.readState(serial)
+		if err != nil || st == nil {
+			continue
+		}
+		for _, f := range st.Stamps {
+			byFile[f.Path] = serial
+		}
+		for _, d := range st.Runs {
+			byFile[path.Join(d, "run.yaml")] = serial
+		}
+	}
+	for _, orphan := range a.Orphans {
+		serial, ok := byFile[orphan.File]
+		if !ok {
+			serial, ok = byFile[path.Join(orphan.Dir, "run.yaml")]
+		}
+		if !ok {
+			continue
+		}
+		orphan.Serial = serial
+		i := sort.Search(len(a.Units), func(i int) bool { return a.Units[i].Serial >= serial })
+		if i < len(a.Units) && a.Units[i].Serial == serial {
+			a.Units[i].Refused = append(a.Units[i].Refused, orphan)
+			continue
+		}
+		a.Units = append(a.Units, nil)
+		copy(a.Units[i+1:], a.Units[i:])
+		a.Units[i] = &ingest.Unit{Serial: serial, Refused: []*ingest.RefusedRun{orphan}}
+	}
+	return nil
 }
 
 // buildUnit reduces and renders one unit, or skips it when nothing it
@@ -241,6 +382,14 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 			out.err = fmt.Errorf("internal error while building this unit: %v", r)
 		}
 	}()
+	old, err := site.readState(u.Serial)
+	if err != nil {
+		out.err = &siteError{fmt.Errorf("%v; expected the state gtpack wrote (remove it and the unit's files by hand to start the unit afresh)", err)}
+		return out
+	}
+	if r := u.AcceptanceRefused(); r != nil {
+		return keepStale(site, u, r, old)
+	}
 	// The archive was opened lean: each run is read whole here, one unit
 	// at a time, so that discovery holds little per unit.
 	runs := make([]*ingest.Run, len(u.Runs))
@@ -253,11 +402,9 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		runs[i] = full
 	}
 	stamps := stampFiles(a, runs)
-	if !force {
-		if st, ok := site.upToDate(u.Serial, stamps); ok {
-			out.state, out.skipped = st, true
-			return out
-		}
+	if !force && site.upToDate(old, stamps) {
+		out.state, out.skipped = old, true
+		return out
 	}
 
 	var history []reduce.HistoryEntry
@@ -276,20 +423,59 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		out.err = err
 		return out
 	}
-	outputs, err := site.writeUnit(u.Serial, files)
-	if err != nil {
-		out.err = err
-		return out
-	}
 	st := &unitState{
 		Serial:      u.Serial,
 		ToolVersion: render.Version,
 		Stamps:      stamps,
 		Inputs:      inputs,
-		Outputs:     outputs,
 		Summary:     res.Summary(),
 	}
-	if err := site.writeState(st); err != nil {
+	st.ReportStarted = st.Summary.Started
+	for _, r := range runs {
+		st.Runs = append(st.Runs, r.Dir)
+	}
+	if err := site.writeUnit(old, st, files); err != nil {
+		out.err = err
+		out.state = old // what the site still holds of the unit
+		return out
+	}
+	out.state = st
+	return out
+}
+
+// keepStale is the unit whose acceptance run was refused: its files in the
+// site stay those of its last build, and its state says it is stale and
+// incomplete, so that the overview shows it and counts it incomplete. An
+// older run never takes the refused run's place.
+func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState) unitOutcome {
+	out := unitOutcome{serial: u.Serial, stale: true}
+	started := ""
+	if !r.Started.IsZero() {
+		started = r.Started.UTC().Format(time.RFC3339)
+	}
+	st := &unitState{Serial: u.Serial, ToolVersion: render.Version}
+	sum := reduce.UnitSummary{Serial: u.Serial, Started: started, Verdict: reduce.VerdictIncomplete}
+	if old != nil && !old.Summary.NoReport {
+		*st = *old
+		was := old.ReportStarted
+		if was == "" {
+			was = old.Summary.Started // a state of 0.2.1
+		}
+		sum.Product = old.Summary.Product
+		sum.Stale = fmt.Sprintf("acceptance run %s was refused; the report shown is of the run started %s", r.File, was)
+	} else {
+		if len(u.Runs) > 0 {
+			sum.Product = u.Runs[len(u.Runs)-1].Product
+		}
+		sum.Stale = fmt.Sprintf("acceptance run %s was refused; no report was built", r.File)
+		sum.NoReport = true
+	}
+	st.Summary = sum
+	if old != nil && old.Summary.Stale == sum.Stale && old.Summary.Started == sum.Started && old.Summary.Verdict == sum.Verdict {
+		out.state = old // already recorded so: nothing to write
+		return out
+	}
+	if err := site.writeStateOnly(st); err != nil {
 		out.err = err
 		return out
 	}
@@ -345,14 +531,48 @@ func cmdIndex(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return exitUsage, err
 	}
-	site, err := openSite(pos[0])
+	site, err := openSite(pos[0], false, "index", lockScope{})
 	if err != nil {
-		return exitRefused, err
+		return openSiteCode(err), err
 	}
-	if err := writeFleet(site); err != nil {
-		return exitRefused, err
+	defer site.close()
+	serials, err := site.serials()
+	if err != nil {
+		return exitSite, err
 	}
-	return exitOK, nil
+	// Every unit's files are checked against what was recorded for them
+	// before they go into the manifest: a unit whose files are missing or
+	// changed is left out, named, and made again by the next build.
+	code := exitOK
+	var keep, dropped []string
+	for _, serial := range serials {
+		st, err := site.readState(serial)
+		if err != nil {
+			return exitSite, err
+		}
+		if why := site.checkOutputs(st); why != "" {
+			fmt.Fprintf(stderr, "%s: unit %s left out of the fleet pages and the manifest: %s; gtpack build makes it again\n",
+				filepath.Join(site.dir, unitDir(serial)), serial, why)
+			dropped = append(dropped, serial)
+			code = exitRefused
+			if !st.Damaged {
+				st.Damaged = true
+				if err := site.writeStateOnly(st); err != nil {
+					return exitSite, err
+				}
+			}
+			continue
+		}
+		keep = append(keep, serial)
+	}
+	var notices []string
+	if len(dropped) > 0 {
+		notices = append(notices, fmt.Sprintf("%d unit(s) are left out because their files in the site are not those gtpack wrote: %s.", len(dropped), strings.Join(dropped, ", ")))
+	}
+	if err := writeFleet(site, keep, notices); err != nil {
+		return exitSite, err
+	}
+	return code, nil
 }
 
 // inside reports whether path is dir or lies below it, after resolving

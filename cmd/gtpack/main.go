@@ -21,6 +21,7 @@ const (
 	exitOK      = 0
 	exitRefused = 1
 	exitUsage   = 2
+	exitSite    = 3 // the site could not be written: what was there is kept whole
 )
 
 const usage = `gtpack: G/T acceptance packages from range measurement archives
@@ -33,7 +34,8 @@ usage:
   gtpack demo DIR [--units N] [--seed S]  write a synthetic archive from a physical model
   gtpack version
 
-exit codes: 0 done; 1 done, but some inputs were refused; 2 usage error
+exit codes: 0 done; 1 done, but some inputs were refused; 2 usage error;
+  3 the site could not be written (no space, no permission, locked by another build)
 `
 
 func main() {

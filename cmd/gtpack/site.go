@@ -5,6 +5,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"hash"
 	"io"
@@ -15,29 +16,72 @@ import (
 	"runtime"
 	"sort"
 	"strings"
-	"sync"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
 	"gtpack.example/gtpack/render"
 )
 
-// The build keeps, beside the site, one small state file per unit under
-// SITE/.gtpack/units/. It records what the unit was built from (file sizes
-// and modification times, the tool version), what was written, and the
-// unit's summary for the fleet pages. A unit's state is written after all
-// of its outputs, so a build killed at any moment leaves either a complete
-// record or none, and the next build redoes the unit. The state folder is a
-// build cache, not part of the package: manifest.json does not list it.
+// A site holds only what gtpack wrote there and what a person added. The
+// build keeps, beside the package, a folder SITE/.gtpack/ (a build cache,
+// not part of the package, never in the manifest):
+//
+//	.gtpack/units/<serial>.json   per unit: what it was built from and the
+//	                              files gtpack wrote for it (its outputs)
+//	.gtpack/fleet-stamp.json      the fleet pages gtpack wrote, and from what
+//	.gtpack/pending/*.json        journals of commits under way (below)
+//	.gtpack/locks/                one lock file per live writer (lock.go)
+//
+// Ownership: the outputs recorded there are the only files a build
+// replaces or removes. Anything else in the site is a person's: it is left
+// where it is, named once at the end of a build, and a build that would
+// have to overwrite it stops for that unit instead.
+//
+// Whole units: a unit's files are written under temporary names, synced,
+// and a journal listing the renames (the unit's new state last) is synced
+// into .gtpack/pending/ before the first rename. A build killed at any
+// moment leaves either the old unit (no journal yet: its temporaries are
+// removed at the next start) or a journal, which the next build carries
+// out to its end before anything else. The fleet pages, results.csv,
+// manifest.json and the fleet stamp are committed the same way, as one.
+//
+// Confinement: every path the build writes or removes is relative to the
+// site, cleaned, without "..", and no part of it that exists may be a
+// symbolic link; the operations themselves go through an os.Root of the
+// site, which refuses any path that resolves outside it.
 const stateDir = ".gtpack"
 
-// tempSuffix marks a file being written; leftovers of a killed build are
-// removed when the site is opened.
+// tempSuffix ends the name of a file being written:
+// ".<name>.<build id>.gtpack-tmp" beside its final name.
 const tempSuffix = ".gtpack-tmp"
 
 type site struct {
-	dir string
+	dir  string
+	root *os.Root
+	id   string // this process's build id
+	lock *siteLock
 }
+
+// siteError is a failure to write the site itself (no space, no
+// permission, a link or a person's file in the way): exit 3.
+type siteError struct{ err error }
+
+func (e *siteError) Error() string { return e.err.Error() }
+func (e *siteError) Unwrap() error { return e.err }
+
+func siteErr(err error) error {
+	var se *siteError
+	if err == nil || errors.As(err, &se) {
+		return err
+	}
+	return &siteError{err}
+}
+
+// notSiteError is a folder that is not a site (exit 2): nothing in it is
+// changed.
+type notSiteError struct{ msg string }
+
+func (e *notSiteError) Error() string { return e.msg }
 
 // fileStamp is how the build tells whether an input changed without
 // reading it.
@@ -48,38 +92,391 @@ type fileStamp struct {
 }
 
 type unitState struct {
-	Serial      string                 `json:"serial"`
-	ToolVersion string                 `json:"tool_version"`
-	Stamps      []fileStamp            `json:"stamps"`
-	Inputs      []ingest.InputFile     `json:"inputs"`
-	Outputs     []render.ManifestEntry `json:"outputs"`
-	Summary     reduce.UnitSummary     `json:"summary"`
+	Serial      string   `json:"serial"`
+	ToolVersion string   `json:"tool_version"`
+	Runs        []string `json:"runs,omitempty"` // run folders, oldest first
+	// ReportStarted is the start of the run the outputs were built from;
+	// it stays when a refused retest makes the unit stale.
+	ReportStarted string                 `json:"report_started,omitempty"`
+	Stamps        []fileStamp            `json:"stamps"`
+	Inputs        []ingest.InputFile     `json:"inputs"`
+	Outputs       []render.ManifestEntry `json:"outputs"`
+	Summary       reduce.UnitSummary     `json:"summary"`
+	// Damaged is set by gtpack index for a unit whose files no longer
+	// are the ones recorded: the next build makes it again.
+	Damaged bool `json:"damaged,omitempty"`
 }
 
-func openSite(dir string) (*site, error) {
-	if err := os.MkdirAll(filepath.Join(dir, stateDir, "units"), 0o755); err != nil {
-		return nil, err
+// openSite opens the site at dir for writing with the lock of scope. A
+// missing folder is made when create is set; an existing folder must be
+// a site (it has .gtpack/) or, when create is set, empty. Journals of
+// dead builds are carried out and their temporary files removed before
+// it returns.
+func openSite(dir string, create bool, command string, scope lockScope) (*site, error) {
+	fi, err := os.Stat(dir)
+	switch {
+	case errors.Is(err, fs.ErrNotExist) && create:
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return nil, siteErr(err)
+		}
+	case errors.Is(err, fs.ErrNotExist):
+		return nil, &notSiteError{fmt.Sprintf("%s does not exist; expected a site folder that gtpack build wrote", dir)}
+	case err != nil:
+		return nil, siteErr(err)
+	case !fi.IsDir():
+		return nil, &notSiteError{fmt.Sprintf("%s is not a folder; expected a site folder", dir)}
 	}
-	s := &site{dir: dir}
-	// Remove half-written files of an interrupted build.
-	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+	sfi, err := os.Lstat(filepath.Join(dir, stateDir))
+	switch {
+	case err == nil && !sfi.IsDir():
+		return nil, &notSiteError{fmt.Sprintf("%s is not a folder (a file or a link); expected the site's own .gtpack folder", filepath.Join(dir, stateDir))}
+	case errors.Is(err, fs.ErrNotExist) && !create:
+		return nil, &notSiteError{fmt.Sprintf("%s is not a gtpack site (it has no %s folder); expected a folder that gtpack build wrote", dir, stateDir)}
+	case errors.Is(err, fs.ErrNotExist):
+		entries, err := os.ReadDir(dir)
 		if err != nil {
-			return err
+			return nil, siteErr(err)
 		}
-		if !d.IsDir() && strings.HasSuffix(d.Name(), tempSuffix) {
-			return os.Remove(p)
+		if len(entries) > 0 {
+			return nil, &notSiteError{fmt.Sprintf("%s is not empty and is not a gtpack site (it holds %s and has no %s folder); gtpack writes a new site only into a new or empty folder, so that it never overwrites or deletes what it did not write", dir, entries[0].Name(), stateDir)}
 		}
-		return nil
-	})
-	return s, err
+	case err != nil:
+		return nil, siteErr(err)
+	}
+	root, err := os.OpenRoot(dir)
+	if err != nil {
+		return nil, siteErr(err)
+	}
+	s := &site{dir: dir, root: root, id: newBuildID()}
+	for _, d := range []string{"units", "pending", "locks"} {
+		if err := root.MkdirAll(path.Join(stateDir, d), 0o755); err != nil {
+			root.Close()
+			return nil, siteErr(err)
+		}
+	}
+	s.lock, err = acquireLock(dir, s.id, command, scope, s.recover)
+	if err != nil {
+		root.Close()
+		return nil, siteErr(err)
+	}
+	return s, nil
+}
+
+// close releases the site's lock.
+func (s *site) close() {
+	s.lock.release()
+	s.root.Close()
+}
+
+// rel checks that p (slash-separated, relative to the site) is a path the
+// build may write or remove: clean, inside the site, and with no part that
+// is a symbolic link. It returns p.
+func (s *site) rel(p string) (string, error) {
+	if p == "" || path.IsAbs(p) || path.Clean(p) != p || p == "." || strings.Contains(p, "\\") {
+		return "", &siteError{fmt.Errorf("%s: not a clean path inside the site; gtpack writes nowhere else", p)}
+	}
+	parts := strings.Split(p, "/")
+	for i := range parts {
+		if parts[i] == ".." || parts[i] == "." {
+			return "", &siteError{fmt.Errorf("%s: leads out of the site; gtpack writes nowhere else", p)}
+		}
+		fi, err := s.root.Lstat(path.Join(parts[:i+1]...))
+		if errors.Is(err, fs.ErrNotExist) {
+			break
+		}
+		if err != nil {
+			return "", siteErr(err)
+		}
+		if fi.Mode()&fs.ModeSymlink != 0 {
+			return "", &siteError{fmt.Errorf("%s: %s is a symbolic link; gtpack follows no link inside a site (remove the link and build again)", p, path.Join(parts[:i+1]...))}
+		}
+		if i < len(parts)-1 && !fi.IsDir() {
+			return "", &siteError{fmt.Errorf("%s: %s is a file where gtpack needs a folder", p, path.Join(parts[:i+1]...))}
+		}
+	}
+	return p, nil
 }
 
 func (s *site) statePath(serial string) string {
-	return filepath.Join(s.dir, stateDir, "units", serial+".json")
+	return path.Join(stateDir, "units", serial+".json")
 }
 
-func (s *site) unitDir(serial string) string {
-	return filepath.Join(s.dir, "units", serial)
+func unitDir(serial string) string { return path.Join("units", serial) }
+
+// recover runs under the lock guard: it carries out the journals of builds
+// that are no longer alive and removes their temporary files. live holds
+// the build ids of the writers alive now.
+func (s *site) recover(live map[string]bool) error {
+	pending := path.Join(stateDir, "pending")
+	entries, err := fs.ReadDir(s.root.FS(), pending)
+	if err != nil {
+		return err
+	}
+	for _, e := range entries {
+		name, ok := strings.CutSuffix(e.Name(), ".json")
+		if !ok || live[name[strings.LastIndexByte(name, '.')+1:]] {
+			continue
+		}
+		if err := s.replay(path.Join(pending, e.Name())); err != nil {
+			return fmt.Errorf("%s: %w", filepath.Join(s.dir, pending, e.Name()), err)
+		}
+	}
+	return fs.WalkDir(s.root.FS(), ".", func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		name, ok := strings.CutSuffix(d.Name(), tempSuffix)
+		if d.IsDir() || !ok || d.Type()&fs.ModeSymlink != 0 {
+			return nil
+		}
+		if live[name[strings.LastIndexByte(name, '.')+1:]] {
+			return nil // a live build's file
+		}
+		return s.root.Remove(p)
+	})
+}
+
+// journal is a commit under way: renames in order, then removals.
+type journal struct {
+	Renames []renameOp `json:"renames"`
+	Removes []string   `json:"removes"`
+}
+
+type renameOp struct {
+	Tmp   string `json:"tmp"`
+	Final string `json:"final"`
+}
+
+// replay carries out a journal left by a dead build: every rename whose
+// temporary file is still there, every removal, then drops the journal.
+func (s *site) replay(jpath string) error {
+	data, err := s.root.ReadFile(jpath)
+	if err != nil {
+		return err
+	}
+	var j journal
+	if err := json.Unmarshal(data, &j); err != nil {
+		// Journals are written whole and synced before they are renamed
+		// into place, so this one was not written by gtpack.
+		return fmt.Errorf("not a journal gtpack wrote: %v; remove it by hand", err)
+	}
+	if err := s.apply(j); err != nil {
+		return err
+	}
+	return s.root.Remove(jpath)
+}
+
+func (s *site) apply(j journal) error {
+	dirs := map[string]bool{}
+	for _, r := range j.Renames {
+		if _, err := s.rel(r.Tmp); err != nil {
+			return err
+		}
+		if _, err := s.rel(r.Final); err != nil {
+			return err
+		}
+		if _, err := s.root.Lstat(r.Tmp); errors.Is(err, fs.ErrNotExist) {
+			continue // renamed before the build stopped
+		}
+		if err := s.root.Rename(r.Tmp, r.Final); err != nil {
+			return err
+		}
+		dirs[path.Dir(r.Final)] = true
+	}
+	for _, p := range j.Removes {
+		if _, err := s.rel(p); err != nil {
+			return err
+		}
+		if err := s.root.Remove(p); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return err
+		}
+		dirs[path.Dir(p)] = true
+	}
+	for d := range dirs {
+		if err := s.syncDir(d); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func (s *site) syncDir(d string) error {
+	f, err := s.root.Open(d)
+	if err != nil {
+		return err
+	}
+	err = f.Sync()
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	return err
+}
+
+// txn is a set of site files replaced together (see the top of the file).
+type txn struct {
+	s       *site
+	name    string // the journal's name: unit-<serial> or fleet
+	j       journal
+	aborted bool
+}
+
+func (s *site) begin(name string) *txn { return &txn{s: s, name: name} }
+
+// create starts the file rel of the transaction, buffered for writes in
+// small pieces; its commit adds it to the transaction.
+func (t *txn) create(rel string) (*atomicFile, error) {
+	a, err := t.createUnbuffered(rel)
+	if err == nil {
+		a.w = bufio.NewWriterSize(a.f, 256<<10)
+	}
+	return a, err
+}
+
+func (t *txn) createUnbuffered(rel string) (*atomicFile, error) {
+	if _, err := t.s.rel(rel); err != nil {
+		return nil, err
+	}
+	if err := t.s.root.MkdirAll(path.Dir(rel), 0o755); err != nil {
+		return nil, siteErr(err)
+	}
+	// The folder may have been made just now: check the path again.
+	if _, err := t.s.rel(rel); err != nil {
+		return nil, err
+	}
+	tmp := path.Join(path.Dir(rel), "."+path.Base(rel)+"."+t.s.id+tempSuffix)
+	f, err := t.s.root.OpenFile(tmp, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+	if err != nil {
+		return nil, siteErr(err)
+	}
+	return &atomicFile{t: t, f: f, h: sha256.New(), rel: rel, tmp: tmp}, nil
+}
+
+// put writes the file rel whole.
+func (t *txn) put(rel string, data []byte) (render.ManifestEntry, error) {
+	a, err := t.createUnbuffered(rel)
+	if err != nil {
+		return render.ManifestEntry{}, err
+	}
+	if _, err := a.Write(data); err != nil {
+		a.abort()
+		return render.ManifestEntry{}, siteErr(err)
+	}
+	return a.commit()
+}
+
+// remove adds the removal of the site file rel.
+func (t *txn) remove(rel string) { t.j.Removes = append(t.j.Removes, rel) }
+
+// commit syncs the journal into place, carries it out and drops it. An
+// error before the journal is in place leaves the site as it was; after
+// it, the next build finishes the commit.
+func (t *txn) commit() error {
+	if len(t.j.Renames) == 0 && len(t.j.Removes) == 0 {
+		return nil
+	}
+	data, err := json.Marshal(t.j)
+	if err != nil {
+		return err
+	}
+	jrel := path.Join(stateDir, "pending", t.name+"."+t.s.id+".json")
+	jtmp := path.Join(stateDir, "pending", "."+t.name+".json."+t.s.id+tempSuffix)
+	if err := t.s.writeSynced(jtmp, data); err != nil {
+		t.s.root.Remove(jtmp)
+		t.abort()
+		return siteErr(err)
+	}
+	if err := t.s.root.Rename(jtmp, jrel); err != nil {
+		t.s.root.Remove(jtmp)
+		t.abort()
+		return siteErr(err)
+	}
+	if err := t.s.syncDir(path.Dir(jrel)); err != nil {
+		return siteErr(err) // the journal may be in place: the next build finishes
+	}
+	if err := t.s.apply(t.j); err != nil {
+		return siteErr(err)
+	}
+	return siteErr(t.s.root.Remove(jrel))
+}
+
+// abort removes the transaction's temporary files; nothing final changed.
+func (t *txn) abort() {
+	if t.aborted {
+		return
+	}
+	t.aborted = true
+	for _, r := range t.j.Renames {
+		t.s.root.Remove(r.Tmp)
+	}
+}
+
+func (s *site) writeSynced(rel string, data []byte) error {
+	f, err := s.root.OpenFile(rel, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o644)
+	if err != nil {
+		return err
+	}
+	_, err = f.Write(data)
+	if err == nil {
+		err = f.Sync()
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	return err
+}
+
+// atomicFile is a file of a transaction, written under its temporary
+// name; it counts its size and SHA-256 for the manifest as it goes.
+type atomicFile struct {
+	t      *txn
+	f      *os.File
+	w      *bufio.Writer // nil: writes go straight to f
+	h      hash.Hash
+	n      int64
+	rel    string
+	tmp    string
+	closed bool
+}
+
+func (a *atomicFile) Write(p []byte) (int, error) {
+	a.h.Write(p) // a hash never fails
+	a.n += int64(len(p))
+	if a.w == nil {
+		return a.f.Write(p)
+	}
+	return a.w.Write(p)
+}
+
+// commit flushes, syncs and closes the file and adds its rename to the
+// transaction; it returns the file's manifest entry.
+func (a *atomicFile) commit() (render.ManifestEntry, error) {
+	a.closed = true
+	var err error
+	if a.w != nil {
+		err = a.w.Flush()
+	}
+	if err == nil {
+		err = a.f.Sync()
+	}
+	if cerr := a.f.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		a.t.s.root.Remove(a.tmp)
+		return render.ManifestEntry{}, siteErr(err)
+	}
+	a.t.j.Renames = append(a.t.j.Renames, renameOp{Tmp: a.tmp, Final: a.rel})
+	return render.ManifestEntry{Path: a.rel, Size: a.n, SHA256: hex.EncodeToString(a.h.Sum(nil))}, nil
+}
+
+// abort drops a file not committed; it does nothing after commit.
+func (a *atomicFile) abort() {
+	if a.closed {
+		return
+	}
+	a.closed = true
+	a.f.Close()
+	a.t.s.root.Remove(a.tmp)
 }
 
 // stampFiles stats every file the unit's runs depend on.
@@ -103,108 +500,189 @@ func stampFiles(a *ingest.Archive, runs []*ingest.Run) []fileStamp {
 	return stamps
 }
 
-// upToDate returns the unit's recorded state when its inputs and the tool
-// are unchanged and its outputs are still in place.
-func (s *site) upToDate(serial string, stamps []fileStamp) (*unitState, bool) {
-	st, err := s.readState(s.statePath(serial))
-	if err != nil || st.ToolVersion != render.Version || len(st.Stamps) != len(stamps) {
-		return nil, false
+// upToDate says whether the unit's recorded state st was built by this
+// tool version from inputs with these stamps, and its outputs are still in
+// place.
+func (s *site) upToDate(st *unitState, stamps []fileStamp) bool {
+	if st == nil || st.Damaged || st.Summary.Stale != "" || st.ToolVersion != render.Version || len(st.Stamps) != len(stamps) {
+		return false
 	}
 	for i := range stamps {
 		if st.Stamps[i] != stamps[i] {
-			return nil, false
+			return false
 		}
 	}
 	for _, o := range st.Outputs {
-		fi, err := os.Stat(filepath.Join(s.dir, filepath.FromSlash(o.Path)))
-		if err != nil || fi.Size() != o.Size {
-			return nil, false
+		fi, err := s.root.Lstat(o.Path)
+		if err != nil || !fi.Mode().IsRegular() || fi.Size() != o.Size {
+			return false
 		}
 	}
-	return st, true
+	return true
 }
 
-func (s *site) readState(p string) (*unitState, error) {
-	data, err := os.ReadFile(p)
+// readState returns the unit's recorded state; nil, nil when it has none.
+func (s *site) readState(serial string) (*unitState, error) {
+	data, err := s.root.ReadFile(s.statePath(serial))
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil, nil
+	}
 	if err != nil {
 		return nil, err
 	}
 	var st unitState
 	if err := json.Unmarshal(data, &st); err != nil {
-		return nil, fmt.Errorf("%s: %w", p, err)
+		return nil, fmt.Errorf("%s: %w", filepath.Join(s.dir, s.statePath(serial)), err)
 	}
 	return &st, nil
 }
 
-func (s *site) writeState(st *unitState) error {
-	data, err := json.Marshal(st)
-	if err != nil {
-		return err
-	}
-	_, err = s.writeFile(path.Join(stateDir, "units", st.Serial+".json"), data)
-	return err
-}
-
-// writeUnit writes the unit's files into its folder and removes files of
-// an earlier build that are no longer written.
-func (s *site) writeUnit(serial string, files map[string][]byte) ([]render.ManifestEntry, error) {
-	dir := s.unitDir(serial)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, err
+// writeUnit replaces the unit's files with files (by name within its
+// folder) and its state with st, as one commit: old outputs that are not
+// written again are removed, anything else in the folder is left alone. A
+// file in the way that gtpack did not write stops the unit. st.Outputs is
+// set to what was written.
+func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
+	owned := map[string]bool{}
+	if old != nil {
+		for _, o := range old.Outputs {
+			owned[o.Path] = true
+		}
 	}
 	names := make([]string, 0, len(files))
 	for n := range files {
 		names = append(names, n)
 	}
 	sort.Strings(names)
-	var entries []render.ManifestEntry
+	t := s.begin("unit-" + st.Serial)
+	st.Outputs = nil
+	written := map[string]bool{}
 	for _, n := range names {
-		e, err := s.writeFile(path.Join("units", serial, n), files[n])
-		if err != nil {
-			return nil, err
+		rel := path.Join(unitDir(st.Serial), n)
+		if err := s.notAPersonsFile(rel, owned); err != nil {
+			t.abort()
+			return err
 		}
-		entries = append(entries, e)
+		e, err := t.put(rel, files[n])
+		if err != nil {
+			t.abort()
+			return err
+		}
+		st.Outputs = append(st.Outputs, e)
+		written[rel] = true
 	}
-	old, err := os.ReadDir(dir)
+	for p := range owned {
+		if !written[p] {
+			t.remove(p)
+		}
+	}
+	sort.Strings(t.j.Removes)
+	data, err := json.Marshal(st)
+	if err != nil {
+		t.abort()
+		return err
+	}
+	if _, err := t.put(s.statePath(st.Serial), data); err != nil {
+		t.abort()
+		return err
+	}
+	return t.commit()
+}
+
+// writeStateOnly replaces the unit's state and nothing else.
+func (s *site) writeStateOnly(st *unitState) error {
+	data, err := json.Marshal(st)
+	if err != nil {
+		return err
+	}
+	t := s.begin("unit-" + st.Serial)
+	if _, err := t.put(s.statePath(st.Serial), data); err != nil {
+		t.abort()
+		return err
+	}
+	return t.commit()
+}
+
+// notAPersonsFile refuses to write rel over a file gtpack did not write.
+func (s *site) notAPersonsFile(rel string, owned map[string]bool) error {
+	if owned[rel] {
+		return nil
+	}
+	if _, err := s.root.Lstat(rel); err == nil {
+		return &siteError{fmt.Errorf("%s: this file was not written by gtpack, and gtpack does not overwrite it; move it out of the site and build again", filepath.Join(s.dir, rel))}
+	}
+	return nil
+}
+
+// removeUnitsExcept removes, for every unit state for which keep is
+// false, the files gtpack wrote for the unit and then its state; the
+// unit's folder goes only when nothing else is left in it. It returns the
+// serials removed.
+func (s *site) removeUnitsExcept(keep func(serial string) bool) ([]string, error) {
+	serials, err := s.serials()
 	if err != nil {
 		return nil, err
 	}
-	for _, e := range old {
-		if _, keep := files[e.Name()]; !keep {
-			if err := os.RemoveAll(filepath.Join(dir, e.Name())); err != nil {
-				return nil, err
+	var removed []string
+	for _, serial := range serials {
+		if keep(serial) {
+			continue
+		}
+		st, err := s.readState(serial)
+		if err != nil {
+			return removed, err
+		}
+		t := s.begin("unit-" + serial)
+		if st != nil {
+			for _, o := range st.Outputs {
+				t.remove(o.Path)
 			}
 		}
+		t.remove(s.statePath(serial))
+		if err := t.commit(); err != nil {
+			return removed, err
+		}
+		s.root.Remove(unitDir(serial)) // only when empty: a person's files keep it
+		removed = append(removed, serial)
 	}
-	return entries, nil
+	return removed, nil
 }
 
-// removeUnitsExcept deletes the folders and states of units for which keep
-// is false.
-func (s *site) removeUnitsExcept(keep func(serial string) bool) error {
-	var drop []string
-	if entries, err := os.ReadDir(filepath.Join(s.dir, stateDir, "units")); err == nil {
-		for _, e := range entries {
-			if serial, ok := strings.CutSuffix(e.Name(), ".json"); ok && !keep(serial) {
-				drop = append(drop, s.statePath(serial))
+// personsFiles lists the files of the site that gtpack did not write,
+// outside .gtpack/: everything at the top and under units/ that is not a
+// recorded output. Only the unit folders of the serials in units are
+// looked into (a shard looks only at its own), and folders under units/
+// that no unit state names.
+func (s *site) personsFiles(owned map[string]bool, units map[string]bool, allUnits bool) []string {
+	known := map[string]bool{}
+	if serials, err := s.serials(); err == nil {
+		for _, serial := range serials {
+			known[serial] = true
+		}
+	}
+	var out []string
+	fs.WalkDir(s.root.FS(), ".", func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return nil
+		}
+		if p == stateDir {
+			return fs.SkipDir
+		}
+		if d.IsDir() {
+			if parts := strings.Split(p, "/"); len(parts) == 2 && parts[0] == "units" {
+				if known[parts[1]] && !units[parts[1]] && !allUnits {
+					return fs.SkipDir
+				}
 			}
+			return nil
 		}
-	}
-	if entries, err := os.ReadDir(filepath.Join(s.dir, "units")); err == nil {
-		for _, e := range entries {
-			if !keep(e.Name()) {
-				drop = append(drop, s.unitDir(e.Name()))
-			}
+		if !owned[p] {
+			out = append(out, p)
 		}
-	}
-	// States go first: a unit without a state is rebuilt or removed by the
-	// next build, whatever moment this one is stopped at.
-	for _, p := range drop {
-		if err := os.RemoveAll(p); err != nil {
-			return err
-		}
-	}
-	return nil
+		return nil
+	})
+	sort.Strings(out)
+	return out
 }
 
 // fleetState is the part of a unit state the fleet stage reads; the
@@ -218,13 +696,13 @@ type fleetState struct {
 
 // serials lists the serial numbers of the site's unit states, sorted.
 func (s *site) serials() ([]string, error) {
-	entries, err := os.ReadDir(filepath.Join(s.dir, stateDir, "units"))
+	entries, err := fs.ReadDir(s.root.FS(), path.Join(stateDir, "units"))
 	if err != nil {
 		return nil, err
 	}
 	var out []string
 	for _, e := range entries {
-		if serial, ok := strings.CutSuffix(e.Name(), ".json"); ok && !e.IsDir() {
+		if serial, ok := strings.CutSuffix(e.Name(), ".json"); ok && e.Type().IsRegular() && !strings.HasPrefix(serial, ".") {
 			out = append(out, serial)
 		}
 	}
@@ -251,18 +729,15 @@ func (s *site) eachState(serials []string, fn func(*fleetState) error) error {
 	queue := make(chan chan result, 2*workers) // in serial order
 	done := make(chan struct{})
 	defer close(done)
-	var wg sync.WaitGroup
 	for range workers {
-		wg.Add(1)
 		go func() {
-			defer wg.Done()
 			for j := range jobs {
 				p := s.statePath(j.serial)
 				var st fleetState
-				data, err := os.ReadFile(p)
+				data, err := s.root.ReadFile(p)
 				if err == nil {
 					if err = json.Unmarshal(data, &st); err != nil {
-						err = fmt.Errorf("%s: %w", p, err)
+						err = fmt.Errorf("%s: %w", filepath.Join(s.dir, p), err)
 					}
 				}
 				j.out <- result{&st, err}
@@ -299,28 +774,45 @@ func (s *site) eachState(serials []string, fn func(*fleetState) error) error {
 	return err // done is closed: the sender and the workers stop
 }
 
-// writeFleet writes the fleet pages and the manifest from the units'
-// states alone, in one pass over the states in serial order: each state is
+// writeFleet writes the fleet pages and the manifest from the states of
+// serials alone, in one pass over them in serial order: each state is
 // handed to the fleet statistics (reduce.FleetBuilder keeps a small record
 // of it), to results.csv and to manifest.json, and dropped. The fleet pages
 // follow from the finished statistics; the manifest, which lists them,
-// comes last.
-func writeFleet(s *site) (err error) {
-	serials, err := s.serials()
+// comes last, and all of them with the fleet stamp are one commit. notices
+// are shown on the overview and kept in fleet.json (a build that could not
+// write every unit says so there).
+func writeFleet(s *site, serials []string, notices []string) (err error) {
+	digest, err := s.statesDigest()
 	if err != nil {
 		return err
 	}
-	digest, err := s.statesDigest(serials)
-	if err != nil {
-		return err
+	// The fleet pages gtpack wrote before; only those may be replaced.
+	owned := map[string]bool{}
+	if old, ok := s.readFleetStamp(); ok {
+		for _, o := range old.Outputs {
+			owned[o.Path] = true
+		}
+	}
+	t := s.begin("fleet")
+	defer func() {
+		if err != nil {
+			t.abort()
+		}
+	}()
+	create := func(name string) (*atomicFile, error) {
+		if err := s.notAPersonsFile(name, owned); err != nil {
+			return nil, err
+		}
+		return t.create(name)
 	}
 	fb := reduce.NewFleetBuilder()
-	csvFile, err := createAtomic(s.dir, "results.csv")
+	csvFile, err := create("results.csv")
 	if err != nil {
 		return err
 	}
 	defer csvFile.abort()
-	manFile, err := createAtomic(s.dir, "manifest.json")
+	manFile, err := create("manifest.json")
 	if err != nil {
 		return err
 	}
@@ -335,7 +827,7 @@ func writeFleet(s *site) (err error) {
 	}
 	err = s.eachState(serials, func(st *fleetState) error {
 		if err := fb.Add(st.Summary); err != nil {
-			return fmt.Errorf("%s: %w", s.statePath(st.Serial), err)
+			return fmt.Errorf("%s: %w", filepath.Join(s.dir, s.statePath(st.Serial)), err)
 		}
 		if err := csvW.Unit(&st.Summary); err != nil {
 			return fmt.Errorf("results.csv: %w", err)
@@ -349,6 +841,7 @@ func writeFleet(s *site) (err error) {
 		return err
 	}
 	fleet := fb.Finish()
+	fleet.Notices = notices
 	var outputs []render.ManifestEntry
 	// Each page is written as soon as it is made; names in sorted order.
 	pages := []struct {
@@ -360,13 +853,13 @@ func writeFleet(s *site) (err error) {
 		{"index.html", writeBytes(func() ([]byte, error) { return render.Index(fleet) })},
 	}
 	for _, p := range pages {
-		f, err := createAtomic(s.dir, p.name)
+		f, err := create(p.name)
 		if err != nil {
 			return err
 		}
 		if err := p.write(f); err != nil {
 			f.abort()
-			return fmt.Errorf("%s: %w", p.name, err)
+			return siteErr(fmt.Errorf("%s: %w", p.name, err))
 		}
 		e, err := f.commit()
 		if err != nil {
@@ -375,7 +868,7 @@ func writeFleet(s *site) (err error) {
 		outputs = append(outputs, e)
 	}
 	if err := csvW.Flush(); err != nil {
-		return err
+		return siteErr(err)
 	}
 	e, err := csvFile.commit()
 	if err != nil {
@@ -383,42 +876,67 @@ func writeFleet(s *site) (err error) {
 	}
 	outputs = append(outputs, e)
 	if err := man.Close(outputs); err != nil {
-		return err
+		return siteErr(err)
 	}
 	me, err := manFile.commit()
 	if err != nil {
 		return err
 	}
+	// Fleet pages of an earlier build that are not written again go.
+	written := map[string]bool{}
+	for _, o := range append(outputs, me) {
+		written[o.Path] = true
+	}
+	for p := range owned {
+		if !written[p] {
+			t.remove(p)
+		}
+	}
+	sort.Strings(t.j.Removes)
 	stamp, err := json.Marshal(fleetStamp{States: digest, Outputs: append(outputs, me)})
 	if err != nil {
 		return err
 	}
-	_, err = s.writeFile(path.Join(stateDir, "fleet-stamp.json"), stamp)
-	return err
+	if _, err := t.put(path.Join(stateDir, "fleet-stamp.json"), stamp); err != nil {
+		return err
+	}
+	return t.commit()
 }
 
 // fleetStamp is what the fleet pages were last made from, kept in
-// SITE/.gtpack/fleet-stamp.json: a digest of the unit states (see statesDigest)
-// and the pages written, with their sizes. It is written after
-// manifest.json, so a fleet stage stopped before its end leaves the stamp
-// of the one before it.
+// SITE/.gtpack/fleet-stamp.json: a digest of the unit states (see
+// statesDigest) and the pages written, with their sizes. It is committed
+// with the pages, so a fleet stage stopped before its end leaves the
+// stamp of the one before it.
 type fleetStamp struct {
 	States  string                 `json:"states_sha256"`
 	Outputs []render.ManifestEntry `json:"outputs"`
 }
 
-func (s *site) fleetStampPath() string {
-	return filepath.Join(s.dir, stateDir, "fleet-stamp.json")
+func (s *site) readFleetStamp() (*fleetStamp, bool) {
+	data, err := s.root.ReadFile(path.Join(stateDir, "fleet-stamp.json"))
+	if err != nil {
+		return nil, false
+	}
+	var st fleetStamp
+	if json.Unmarshal(data, &st) != nil || len(st.Outputs) == 0 {
+		return nil, false
+	}
+	return &st, true
 }
 
 // statesDigest is a SHA-256 over the tool version and the serial, size and
 // modification time of every unit state: a unit built, rebuilt or removed
 // changes it.
-func (s *site) statesDigest(serials []string) (string, error) {
+func (s *site) statesDigest() (string, error) {
+	serials, err := s.serials()
+	if err != nil {
+		return "", err
+	}
 	h := sha256.New()
 	fmt.Fprintf(h, "%s\n", render.Version)
 	for _, serial := range serials {
-		fi, err := os.Stat(s.statePath(serial))
+		fi, err := s.root.Stat(s.statePath(serial))
 		if err != nil {
 			return "", err
 		}
@@ -433,24 +951,16 @@ func (s *site) statesDigest(serials []string) (string, error) {
 // then leaves the fleet pages alone (they would come out byte for byte the
 // same).
 func (s *site) fleetCurrent() bool {
-	data, err := os.ReadFile(s.fleetStampPath())
-	if err != nil {
+	st, ok := s.readFleetStamp()
+	if !ok {
 		return false
 	}
-	var st fleetStamp
-	if json.Unmarshal(data, &st) != nil || len(st.Outputs) == 0 {
-		return false
-	}
-	serials, err := s.serials()
-	if err != nil {
-		return false
-	}
-	if d, err := s.statesDigest(serials); err != nil || d != st.States {
+	if d, err := s.statesDigest(); err != nil || d != st.States {
 		return false
 	}
 	for _, o := range st.Outputs {
-		fi, err := os.Stat(filepath.Join(s.dir, filepath.FromSlash(o.Path)))
-		if err != nil || fi.Size() != o.Size {
+		fi, err := s.root.Lstat(o.Path)
+		if err != nil || !fi.Mode().IsRegular() || fi.Size() != o.Size {
 			return false
 		}
 	}
@@ -469,91 +979,70 @@ func writeBytes(make func() ([]byte, error)) func(w io.Writer) error {
 	}
 }
 
-// atomicFile is a site file written under a temporary name and renamed
-// when complete, so that a reader (or a killed build) never sees a
-// half-written file under its final name. It counts the file's size and
-// SHA-256 for the manifest as it goes. Every file of the site is written
-// this way (createAtomic for a file made piece by piece, site.writeFile for
-// one made whole).
-type atomicFile struct {
-	f         *os.File
-	w         *bufio.Writer // nil: writes go straight to f
-	h         hash.Hash
-	n         int64
-	rel, tmp  string
-	finalPath string
-	closed    bool
-}
-
-// createAtomic starts the file rel (slash-separated) of the site dir,
-// buffered for writes in small pieces.
-func createAtomic(dir, rel string) (*atomicFile, error) {
-	a, err := createAtomicUnbuffered(dir, rel)
-	if err == nil {
-		a.w = bufio.NewWriterSize(a.f, 256<<10)
-	}
-	return a, err
-}
-
-func createAtomicUnbuffered(dir, rel string) (*atomicFile, error) {
-	p := filepath.Join(dir, filepath.FromSlash(rel))
-	f, err := os.Create(p + tempSuffix)
+// hasPending says whether a commit of this build stopped half-way (its
+// journal is still in .gtpack/pending/).
+func (s *site) hasPending() bool {
+	entries, err := fs.ReadDir(s.root.FS(), path.Join(stateDir, "pending"))
 	if err != nil {
-		return nil, err
+		return true
 	}
-	return &atomicFile{f: f, h: sha256.New(), rel: rel, tmp: p + tempSuffix, finalPath: p}, nil
+	for _, e := range entries {
+		if strings.HasSuffix(e.Name(), "."+s.id+".json") {
+			return true
+		}
+	}
+	return false
 }
 
-// writeFile writes the site file rel (slash-separated) whole and returns
-// its manifest entry.
-func (s *site) writeFile(rel string, data []byte) (render.ManifestEntry, error) {
-	a, err := createAtomicUnbuffered(s.dir, rel)
-	if err != nil {
-		return render.ManifestEntry{}, err
+// checkOutputs reads back every file recorded for the unit and says what
+// is not as recorded ("" when all is).
+func (s *site) checkOutputs(st *unitState) string {
+	if st == nil {
+		return "it has no state"
 	}
-	if _, err := a.Write(data); err != nil {
-		a.abort()
-		return render.ManifestEntry{}, err
+	for _, o := range st.Outputs {
+		if _, err := s.rel(o.Path); err != nil {
+			return err.Error()
+		}
+		f, err := s.root.Open(o.Path)
+		if errors.Is(err, fs.ErrNotExist) {
+			return o.Path + " is missing"
+		}
+		if err != nil {
+			return err.Error()
+		}
+		h := sha256.New()
+		n, err := io.Copy(h, f)
+		f.Close()
+		if err != nil {
+			return fmt.Sprintf("%s: %v", o.Path, err)
+		}
+		if n != o.Size || hex.EncodeToString(h.Sum(nil)) != o.SHA256 {
+			return o.Path + " is not the file gtpack wrote (its size or SHA-256 differs)"
+		}
 	}
-	return a.commit()
+	return ""
 }
 
-func (a *atomicFile) Write(p []byte) (int, error) {
-	a.h.Write(p) // a hash never fails
-	a.n += int64(len(p))
-	if a.w == nil {
-		return a.f.Write(p)
+// dropFleet removes the fleet pages the fleet stamp records, then the
+// stamp (removals need no space on a full disk), and returns the pages
+// removed. A build stopped between the two leaves a stamp that names
+// missing pages, which the next build writes again.
+func (s *site) dropFleet() []string {
+	st, ok := s.readFleetStamp()
+	if !ok {
+		return nil
 	}
-	return a.w.Write(p)
-}
-
-// commit flushes and closes the file, renames it to its final name and
-// returns its manifest entry.
-func (a *atomicFile) commit() (render.ManifestEntry, error) {
-	a.closed = true
-	var err error
-	if a.w != nil {
-		err = a.w.Flush()
+	var out []string
+	for _, o := range st.Outputs {
+		if _, err := s.rel(o.Path); err != nil {
+			return out
+		}
+		if err := s.root.Remove(o.Path); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return out
+		}
+		out = append(out, o.Path)
 	}
-	if cerr := a.f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(a.tmp, a.finalPath)
-	}
-	if err != nil {
-		os.Remove(a.tmp)
-		return render.ManifestEntry{}, err
-	}
-	return render.ManifestEntry{Path: a.rel, Size: a.n, SHA256: hex.EncodeToString(a.h.Sum(nil))}, nil
-}
-
-// abort drops a file not committed; it does nothing after commit.
-func (a *atomicFile) abort() {
-	if a.closed {
-		return
-	}
-	a.closed = true
-	a.f.Close()
-	os.Remove(a.tmp)
+	s.root.Remove(path.Join(stateDir, "fleet-stamp.json"))
+	return out
 }
