@@ -10,5 +10,7 @@ package render
 // manifest.json schema 2; 0.2.1: the same contents in other bytes, the
 // unit workbook made on a kept skeleton, JSON lists without a space
 // after each comma, the report's U band drawn where it can be seen, and
-// the workbook's frequency charts as XY charts).
-const Version = "0.2.1"
+// the workbook's frequency charts as XY charts; 0.3.0: the safe site
+// (exit code 3, stale units, fleet.json's optional stale, no_report and
+// notices) and the style rules for them in every page).
+const Version = "0.3.0"

@@ -649,3 +649,57 @@ func checkUnitsWhole(t *testing.T, dir string) {
 		}
 	}
 }
+
+// A unit whose only run.yaml becomes unreadable (here a dangling link, as
+// when a share is unmounted under it) keeps its last report and is stale;
+// a new unit whose folder holds a person's report.html is not written over
+// it (exit 3) and the rest is built.
+func TestUnreadableRunAndPersonsFileInTheWay(t *testing.T) {
+	archive := smallArchive(t)
+	site := filepath.Join(t.TempDir(), "site")
+	runs := runFolders(t, archive)
+	serials := serialsOf(runs)
+	// The last unit is added later; a person puts a report.html where its
+	// report will go.
+	newcomer := serials[len(serials)-1]
+	away := filepath.Join(t.TempDir(), "away")
+	if err := os.Rename(filepath.Join(archive, "runs", newcomer), away); err != nil {
+		t.Fatal(err)
+	}
+	if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK {
+		t.Fatalf("build: %d\n%s", code, out)
+	}
+	os.MkdirAll(filepath.Join(site, "units", newcomer), 0o755)
+	os.WriteFile(filepath.Join(site, "units", newcomer, "report.html"), []byte("a person's page"), 0o644)
+	if err := os.Rename(away, filepath.Join(archive, "runs", newcomer)); err != nil {
+		t.Fatal(err)
+	}
+	victim := serials[0]
+	if len(runs[victim]) != 1 {
+		victim = serials[1]
+	}
+	yaml := filepath.Join(runs[victim][0], "run.yaml")
+	report := filepath.Join(site, "units", victim, "report.html")
+	kept, _ := os.ReadFile(report)
+	os.Remove(yaml)
+	if err := os.Symlink(filepath.Join(t.TempDir(), "gone", "run.yaml"), yaml); err != nil {
+		t.Fatal(err)
+	}
+	code, out := runOut("build", archive, "-o", site, "--quiet")
+	if code != exitSite || !strings.Contains(out, "not written by gtpack") {
+		t.Fatalf("build exited %d; want 3 for the person's report.html:\n%s", code, out)
+	}
+	if data, _ := os.ReadFile(filepath.Join(site, "units", newcomer, "report.html")); string(data) != "a person's page" {
+		t.Errorf("the person's report.html was overwritten")
+	}
+	if now, _ := os.ReadFile(report); !bytes.Equal(now, kept) || len(kept) == 0 {
+		t.Errorf("the report of the unit whose run.yaml became unreadable changed or went")
+	}
+	fleet, _ := os.ReadFile(filepath.Join(site, "fleet.json"))
+	if !bytes.Contains(fleet, []byte(`"stale": "acceptance run`)) {
+		t.Errorf("fleet.json does not mark %s stale", victim)
+	}
+	if !bytes.Contains(fleet, []byte("could not be written")) {
+		t.Errorf("fleet.json has no notice of the unit that could not be written")
+	}
+}
