@@ -293,8 +293,8 @@ func (s *site) apply(j journal) error {
 		dirs[path.Dir(p)] = true
 	}
 	for d := range dirs {
-		if err := s.syncDir(d); err != nil {
-			return err
+		if err := s.syncDir(d); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return err // a folder that is gone has nothing to sync
 		}
 	}
 	return nil
@@ -314,10 +314,11 @@ func (s *site) syncDir(d string) error {
 
 // txn is a set of site files replaced together (see the top of the file).
 type txn struct {
-	s       *site
-	name    string // the journal's name: unit-<serial> or fleet
-	j       journal
-	aborted bool
+	s         *site
+	name      string // the journal's name: unit-<serial> or fleet
+	j         journal
+	aborted   bool
+	journaled bool // the journal is in place: the next build finishes it
 }
 
 func (s *site) begin(name string) *txn { return &txn{s: s, name: name} }
@@ -374,6 +375,20 @@ func (t *txn) commit() error {
 	if len(t.j.Renames) == 0 && len(t.j.Removes) == 0 {
 		return nil
 	}
+	// Every path is checked before the journal is in place: a journal
+	// that could not be carried out would stop every later start.
+	for _, p := range t.j.Removes {
+		if _, err := t.s.rel(p); err != nil {
+			t.abort()
+			return err
+		}
+	}
+	for _, r := range t.j.Renames {
+		if _, err := t.s.rel(r.Final); err != nil {
+			t.abort()
+			return err
+		}
+	}
 	data, err := json.Marshal(t.j)
 	if err != nil {
 		return err
@@ -390,6 +405,7 @@ func (t *txn) commit() error {
 		t.abort()
 		return siteErr(err)
 	}
+	t.journaled = true // from here on the temporaries belong to the journal
 	if err := t.s.syncDir(path.Dir(jrel)); err != nil {
 		return siteErr(err) // the journal may be in place: the next build finishes
 	}
@@ -400,8 +416,9 @@ func (t *txn) commit() error {
 }
 
 // abort removes the transaction's temporary files; nothing final changed.
+// Once the journal is in place it does nothing.
 func (t *txn) abort() {
-	if t.aborted {
+	if t.aborted || t.journaled {
 		return
 	}
 	t.aborted = true

@@ -297,6 +297,21 @@ func TestUnitFolderLinkIsNotFollowed(t *testing.T) {
 	if n, _ := filepath.Glob(filepath.Join(site, "units", "*", "result.json")); len(n) < 4 {
 		t.Errorf("%d units have result.json; want the other four built", len(n))
 	}
+	// The unit leaves the archive: its files are not removed through the
+	// link either, and once the link is gone the site builds again (no
+	// journal was left that a later start would trip on).
+	for _, d := range runFolders(t, archive)[serial] {
+		os.RemoveAll(d)
+	}
+	if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitSite || !strings.Contains(out, "symbolic link") {
+		t.Fatalf("removing a unit whose folder is a link exited %d, want 3 naming the link:\n%s", code, out)
+	}
+	sameSite(t, "the link's target after the unit's removal", before, treeOf(t, target))
+	os.Remove(unit)
+	if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK {
+		t.Fatalf("build after the link was removed exited %d:\n%s", code, out)
+	}
+	checkManifestTruthful(t, site, true)
 }
 
 // A retest whose run.yaml is refused is still the acceptance run: the
