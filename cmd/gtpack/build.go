@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"runtime/debug"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -299,7 +300,7 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 			owned[e.Path] = true
 		}
 	}
-	if theirs := site.personsFiles(owned, thisBuild, o.shardN == 0 && o.only == ""); len(theirs) > 0 {
+	if theirs := site.personsFiles(owned, thisBuild); len(theirs) > 0 {
 		fmt.Fprintf(stderr, "gtpack: left %d file(s) in %s that gtpack did not write: %s\n", len(theirs), o.site, listSome(theirs))
 	}
 	if !o.quiet {
@@ -328,8 +329,11 @@ func openSiteCode(err error) int {
 }
 
 // adoptOrphans gives the refused runs whose serial could not be read (an
-// unreadable folder or run.yaml) to the unit that the site recorded them
-// for, so that an older run does not silently become its acceptance run.
+// unreadable run.yaml, or a folder that cannot be read) to the units that
+// the site recorded runs for there: an exact run.yaml, or any run below an
+// unreadable folder (which may be a run folder, a unit's folder or the
+// whole runs/ tree). Otherwise those units would look as if they had left
+// the archive, or an older run would silently become their acceptance run.
 func adoptOrphans(site *site, a *ingest.Archive) error {
 	if len(a.Orphans) == 0 {
 		return nil
@@ -338,36 +342,35 @@ func adoptOrphans(site *site, a *ingest.Archive) error {
 	if err != nil {
 		return err
 	}
-	byFile := map[string]string{}
+	recorded := map[string][]string{} // serial: its run.yaml paths
 	for _, serial := range serials {
 		st, err := site.readState(serial)
 		if err != nil || st == nil {
 			continue
 		}
-		for _, f := range st.Stamps {
-			byFile[f.Path] = serial
-		}
 		for _, d := range st.Runs {
-			byFile[path.Join(d, "run.yaml")] = serial
+			recorded[serial] = append(recorded[serial], path.Join(d, "run.yaml"))
+		}
+		for _, f := range st.Stamps {
+			if path.Base(f.Path) == "run.yaml" {
+				recorded[serial] = append(recorded[serial], f.Path)
+			}
 		}
 	}
 	for _, orphan := range a.Orphans {
-		serial, ok := byFile[orphan.File]
-		if !ok {
-			serial, ok = byFile[path.Join(orphan.Dir, "run.yaml")]
+		for _, serial := range serials {
+			if !slices.ContainsFunc(recorded[serial], func(p string) bool {
+				return p == orphan.File || (orphan.File == "" && strings.HasPrefix(p, orphan.Dir+"/"))
+			}) {
+				continue
+			}
+			i := sort.Search(len(a.Units), func(i int) bool { return a.Units[i].Serial >= serial })
+			if i < len(a.Units) && a.Units[i].Serial == serial {
+				a.Units[i].Refused = append(a.Units[i].Refused, orphan)
+				continue
+			}
+			a.Units = slices.Insert(a.Units, i, &ingest.Unit{Serial: serial, Refused: []*ingest.RefusedRun{orphan}})
 		}
-		if !ok {
-			continue
-		}
-		orphan.Serial = serial
-		i := sort.Search(len(a.Units), func(i int) bool { return a.Units[i].Serial >= serial })
-		if i < len(a.Units) && a.Units[i].Serial == serial {
-			a.Units[i].Refused = append(a.Units[i].Refused, orphan)
-			continue
-		}
-		a.Units = append(a.Units, nil)
-		copy(a.Units[i+1:], a.Units[i:])
-		a.Units[i] = &ingest.Unit{Serial: serial, Refused: []*ingest.RefusedRun{orphan}}
 	}
 	return nil
 }

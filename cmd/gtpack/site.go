@@ -594,12 +594,7 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 		}
 	}
 	sort.Strings(t.j.Removes)
-	data, err := json.Marshal(st)
-	if err != nil {
-		t.abort()
-		return err
-	}
-	if _, err := t.put(s.statePath(st.Serial), data); err != nil {
+	if err := t.putState(st); err != nil {
 		t.abort()
 		return err
 	}
@@ -608,16 +603,23 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 
 // writeStateOnly replaces the unit's state and nothing else.
 func (s *site) writeStateOnly(st *unitState) error {
-	data, err := json.Marshal(st)
-	if err != nil {
-		return err
-	}
 	t := s.begin("unit-" + st.Serial)
-	if _, err := t.put(s.statePath(st.Serial), data); err != nil {
+	if err := t.putState(st); err != nil {
 		t.abort()
 		return err
 	}
 	return t.commit()
+}
+
+// putState adds the unit's state to the transaction; commits put it last,
+// after the files it records.
+func (t *txn) putState(st *unitState) error {
+	data, err := json.Marshal(st)
+	if err != nil {
+		return err
+	}
+	_, err = t.put(t.s.statePath(st.Serial), data)
+	return err
 }
 
 // notAPersonsFile refuses to write rel over a file gtpack did not write.
@@ -667,10 +669,10 @@ func (s *site) removeUnitsExcept(keep func(serial string) bool) ([]string, error
 
 // personsFiles lists the files of the site that gtpack did not write,
 // outside .gtpack/: everything at the top and under units/ that is not a
-// recorded output. Only the unit folders of the serials in units are
-// looked into (a shard looks only at its own), and folders under units/
-// that no unit state names.
-func (s *site) personsFiles(owned map[string]bool, units map[string]bool, allUnits bool) []string {
+// recorded output. Of the units' folders it looks into those of the
+// serials in units (a shard or --only build looks only at its own) and
+// those that no unit state names.
+func (s *site) personsFiles(owned map[string]bool, units map[string]bool) []string {
 	known := map[string]bool{}
 	if serials, err := s.serials(); err == nil {
 		for _, serial := range serials {
@@ -687,7 +689,7 @@ func (s *site) personsFiles(owned map[string]bool, units map[string]bool, allUni
 		}
 		if d.IsDir() {
 			if parts := strings.Split(p, "/"); len(parts) == 2 && parts[0] == "units" {
-				if known[parts[1]] && !units[parts[1]] && !allUnits {
+				if known[parts[1]] && !units[parts[1]] {
 					return fs.SkipDir
 				}
 			}

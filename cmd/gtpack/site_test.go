@@ -13,6 +13,8 @@ import (
 	"sync"
 	"testing"
 	"time"
+
+	"gtpack.example/gtpack/ingest"
 )
 
 // These tests check the contract's promises about the site
@@ -716,5 +718,54 @@ func TestUnreadableRunAndPersonsFileInTheWay(t *testing.T) {
 	}
 	if !bytes.Contains(fleet, []byte("could not be written")) {
 		t.Errorf("fleet.json has no notice of the unit that could not be written")
+	}
+}
+
+// A folder that cannot be read reaches the build as an orphan with only
+// its Dir (ingest's TestOpenUnreadableRunFolder, run as a user without
+// root's reading rights). Whatever level that folder is at (a run folder,
+// a unit's folder, runs/ itself), every unit the site recorded a run
+// below it gets the orphan, so none of them looks as if it had left the
+// archive.
+func TestOrphanFolderKeepsItsUnits(t *testing.T) {
+	archive := smallArchive(t)
+	site := filepath.Join(t.TempDir(), "site")
+	if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK {
+		t.Fatalf("build: %d\n%s", code, out)
+	}
+	runs := runFolders(t, archive)
+	serials := serialsOf(runs)
+	rel := func(p string) string {
+		r, _ := filepath.Rel(archive, p)
+		return filepath.ToSlash(r)
+	}
+	for _, c := range []struct {
+		dir  string
+		want []string
+	}{
+		{rel(runs[serials[0]][0]), serials[:1]},
+		{rel(filepath.Dir(runs[serials[1]][0])), serials[1:2]},
+		{"runs", serials},
+		{"run", nil}, // a prefix of a name is not a folder above it
+	} {
+		s, err := openSite(site, false, "test", lockScope{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		a := &ingest.Archive{Orphans: []*ingest.RefusedRun{{Dir: c.dir}}}
+		err = adoptOrphans(s, a)
+		s.close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got []string
+		for _, u := range a.Units {
+			if len(u.Refused) == 1 && u.Refused[0].Dir == c.dir {
+				got = append(got, u.Serial)
+			}
+		}
+		if strings.Join(got, ",") != strings.Join(c.want, ",") {
+			t.Errorf("orphan folder %s went to units %v, want %v", c.dir, got, c.want)
+		}
 	}
 }
