@@ -81,7 +81,7 @@ func (a *Archive) Full(r *Run) (*Run, error) {
 	if !r.lean {
 		return r, nil
 	}
-	data, p := newArchiveFS(a.Root).read(r.File, "", 0)
+	data, in, p := newArchiveFS(a.Root).read(r.File, "", 0)
 	if p != nil {
 		return nil, p
 	}
@@ -89,6 +89,7 @@ func (a *Archive) Full(r *Run) (*Run, error) {
 	if err != nil {
 		return nil, err
 	}
+	full.Source = in
 	rootRelative(full)
 	if full.Serial != r.Serial || !full.Started.Equal(r.Started) {
 		return nil, Problemf(r.File, full.KeyLines["serial"], "names serial %s started %s, but named %s started %s when the archive was opened; expected the file not to change during a build",
@@ -113,6 +114,7 @@ func open(root string, lean bool) (*Archive, error) {
 		Stations:   map[string]*Station{},
 		References: map[string]*Reference{},
 		Specs:      map[string]*Spec{},
+		Documents:  map[string]InputFile{},
 	}
 	fsys := newArchiveFS(root)
 	stationIDs, refIDs, specIDs := foldedIDs{}, foldedIDs{}, foldedIDs{}
@@ -120,7 +122,8 @@ func open(root string, lean bool) (*Archive, error) {
 	refusedRefs := map[string]string{}
 	refusedSpecs := map[string]string{}
 
-	readDocuments(fsys, "stations", &a.Problems, refusedStations, func(data []byte, rel string) error {
+	readDocuments(fsys, "stations", &a.Problems, refusedStations, func(data []byte, in InputFile) error {
+		rel := in.Path
 		s, err := ParseStation(data, rel)
 		if err != nil {
 			return err
@@ -133,26 +136,30 @@ func open(root string, lean bool) (*Archive, error) {
 			return Problemf(rel, keyLine(data, "id"), "station id %q is the same as %q in %s, regardless of case; expected each id once, in one spelling", s.ID, first.id, first.file)
 		}
 		a.Stations[s.ID] = s
+		a.Documents[rel] = in
 		return nil
 	})
-	readDocuments(fsys, "references", &a.Problems, refusedRefs, func(data []byte, rel string) error {
+	readDocuments(fsys, "references", &a.Problems, refusedRefs, func(data []byte, in InputFile) error {
+		rel := in.Path
 		ref, tableLine, err := parseReference(data, rel)
 		if err != nil {
 			return err
 		}
+		var table InputFile
 		if ref.TableFile != "" {
 			tf := joinRel(path.Dir(rel), ref.TableFile)
-			tdata, p := fsys.read(tf, rel, tableLine)
+			tdata, tin, p := fsys.read(tf, rel, tableLine)
 			if p != nil {
 				refusedRefs[ref.ID] = rel
 				return p
 			}
-			table, err := readReferenceTable(bytes.NewReader(tdata), tf)
+			tt, err := readReferenceTable(bytes.NewReader(tdata), tf)
 			if err != nil {
 				refusedRefs[ref.ID] = rel
 				return err
 			}
-			ref.TableFile, ref.Table = tf, table
+			ref.TableFile, ref.Table = tf, tt
+			table = tin
 		}
 		if prev, dup := a.References[ref.ID]; dup {
 			a.Problems = append(a.Problems, Problemf(rel, 0, "reference id %q is already defined in %s; expected each id once (this file is ignored)", ref.ID, prev.File))
@@ -162,9 +169,14 @@ func open(root string, lean bool) (*Archive, error) {
 			return Problemf(rel, keyLine(data, "id"), "reference id %q is the same as %q in %s, regardless of case; expected each id once, in one spelling", ref.ID, first.id, first.file)
 		}
 		a.References[ref.ID] = ref
+		a.Documents[rel] = in
+		if ref.TableFile != "" {
+			a.Documents[ref.TableFile] = table
+		}
 		return nil
 	})
-	readDocuments(fsys, "specs", &a.Problems, refusedSpecs, func(data []byte, rel string) error {
+	readDocuments(fsys, "specs", &a.Problems, refusedSpecs, func(data []byte, in InputFile) error {
+		rel := in.Path
 		s, err := ParseSpec(data, rel)
 		if err != nil {
 			return err
@@ -177,6 +189,7 @@ func open(root string, lean bool) (*Archive, error) {
 			return Problemf(rel, keyLine(data, "product"), "spec for product %q is the same product as %q in %s, regardless of case; expected one spec per product, in one spelling", s.Product, first.id, first.file)
 		}
 		a.Specs[s.Product] = s
+		a.Documents[rel] = in
 		return nil
 	})
 
@@ -212,6 +225,7 @@ func open(root string, lean bool) (*Archive, error) {
 		_, okP := a.Specs[r.Product]
 		check("product", "spec for product", r.Product, "specs", okP, refusedSpecs)
 		a.Problems = append(a.Problems, probs...)
+		a.Documents[r.File] = r.Source
 		good = append(good, checkedRun{r, probs})
 	}
 
@@ -498,21 +512,23 @@ func (f *archiveFS) resolve(rel string) (string, string) {
 	return real, ""
 }
 
-// read returns the bytes of rel. A refusal is reported at (from, line) when
-// from is given (the YAML naming the file), else at rel itself.
-func (f *archiveFS) read(rel, from string, line int) ([]byte, *Problem) {
+// read returns the bytes of rel and what was read: their size and
+// SHA-256, and the file's stat before the read. A refusal is reported at
+// (from, line) when from is given (the YAML naming the file), else at rel
+// itself.
+func (f *archiveFS) read(rel, from string, line int) ([]byte, InputFile, *Problem) {
 	full, why := f.resolve(rel)
 	if why == "" {
-		data, err := os.ReadFile(full)
+		data, st, err := readStable(full)
 		if err == nil {
-			return data, nil
+			return data, inputOf(rel, data, st), nil
 		}
 		why = fmt.Sprintf("cannot be read (%v)", err)
 	}
 	if from == "" {
-		return nil, Problemf(rel, 0, "file %s", why)
+		return nil, InputFile{}, Problemf(rel, 0, "file %s", why)
 	}
-	return nil, Problemf(from, line, "%s %s", rel, why)
+	return nil, InputFile{}, Problemf(from, line, "%s %s", rel, why)
 }
 
 // yamlFiles lists folder/*.yaml, sorted.
@@ -603,7 +619,7 @@ func parseRuns(fsys *archiveFS, files []string, lean bool) []parsedRun {
 		go func(w int) {
 			defer wg.Done()
 			for i := w; i < len(files); i += workers {
-				data, p := fsys.read(files[i], "", 0)
+				data, in, p := fsys.read(files[i], "", 0)
 				if p != nil {
 					out[i].problems = []*Problem{p}
 					continue
@@ -614,6 +630,7 @@ func parseRuns(fsys *archiveFS, files []string, lean bool) []parsedRun {
 					out[i].serial, out[i].serialLine, out[i].started = recoverRun(data)
 					continue
 				}
+				r.Source = in
 				if lean {
 					makeLean(r)
 				}
@@ -630,16 +647,16 @@ func parseRuns(fsys *archiveFS, files []string, lean bool) []parsedRun {
 // its base name (the id a run would use), so that a run naming it is told
 // the document was refused rather than unknown. accept reports a duplicate
 // id itself and returns nil: the first document of that id stands.
-func readDocuments(fsys *archiveFS, folder string, probs *[]*Problem, refused map[string]string, accept func(data []byte, rel string) error) {
+func readDocuments(fsys *archiveFS, folder string, probs *[]*Problem, refused map[string]string, accept func(data []byte, in InputFile) error) {
 	for _, rel := range fsys.yamlFiles(folder, probs) {
 		base := strings.TrimSuffix(path.Base(rel), ".yaml")
-		data, p := fsys.read(rel, "", 0)
+		data, in, p := fsys.read(rel, "", 0)
 		if p != nil {
 			*probs = append(*probs, p)
 			refused[base] = rel
 			continue
 		}
-		if err := accept(data, rel); err != nil {
+		if err := accept(data, in); err != nil {
 			*probs = append(*probs, Problems(err)...)
 			refused[base] = rel
 		}

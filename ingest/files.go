@@ -18,7 +18,7 @@ func RunFiles(a *Archive, r *Run) []string {
 		}
 		r = full
 	}
-	files := runDocuments(a, r)
+	files := RunDocuments(a, r)
 	add := func(p string) {
 		if p != "" {
 			files = append(files, p)
@@ -44,10 +44,10 @@ func RunFiles(a *Archive, r *Run) []string {
 	return out
 }
 
-// runDocuments lists the YAML documents a run depends on: its run.yaml and
+// RunDocuments lists the YAML documents a run depends on: its run.yaml and
 // the station, reference (with its table file) and spec it names, where
 // discovery accepted them.
-func runDocuments(a *Archive, r *Run) []string {
+func RunDocuments(a *Archive, r *Run) []string {
 	docs := []string{r.File}
 	if s := a.Stations[r.Station]; s != nil {
 		docs = append(docs, s.File)

@@ -69,7 +69,7 @@ func Inspect(path string) (string, any, error) {
 				root := filepath.Dir(filepath.Dir(path))
 				fsys := newArchiveFS(root)
 				rel := joinRel("references", r.TableFile)
-				tdata, p := fsys.read(rel, path, tableLine)
+				tdata, _, p := fsys.read(rel, path, tableLine)
 				if p != nil {
 					return "", nil, p
 				}

@@ -2,8 +2,6 @@ package ingest
 
 import (
 	"bytes"
-	"crypto/sha256"
-	"encoding/hex"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -16,7 +14,12 @@ import (
 // Load reads every data file of r: the range reference measurements, each
 // beam's transmission and noise traces, the elements table and the notes,
 // and lists every input (run.yaml, data files, station, reference and its
-// table file, spec) with its size and SHA-256. It never stops at the first
+// table file, spec) with its size, SHA-256 and stat. Each data file is
+// read once, and hashed and parsed from the same bytes; the run.yaml and
+// the shared documents are not read again (their inputs are those of the
+// bytes discovery parsed, Run.Source and Archive.Documents), so the
+// inputs listed are always the bytes the reduction used, even when a file
+// changes during the build. It never stops at the first
 // problem: a refused file leaves a nil entry and a problem, and all other
 // files are still read. The returned RunData is never nil.
 //
@@ -41,8 +44,14 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 	l := &loader{fs: newArchiveFS(a.Root), run: r, inputs: map[string]InputFile{}}
 	d := &RunData{Beams: make([]BeamData, len(r.Beams))}
 
-	for _, doc := range runDocuments(a, r) {
-		l.readShared(doc)
+	// The run.yaml and the shared documents are not read again: their
+	// inputs are the bytes that were parsed.
+	for _, doc := range RunDocuments(a, r) {
+		if doc == r.File {
+			l.inputs[doc] = r.Source
+		} else {
+			l.inputs[doc] = a.Documents[doc]
+		}
 	}
 
 	if r.RangePre != "" {
@@ -94,6 +103,10 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 		d.Inputs = append(d.Inputs, in)
 	}
 	sort.Slice(d.Inputs, func(i, j int) bool { return d.Inputs[i].Path < d.Inputs[j].Path })
+	for p := range l.absent {
+		d.Absent = append(d.Absent, p)
+	}
+	sort.Strings(d.Absent)
 	return d, SortProblems(l.problems)
 }
 
@@ -101,34 +114,24 @@ type loader struct {
 	fs       *archiveFS
 	run      *Run
 	inputs   map[string]InputFile
+	absent   map[string]bool
 	problems []*Problem
 }
 
-func (l *loader) record(rel string, data []byte) {
-	sum := sha256.Sum256(data)
-	l.inputs[rel] = InputFile{Path: rel, Size: int64(len(data)), SHA256: hex.EncodeToString(sum[:])}
-}
-
-// readShared hashes a document Open already read; a refusal here means the
-// file changed since, and is reported at the file.
-func (l *loader) readShared(rel string) {
-	data, p := l.fs.read(rel, "", 0)
-	if p != nil {
-		l.problems = append(l.problems, p)
-		return
-	}
-	l.record(rel, data)
-}
-
-// read returns a data file named by the run.yaml key.
+// read returns a data file named by the run.yaml key, and lists it among
+// the inputs (or the absent files).
 func (l *loader) read(rel, key string) ([]byte, bool) {
-	data, p := l.fs.read(rel, l.run.File, l.run.KeyLines[key])
+	data, in, p := l.fs.read(rel, l.run.File, l.run.KeyLines[key])
 	if p != nil {
 		p.Message = key + ": " + p.Message
 		l.problems = append(l.problems, p)
+		if l.absent == nil {
+			l.absent = map[string]bool{}
+		}
+		l.absent[rel] = true
 		return nil, false
 	}
-	l.record(rel, data)
+	l.inputs[rel] = in
 	return data, true
 }
 

@@ -261,6 +261,9 @@ type Run struct {
 	// found later (a missing file, an unknown station) points at the line
 	// that names it.
 	KeyLines map[string]int
+	// Source is the run.yaml as it was read for this Run: its size,
+	// SHA-256 and stat.
+	Source InputFile
 
 	// lean marks a run that OpenLean holds without its beams and with only
 	// the key lines discovery reports on; Archive.Full reads it whole.
@@ -277,11 +280,14 @@ type Element struct {
 	PhaseDeg    float64
 }
 
-// InputFile is one file an output depends on.
+// InputFile is one file an output depends on: the size and SHA-256 of
+// the bytes that were parsed, and the file's stat as it was when they
+// were read.
 type InputFile struct {
-	Path   string `json:"path"`
-	Size   int64  `json:"size"`
-	SHA256 string `json:"sha256"`
+	Path   string   `json:"path"`
+	Size   int64    `json:"size"`
+	SHA256 string   `json:"sha256"`
+	Stat   FileStat `json:"stat"`
 }
 
 // BeamData is the measured data of one beam.
@@ -301,8 +307,15 @@ type RunData struct {
 	Elements  []Element
 	Notes     string
 	// Inputs lists every file the run used, the run.yaml, station,
-	// reference and spec included, sorted by path.
+	// reference and spec included, sorted by path. The shared documents
+	// and the run.yaml are those discovery parsed (Archive.Documents,
+	// Run.Source): the bytes the reduction used are the bytes hashed.
 	Inputs []InputFile
+	// Absent lists the files the run names that could not be read
+	// (missing, a link out of the archive, not a regular file, no
+	// permission), sorted: a build must redo the unit when one of them
+	// can be read.
+	Absent []string
 }
 
 // Unit is one serial number and its runs, oldest first: the last run is the
@@ -383,6 +396,11 @@ type Archive struct {
 	References map[string]*Reference // by id
 	Specs      map[string]*Spec      // by product
 	Units      []*Unit               // sorted by serial
+	// Documents are the YAML files that discovery accepted (every good
+	// run.yaml, station, reference and its table file, and spec), by path,
+	// as they were read: each is read once a build, and Load lists the
+	// shared ones' very bytes as a run's inputs.
+	Documents map[string]InputFile
 	// Orphans are refused runs that belong to no unit: their serial could
 	// not be read, or their folder or run.yaml could not be read at all.
 	// In the order of their paths.

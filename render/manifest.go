@@ -7,18 +7,24 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"path"
 	"reflect"
 	"sort"
-	"strings"
 
 	"gtpack.example/gtpack/ingest"
 )
 
-// manifestSchema is the version of the manifest.json layout. Schema 2:
-// every unit lists its own inputs and outputs with their hashes, and the
-// inputs many units share are listed once, in shared_inputs.
-const manifestSchema = 2
+// manifestSchema is the version of the manifest.json layout. Schema 3:
+// each unit folder has its own manifest.json (UnitManifest) listing every
+// input of the unit, shared documents included, and the unit's other
+// files; the site's manifest.json lists each unit with the size and
+// SHA-256 of its unit manifest, and the fleet pages. One changed unit
+// rewrites its own manifest and a top level of a few hundred bytes a
+// unit. (Schema 2 listed every unit's files in the one manifest.json, and
+// the shared inputs once in shared_inputs.)
+const manifestSchema = 3
+
+// UnitManifestName is the name of a unit's manifest in its folder.
+const UnitManifestName = "manifest.json"
 
 // ManifestEntry is one file with its size and SHA-256 (lower-case hex).
 type ManifestEntry struct {
@@ -27,28 +33,35 @@ type ManifestEntry struct {
 	SHA256 string `json:"sha256"`
 }
 
-// ManifestUnit is one unit of manifest.json: what its outputs were built
-// from. Inputs are the unit's own input files; SharedInputs names (by
-// path) the files of Manifest.SharedInputs it also read. InputsSHA256 is
-// ManifestInputsDigest of all of them, so that a reader can tell at a
-// glance whether two builds of a unit used the same data.
-type ManifestUnit struct {
+// UnitManifest is units/<serial>/manifest.json: what the unit's files
+// were built from. Inputs are archive-relative, Outputs site-relative.
+// InputsSHA256 is ManifestInputsDigest of the inputs, so that a reader
+// can tell at a glance whether two builds of a unit used the same data.
+type UnitManifest struct {
+	Schema       int             `json:"schema"`
+	ToolVersion  string          `json:"tool_version"`
 	Serial       string          `json:"serial"`
 	Verdict      string          `json:"verdict"`
 	InputsSHA256 string          `json:"inputs_sha256"`
 	Inputs       []ManifestEntry `json:"inputs"`
-	SharedInputs []string        `json:"shared_inputs"`
 	Outputs      []ManifestEntry `json:"outputs"`
 }
 
-// Manifest is manifest.json: every input and output of a site. Outputs
-// are the fleet pages; each unit's files are in its ManifestUnit.
+// ManifestUnit is one unit of the site's manifest.json.
+type ManifestUnit struct {
+	Serial       string        `json:"serial"`
+	Verdict      string        `json:"verdict"`
+	InputsSHA256 string        `json:"inputs_sha256"`
+	Manifest     ManifestEntry `json:"manifest"`
+}
+
+// Manifest is the site's manifest.json: every unit's manifest and the
+// fleet pages (Outputs).
 type Manifest struct {
-	Schema       int             `json:"schema"`
-	ToolVersion  string          `json:"tool_version"`
-	Units        []ManifestUnit  `json:"units"`
-	SharedInputs []ManifestEntry `json:"shared_inputs"`
-	Outputs      []ManifestEntry `json:"outputs"`
+	Schema      int             `json:"schema"`
+	ToolVersion string          `json:"tool_version"`
+	Units       []ManifestUnit  `json:"units"`
+	Outputs     []ManifestEntry `json:"outputs"`
 }
 
 // ManifestInputsDigest is one SHA-256 over a unit's inputs: the lines
@@ -62,30 +75,34 @@ func ManifestInputsDigest(inputs []ManifestEntry) string {
 	return hex.EncodeToString(h.Sum(nil))
 }
 
-// ManifestWriter writes manifest.json one unit at a time, so that a site
-// of any size never holds it whole: the schema and tool version, then the
-// units in serial order, then the shared inputs and the fleet outputs, all
-// indented like the other JSON files, with a final newline.
-//
-// Which inputs are shared: a unit's inputs outside the folder of its
-// run.yaml (stations, references, specs, and any other file a run reads
-// from outside its folder) are listed once in shared_inputs, at the first
-// unit (in serial order) that read them; a later unit that read another
-// version of one (another size or hash, as after a build of some units
-// only) lists that file among its own inputs instead. The map of shared
-// files is the only thing the writer keeps, and it grows with the
-// archive's shared files, not with its units.
+// UnitManifestJSON is a unit's manifest.json, indented like the other
+// JSON files, with a final newline; inputs and outputs in path order.
+func UnitManifestJSON(serial, verdict string, inputs, outputs []ManifestEntry) ([]byte, error) {
+	if serial == "" {
+		return nil, fmt.Errorf("render: manifest: a unit without serial")
+	}
+	m := UnitManifest{Schema: manifestSchema, ToolVersion: Version, Serial: serial, Verdict: verdict,
+		InputsSHA256: ManifestInputsDigest(inputs), Inputs: sortedEntries(inputs), Outputs: sortedEntries(outputs)}
+	b, err := appendJSON(nil, reflect.ValueOf(&m), 0)
+	if err != nil {
+		return nil, err
+	}
+	return append(b, '\n'), nil
+}
+
+// ManifestWriter writes the site's manifest.json one unit at a time, so
+// that a site of any size never holds it whole: the schema and tool
+// version, then the units in serial order, then the fleet outputs.
 type ManifestWriter struct {
-	w      io.Writer
-	buf    []byte
-	shared map[string]ManifestEntry
-	last   string
-	units  int
+	w     io.Writer
+	buf   []byte
+	last  string
+	units int
 }
 
 // NewManifestWriter starts manifest.json on w.
 func NewManifestWriter(w io.Writer, toolVersion string) (*ManifestWriter, error) {
-	m := &ManifestWriter{w: w, shared: map[string]ManifestEntry{}}
+	m := &ManifestWriter{w: w}
 	b := fmt.Appendf(nil, "{\n  \"schema\": %d,\n  \"tool_version\": ", manifestSchema)
 	b = appendJSONString(b, toolVersion)
 	b = append(b, ",\n  \"units\": ["...)
@@ -93,40 +110,15 @@ func NewManifestWriter(w io.Writer, toolVersion string) (*ManifestWriter, error)
 	return m, err
 }
 
-// Unit writes one unit: every input it read and every output written for
-// it, in any order. Serials must increase from one call to the next.
-func (m *ManifestWriter) Unit(serial, verdict string, inputs, outputs []ManifestEntry) error {
-	if serial == "" {
+// Unit writes one unit: its verdict, the digest of its inputs and its
+// unit manifest. Serials must increase from one call to the next.
+func (m *ManifestWriter) Unit(u ManifestUnit) error {
+	if u.Serial == "" {
 		return fmt.Errorf("render: manifest: a unit without serial")
 	}
-	if m.units > 0 && serial <= m.last {
-		return fmt.Errorf("render: manifest: unit %q after %q, expected increasing serials", serial, m.last)
+	if m.units > 0 && u.Serial <= m.last {
+		return fmt.Errorf("render: manifest: unit %q after %q, expected increasing serials", u.Serial, m.last)
 	}
-	u := ManifestUnit{Serial: serial, Verdict: verdict, InputsSHA256: ManifestInputsDigest(inputs),
-		Inputs: []ManifestEntry{}, SharedInputs: []string{}}
-	runDir, found := "", false
-	for _, in := range inputs {
-		if path.Base(in.Path) == "run.yaml" {
-			runDir, found = path.Dir(in.Path), true
-			break
-		}
-	}
-	for _, in := range sortedEntries(inputs) {
-		own := !found || runDir == "." || strings.HasPrefix(in.Path, runDir+"/")
-		if !own {
-			s, seen := m.shared[in.Path]
-			if !seen {
-				m.shared[in.Path] = in
-				s = in
-			}
-			if s == in {
-				u.SharedInputs = append(u.SharedInputs, in.Path)
-				continue
-			}
-		}
-		u.Inputs = append(u.Inputs, in)
-	}
-	u.Outputs = sortedEntries(outputs)
 	b := m.buf[:0]
 	if m.units > 0 {
 		b = append(b, ',')
@@ -137,30 +129,22 @@ func (m *ManifestWriter) Unit(serial, verdict string, inputs, outputs []Manifest
 		return err
 	}
 	m.buf = b
-	m.last = serial
+	m.last = u.Serial
 	m.units++
 	_, err = m.w.Write(b)
 	return err
 }
 
-// Close ends the manifest with the shared inputs and the given outputs
-// (the fleet pages), each sorted by path.
+// Close ends the manifest with the given outputs (the fleet pages),
+// sorted by path.
 func (m *ManifestWriter) Close(outputs []ManifestEntry) error {
 	b := m.buf[:0]
 	if m.units > 0 {
 		b = appendNewline(b, 1)
 	}
-	b = append(b, "],\n  \"shared_inputs\": "...)
-	shared := make([]ManifestEntry, 0, len(m.shared))
-	for _, s := range m.shared {
-		shared = append(shared, s)
-	}
-	b, err := appendJSON(b, reflect.ValueOf(sortedEntries(shared)), 1)
+	b = append(b, "],\n  \"outputs\": "...)
+	b, err := appendJSON(b, reflect.ValueOf(sortedEntries(outputs)), 1)
 	if err != nil {
-		return err
-	}
-	b = append(b, ",\n  \"outputs\": "...)
-	if b, err = appendJSON(b, reflect.ValueOf(sortedEntries(outputs)), 1); err != nil {
 		return err
 	}
 	b = append(b, "\n}\n"...)
@@ -174,42 +158,17 @@ func sortedEntries(es []ManifestEntry) []ManifestEntry {
 	return out
 }
 
-// ParseManifest reads a manifest.json. It refuses another schema, an entry
-// without a path, a hash that is not 64 hex digits, a serial listed twice
-// and a unit naming a shared input the manifest does not list.
+// ParseManifest reads a site's manifest.json. It refuses another schema,
+// an entry without a path, a hash that is not 64 hex digits and a serial
+// listed twice.
 func ParseManifest(data []byte) (*Manifest, error) {
 	const file = "manifest.json"
 	m := new(Manifest)
-	dec := json.NewDecoder(bytes.NewReader(data))
-	if err := dec.Decode(m); err != nil {
-		return nil, jsonProblem(file, data, err)
-	}
-	if m.Schema != manifestSchema {
-		return nil, ingest.Problemf(file, 0, "schema %d, expected %d", m.Schema, manifestSchema)
-	}
-	checkEntries := func(where string, es []ManifestEntry) error {
-		for i, e := range es {
-			if e.Path == "" {
-				return ingest.Problemf(file, 0, "%s[%d] has no path", where, i)
-			}
-			if !isSHA256Hex(e.SHA256) {
-				return ingest.Problemf(file, 0, "%s[%d] (%s): sha256 %q, expected 64 lower-case hex digits", where, i, e.Path, e.SHA256)
-			}
-			if e.Size < 0 {
-				return ingest.Problemf(file, 0, "%s[%d] (%s): size %d, expected >= 0", where, i, e.Path, e.Size)
-			}
-		}
-		return nil
-	}
-	if err := checkEntries("shared_inputs", m.SharedInputs); err != nil {
+	if err := decodeManifest(file, data, m, &m.Schema); err != nil {
 		return nil, err
 	}
-	if err := checkEntries("outputs", m.Outputs); err != nil {
+	if err := checkEntries(file, "outputs", m.Outputs); err != nil {
 		return nil, err
-	}
-	shared := make(map[string]bool, len(m.SharedInputs))
-	for _, s := range m.SharedInputs {
-		shared[s.Path] = true
 	}
 	seen := make(map[string]bool, len(m.Units))
 	for i, u := range m.Units {
@@ -223,19 +182,61 @@ func ParseManifest(data []byte) (*Manifest, error) {
 		if !isSHA256Hex(u.InputsSHA256) {
 			return nil, ingest.Problemf(file, 0, "units[%d] (%s): inputs_sha256 %q, expected 64 lower-case hex digits", i, u.Serial, u.InputsSHA256)
 		}
-		if err := checkEntries(fmt.Sprintf("units[%d].inputs", i), u.Inputs); err != nil {
+		if err := checkEntries(file, fmt.Sprintf("units[%d].manifest", i), []ManifestEntry{u.Manifest}); err != nil {
 			return nil, err
-		}
-		if err := checkEntries(fmt.Sprintf("units[%d].outputs", i), u.Outputs); err != nil {
-			return nil, err
-		}
-		for _, p := range u.SharedInputs {
-			if !shared[p] {
-				return nil, ingest.Problemf(file, 0, "units[%d] (%s): shared input %q is not in shared_inputs", i, u.Serial, p)
-			}
 		}
 	}
 	return m, nil
+}
+
+// ParseUnitManifest reads a unit's manifest.json; file names it in the
+// problems. It refuses what ParseManifest refuses, and inputs_sha256 that
+// is not the digest of the inputs listed.
+func ParseUnitManifest(file string, data []byte) (*UnitManifest, error) {
+	m := new(UnitManifest)
+	if err := decodeManifest(file, data, m, &m.Schema); err != nil {
+		return nil, err
+	}
+	if m.Serial == "" {
+		return nil, ingest.Problemf(file, 0, "no serial")
+	}
+	if err := checkEntries(file, "inputs", m.Inputs); err != nil {
+		return nil, err
+	}
+	if err := checkEntries(file, "outputs", m.Outputs); err != nil {
+		return nil, err
+	}
+	if d := ManifestInputsDigest(m.Inputs); d != m.InputsSHA256 {
+		return nil, ingest.Problemf(file, 0, "inputs_sha256 %q is not the digest of the inputs listed (%s)", m.InputsSHA256, d)
+	}
+	return m, nil
+}
+
+func decodeManifest(file string, data []byte, v any, schema *int) error {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		return jsonProblem(file, data, err)
+	}
+	if *schema != manifestSchema {
+		return ingest.Problemf(file, 0, "schema %d, expected %d", *schema, manifestSchema)
+	}
+	return nil
+}
+
+func checkEntries(file, where string, es []ManifestEntry) error {
+	for i, e := range es {
+		if e.Path == "" {
+			return ingest.Problemf(file, 0, "%s[%d] has no path", where, i)
+		}
+		if !isSHA256Hex(e.SHA256) {
+			return ingest.Problemf(file, 0, "%s[%d] (%s): sha256 %q, expected 64 lower-case hex digits", where, i, e.Path, e.SHA256)
+		}
+		if e.Size < 0 {
+			return ingest.Problemf(file, 0, "%s[%d] (%s): size %d, expected >= 0", where, i, e.Path, e.Size)
+		}
+	}
+	return nil
 }
 
 func isSHA256Hex(s string) bool {

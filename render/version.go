@@ -13,4 +13,4 @@ package render
 // the workbook's frequency charts as XY charts; 0.3.0: the safe site
 // (exit code 3, stale units, fleet.json's optional stale, no_report and
 // notices) and the style rules for them in every page).
-const Version = "0.3.0"
+const Version = "0.4.0"

@@ -351,7 +351,7 @@ func adoptOrphans(site *site, a *ingest.Archive) error {
 		for _, d := range st.Runs {
 			recorded[serial] = append(recorded[serial], path.Join(d, "run.yaml"))
 		}
-		for _, f := range st.Stamps {
+		for _, f := range st.Inputs {
 			if path.Base(f.Path) == "run.yaml" {
 				recorded[serial] = append(recorded[serial], f.Path)
 			}
@@ -393,6 +393,19 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 	if r := u.AcceptanceRefused(); r != nil {
 		return keepStale(site, u, r, old)
 	}
+	if !force {
+		if ok, refreshed := site.current(a, u, old); ok {
+			out.state, out.skipped = old, true
+			if refreshed != nil {
+				// Same contents, new stats: recorded, so that the next
+				// build need not read these files again.
+				if err := site.writeStateOnly(refreshed, false); err != nil {
+					out.err = err
+				}
+			}
+			return out
+		}
+	}
 	// The archive was opened lean: each run is read whole here, one unit
 	// at a time, so that discovery holds little per unit.
 	runs := make([]*ingest.Run, len(u.Runs))
@@ -404,18 +417,31 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		}
 		runs[i] = full
 	}
-	stamps := stampFiles(a, runs)
-	if !force && site.upToDate(old, stamps) {
-		out.state, out.skipped = old, true
-		return out
-	}
 
+	// Every file read for the unit's files is an input: the acceptance
+	// run's and those of the earlier runs, whose verdicts the report
+	// shows.
+	inputs := map[string]ingest.InputFile{}
+	absent := map[string]bool{}
 	var history []reduce.HistoryEntry
-	for _, r := range runs[:len(runs)-1] {
-		res, _ := reduceRun(a, r, nil)
-		history = append(history, reduce.HistoryEntry{Run: r.Dir, Started: res.Started, Verdict: res.Verdict})
+	var res *reduce.Unit
+	for i, r := range runs {
+		var h []reduce.HistoryEntry
+		if i == len(runs)-1 {
+			h = history
+		}
+		reduced, data := reduceRun(a, r, h)
+		for _, in := range data.Inputs {
+			inputs[in.Path] = in
+		}
+		for _, p := range data.Absent {
+			absent[p] = true
+		}
+		if i < len(runs)-1 {
+			history = append(history, reduce.HistoryEntry{Run: r.Dir, Started: reduced.Started, Verdict: reduced.Verdict})
+		}
+		res = reduced
 	}
-	res, inputs := reduceRun(a, runs[len(runs)-1], history)
 	for i := range res.Problems {
 		p := res.Problems[i]
 		out.problems = append(out.problems, &p)
@@ -429,10 +455,17 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 	st := &unitState{
 		Serial:      u.Serial,
 		ToolVersion: render.Version,
-		Stamps:      stamps,
-		Inputs:      inputs,
+		Documents:   unitDocuments(a, runs),
 		Summary:     res.Summary(),
 	}
+	for _, in := range inputs {
+		st.Inputs = append(st.Inputs, in)
+	}
+	sort.Slice(st.Inputs, func(i, j int) bool { return st.Inputs[i].Path < st.Inputs[j].Path })
+	for p := range absent {
+		st.Absent = append(st.Absent, p)
+	}
+	sort.Strings(st.Absent)
 	st.ReportStarted = st.Summary.Started
 	for _, r := range runs {
 		st.Runs = append(st.Runs, r.Dir)
@@ -458,8 +491,12 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 	}
 	st := &unitState{Serial: u.Serial, ToolVersion: render.Version}
 	sum := reduce.UnitSummary{Serial: u.Serial, Started: started, Verdict: reduce.VerdictIncomplete}
+	builtVerdict := ""
 	if old != nil && !old.Summary.NoReport {
 		*st = *old
+		if old.Summary.Stale == "" {
+			builtVerdict = old.Summary.Verdict
+		}
 		was := old.ReportStarted
 		if was == "" {
 			was = old.Summary.Started // a state of 0.2.1
@@ -478,7 +515,7 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 		out.state = old // already recorded so: nothing to write
 		return out
 	}
-	if err := site.writeStateOnly(st); err != nil {
+	if err := site.writeStale(st, builtVerdict); err != nil {
 		out.err = err
 		return out
 	}
@@ -487,8 +524,8 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 }
 
 // reduceRun loads one run's files and reduces them. It returns the result
-// and every input file of the run.
-func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) (*reduce.Unit, []ingest.InputFile) {
+// and what was loaded (the inputs, and the files that could not be read).
+func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) (*reduce.Unit, *ingest.RunData) {
 	data, problems := a.Load(r)
 	in := reduce.Input{
 		Run:       r,
@@ -499,11 +536,7 @@ func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) 
 		Problems:  problems,
 		History:   history,
 	}
-	var inputs []ingest.InputFile
-	if data != nil {
-		inputs = data.Inputs
-	}
-	return reduce.ReduceUnit(in), inputs
+	return reduce.ReduceUnit(in), data
 }
 
 // renderUnit turns one unit's result into its files, by name within the
@@ -560,7 +593,7 @@ func cmdIndex(args []string, stdout, stderr io.Writer) (int, error) {
 			code = exitRefused
 			if !st.Damaged {
 				st.Damaged = true
-				if err := site.writeStateOnly(st); err != nil {
+				if err := site.writeStateOnly(st, false); err != nil {
 					return exitSite, err
 				}
 			}

@@ -14,6 +14,7 @@ import (
 	"path"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"sort"
 	"strings"
 
@@ -83,25 +84,33 @@ type notSiteError struct{ msg string }
 
 func (e *notSiteError) Error() string { return e.msg }
 
-// fileStamp is how the build tells whether an input changed without
-// reading it.
-type fileStamp struct {
-	Path    string `json:"path"`
-	Size    int64  `json:"size"` // -1: missing
-	ModTime int64  `json:"mod_time_ns"`
-}
-
+// unitState is a unit's record in SITE/.gtpack/units/<serial>.json: what
+// its files in the site were built from, compact enough that a rebuild
+// reads it for every unit to tell which changed. The unit's full summary
+// for the fleet pages (its limits and boresight trace, some 30 kB) is
+// kept beside it, in .gtpack/summaries/<serial>.json; the record holds
+// only the summary's head (Limits and Boresight empty), which is all the
+// unit stage needs.
 type unitState struct {
 	Serial      string   `json:"serial"`
 	ToolVersion string   `json:"tool_version"`
 	Runs        []string `json:"runs,omitempty"` // run folders, oldest first
 	// ReportStarted is the start of the run the outputs were built from;
 	// it stays when a refused retest makes the unit stale.
-	ReportStarted string                 `json:"report_started,omitempty"`
-	Stamps        []fileStamp            `json:"stamps"`
-	Inputs        []ingest.InputFile     `json:"inputs"`
-	Outputs       []render.ManifestEntry `json:"outputs"`
-	Summary       reduce.UnitSummary     `json:"summary"`
+	ReportStarted string `json:"report_started,omitempty"`
+	// Documents are the YAML documents the runs depend on (run.yaml,
+	// station, reference and its table, spec): another set of them is
+	// another unit, even where every file recorded is unchanged.
+	Documents []string `json:"documents,omitempty"`
+	// Inputs are every file read for the unit's files, of every run,
+	// with the size and SHA-256 of the bytes used and their stat; Absent
+	// the files the runs name that could not be read.
+	Inputs  []ingest.InputFile     `json:"inputs"`
+	Absent  []string               `json:"absent,omitempty"`
+	Outputs []render.ManifestEntry `json:"outputs"`
+	// Summary is the head of the summary in the record, and the whole
+	// summary once readSummary has read it or a build made it.
+	Summary reduce.UnitSummary `json:"summary"`
 	// Damaged is set by gtpack index for a unit whose files no longer
 	// are the ones recorded: the next build makes it again.
 	Damaged bool `json:"damaged,omitempty"`
@@ -148,7 +157,7 @@ func openSite(dir string, create bool, command string, scope lockScope) (*site, 
 		return nil, siteErr(err)
 	}
 	s := &site{dir: dir, root: root, id: newBuildID()}
-	for _, d := range []string{"units", "pending", "locks"} {
+	for _, d := range []string{"units", "summaries", "pending", "locks"} {
 		if err := root.MkdirAll(path.Join(stateDir, d), 0o755); err != nil {
 			root.Close()
 			return nil, siteErr(err)
@@ -199,6 +208,10 @@ func (s *site) rel(p string) (string, error) {
 
 func (s *site) statePath(serial string) string {
 	return path.Join(stateDir, "units", serial+".json")
+}
+
+func (s *site) summaryPath(serial string) string {
+	return path.Join(stateDir, "summaries", serial+".json")
 }
 
 func unitDir(serial string) string { return path.Join("units", serial) }
@@ -496,49 +509,70 @@ func (a *atomicFile) abort() {
 	a.t.s.root.Remove(a.tmp)
 }
 
-// stampFiles stats every file the unit's runs depend on.
-func stampFiles(a *ingest.Archive, runs []*ingest.Run) []fileStamp {
-	seen := map[string]bool{}
-	var stamps []fileStamp
-	for _, r := range runs {
-		for _, p := range ingest.RunFiles(a, r) {
-			if seen[p] {
-				continue
-			}
-			seen[p] = true
-			st := fileStamp{Path: p, Size: -1}
-			if fi, err := os.Stat(filepath.Join(a.Root, filepath.FromSlash(p))); err == nil {
-				st.Size, st.ModTime = fi.Size(), fi.ModTime().UnixNano()
-			}
-			stamps = append(stamps, st)
+// current says whether the unit's record st still describes unit u of
+// archive a: built by this tool version, not damaged or stale, from the
+// same runs and documents, every input unchanged (ingest.Recheck: by
+// content where the stat cannot tell), every absent file still absent,
+// and its outputs in place. refreshed is the record to write when inputs
+// were found unchanged by their content but with a new stat (so that the
+// next build can trust the stat again); nil when there is none.
+func (s *site) current(a *ingest.Archive, u *ingest.Unit, st *unitState) (ok bool, refreshed *unitState) {
+	if st == nil || st.Damaged || st.Summary.Stale != "" || st.ToolVersion != render.Version || len(st.Runs) != len(u.Runs) {
+		return false, nil
+	}
+	for i, r := range u.Runs {
+		if st.Runs[i] != r.Dir {
+			return false, nil
 		}
 	}
-	sort.Slice(stamps, func(i, j int) bool { return stamps[i].Path < stamps[j].Path })
-	return stamps
-}
-
-// upToDate says whether the unit's recorded state st was built by this
-// tool version from inputs with these stamps, and its outputs are still in
-// place.
-func (s *site) upToDate(st *unitState, stamps []fileStamp) bool {
-	if st == nil || st.Damaged || st.Summary.Stale != "" || st.ToolVersion != render.Version || len(st.Stamps) != len(stamps) {
-		return false
+	if !slices.Equal(st.Documents, unitDocuments(a, u.Runs)) {
+		return false, nil
 	}
-	for i := range stamps {
-		if st.Stamps[i] != stamps[i] {
-			return false
+	var renewed []ingest.InputFile
+	for i, in := range st.Inputs {
+		now, same := a.Recheck(in)
+		if !same {
+			return false, nil
+		}
+		if now.Stat != in.Stat {
+			if renewed == nil {
+				renewed = slices.Clone(st.Inputs)
+			}
+			renewed[i] = now
+		}
+	}
+	for _, p := range st.Absent {
+		if a.Readable(p) {
+			return false, nil
 		}
 	}
 	for _, o := range st.Outputs {
 		fi, err := s.root.Lstat(o.Path)
 		if err != nil || !fi.Mode().IsRegular() || fi.Size() != o.Size {
-			return false
+			return false, nil
 		}
 	}
-	return true
+	if renewed != nil {
+		r := *st
+		r.Inputs = renewed
+		refreshed = &r
+	}
+	return true, refreshed
+}
+
+// unitDocuments lists the YAML documents runs depend on, sorted, each
+// once.
+func unitDocuments(a *ingest.Archive, runs []*ingest.Run) []string {
+	var docs []string
+	for _, r := range runs {
+		docs = append(docs, ingest.RunDocuments(a, r)...)
+	}
+	slices.Sort(docs)
+	return slices.Compact(docs)
 }
 
 // readState returns the unit's recorded state; nil, nil when it has none.
+// Its Summary is the head the record keeps (see readSummary).
 func (s *site) readState(serial string) (*unitState, error) {
 	data, err := s.root.ReadFile(s.statePath(serial))
 	if errors.Is(err, fs.ErrNotExist) {
@@ -554,11 +588,30 @@ func (s *site) readState(serial string) (*unitState, error) {
 	return &st, nil
 }
 
+// readSummary returns the unit's whole summary, as the fleet pages need
+// it. A site of 0.3.0 or before kept it in the record: head is the
+// record's summary, used when there is no summary file.
+func (s *site) readSummary(serial string, head reduce.UnitSummary) (reduce.UnitSummary, error) {
+	data, err := s.root.ReadFile(s.summaryPath(serial))
+	if errors.Is(err, fs.ErrNotExist) {
+		return head, nil
+	}
+	if err != nil {
+		return head, err
+	}
+	var sum reduce.UnitSummary
+	if err := json.Unmarshal(data, &sum); err != nil {
+		return head, fmt.Errorf("%s: %w", filepath.Join(s.dir, s.summaryPath(serial)), err)
+	}
+	return sum, nil
+}
+
 // writeUnit replaces the unit's files with files (by name within its
-// folder) and its state with st, as one commit: old outputs that are not
-// written again are removed, anything else in the folder is left alone. A
-// file in the way that gtpack did not write stops the unit. st.Outputs is
-// set to what was written.
+// folder), its manifest and its state with st, as one commit: old outputs
+// that are not written again are removed, anything else in the folder is
+// left alone. A file in the way that gtpack did not write stops the unit.
+// st.Outputs is set to what was written, the unit's manifest.json (which
+// lists the others and st.Inputs) included.
 func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 	owned := map[string]bool{}
 	if old != nil {
@@ -574,19 +627,36 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 	t := s.begin("unit-" + st.Serial)
 	st.Outputs = nil
 	written := map[string]bool{}
-	for _, n := range names {
+	put := func(n string, data []byte) error {
 		rel := path.Join(unitDir(st.Serial), n)
 		if err := s.notAPersonsFile(rel, owned); err != nil {
-			t.abort()
 			return err
 		}
-		e, err := t.put(rel, files[n])
+		e, err := t.put(rel, data)
 		if err != nil {
-			t.abort()
 			return err
 		}
 		st.Outputs = append(st.Outputs, e)
 		written[rel] = true
+		return nil
+	}
+	for _, n := range names {
+		if n == render.UnitManifestName {
+			t.abort()
+			return fmt.Errorf("internal: a unit file is named %s", n)
+		}
+		if err := put(n, files[n]); err != nil {
+			t.abort()
+			return err
+		}
+	}
+	man, err := render.UnitManifestJSON(st.Serial, st.Summary.Verdict, manifestEntries(st.Inputs), st.Outputs)
+	if err == nil {
+		err = put(render.UnitManifestName, man)
+	}
+	if err != nil {
+		t.abort()
+		return err
 	}
 	for p := range owned {
 		if !written[p] {
@@ -594,27 +664,81 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 		}
 	}
 	sort.Strings(t.j.Removes)
-	if err := t.putState(st); err != nil {
+	if err := t.putState(st, true); err != nil {
 		t.abort()
 		return err
 	}
 	return t.commit()
 }
 
-// writeStateOnly replaces the unit's state and nothing else.
-func (s *site) writeStateOnly(st *unitState) error {
+// manifestEntries are the inputs as the manifest lists them.
+func manifestEntries(inputs []ingest.InputFile) []render.ManifestEntry {
+	out := make([]render.ManifestEntry, len(inputs))
+	for i, in := range inputs {
+		out[i] = render.ManifestEntry{Path: in.Path, Size: in.Size, SHA256: in.SHA256}
+	}
+	return out
+}
+
+// writeStale writes the record and summary of a unit whose acceptance
+// run was refused, with the files of its last build. A unit of a site of
+// 0.3.0 or before has no manifest in its folder: one is written from its
+// record (builtVerdict is the verdict of its files), so that the site's
+// manifest can list it.
+func (s *site) writeStale(st *unitState, builtVerdict string) error {
 	t := s.begin("unit-" + st.Serial)
-	if err := t.putState(st); err != nil {
+	rel := path.Join(unitDir(st.Serial), render.UnitManifestName)
+	if !st.Summary.NoReport && !slices.ContainsFunc(st.Outputs, func(e render.ManifestEntry) bool { return e.Path == rel }) {
+		man, err := render.UnitManifestJSON(st.Serial, builtVerdict, manifestEntries(st.Inputs), st.Outputs)
+		if err != nil {
+			return err
+		}
+		owned := map[string]bool{}
+		if err := s.notAPersonsFile(rel, owned); err != nil {
+			return err
+		}
+		e, err := t.put(rel, man)
+		if err != nil {
+			t.abort()
+			return err
+		}
+		st.Outputs = append(slices.Clone(st.Outputs), e)
+	}
+	if err := t.putState(st, true); err != nil {
 		t.abort()
 		return err
 	}
 	return t.commit()
 }
 
-// putState adds the unit's state to the transaction; commits put it last,
-// after the files it records.
-func (t *txn) putState(st *unitState) error {
-	data, err := json.Marshal(st)
+// writeStateOnly replaces the unit's record, and its summary when
+// withSummary is set (st.Summary is then the whole summary), and nothing
+// else.
+func (s *site) writeStateOnly(st *unitState, withSummary bool) error {
+	t := s.begin("unit-" + st.Serial)
+	if err := t.putState(st, withSummary); err != nil {
+		t.abort()
+		return err
+	}
+	return t.commit()
+}
+
+// putState adds the unit's record to the transaction, after its summary
+// when withSummary is set; commits put them last, after the files the
+// record lists. The record keeps the summary's head only.
+func (t *txn) putState(st *unitState, withSummary bool) error {
+	if withSummary {
+		data, err := json.Marshal(st.Summary)
+		if err != nil {
+			return err
+		}
+		if _, err := t.put(t.s.summaryPath(st.Serial), data); err != nil {
+			return err
+		}
+	}
+	rec := *st
+	rec.Summary.Limits, rec.Summary.Boresight = nil, nil
+	data, err := json.Marshal(&rec)
 	if err != nil {
 		return err
 	}
@@ -657,6 +781,7 @@ func (s *site) removeUnitsExcept(keep func(serial string) bool) ([]string, error
 				t.remove(o.Path)
 			}
 		}
+		t.remove(s.summaryPath(serial))
 		t.remove(s.statePath(serial))
 		if err := t.commit(); err != nil {
 			return removed, err
@@ -704,15 +829,6 @@ func (s *site) personsFiles(owned map[string]bool, units map[string]bool) []stri
 	return out
 }
 
-// fleetState is the part of a unit state the fleet stage reads; the
-// decoder skips the rest (the stamps).
-type fleetState struct {
-	Serial  string                 `json:"serial"`
-	Inputs  []render.ManifestEntry `json:"inputs"` // ingest.InputFile has the same fields
-	Outputs []render.ManifestEntry `json:"outputs"`
-	Summary reduce.UnitSummary     `json:"summary"`
-}
-
 // serials lists the serial numbers of the site's unit states, sorted.
 func (s *site) serials() ([]string, error) {
 	entries, err := fs.ReadDir(s.root.FS(), path.Join(stateDir, "units"))
@@ -729,14 +845,14 @@ func (s *site) serials() ([]string, error) {
 	return out, nil
 }
 
-// eachState calls fn with the state of every serial, in the order given.
-// The states are read and decoded on every core, a few ahead of fn; none
-// is kept after fn returns, so that the fleet stage's memory does not grow
-// with the number of units (the states of 10,000 units are some 400 MB of
-// JSON).
-func (s *site) eachState(serials []string, fn func(*fleetState) error) error {
+// eachState calls fn with the state of every serial, with its whole
+// summary, in the order given. The states are read and decoded on every
+// core, a few ahead of fn; none is kept after fn returns, so that the
+// fleet stage's memory does not grow with the number of units (the
+// summaries of 10,000 units are some 300 MB of JSON).
+func (s *site) eachState(serials []string, fn func(*unitState) error) error {
 	type result struct {
-		st  *fleetState
+		st  *unitState
 		err error
 	}
 	type job struct {
@@ -751,15 +867,14 @@ func (s *site) eachState(serials []string, fn func(*fleetState) error) error {
 	for range workers {
 		go func() {
 			for j := range jobs {
-				p := s.statePath(j.serial)
-				var st fleetState
-				data, err := s.root.ReadFile(p)
-				if err == nil {
-					if err = json.Unmarshal(data, &st); err != nil {
-						err = fmt.Errorf("%s: %w", filepath.Join(s.dir, p), err)
-					}
+				st, err := s.readState(j.serial)
+				if err == nil && st == nil {
+					err = fmt.Errorf("%s: the unit's record is gone", filepath.Join(s.dir, s.statePath(j.serial)))
 				}
-				j.out <- result{&st, err}
+				if err == nil {
+					st.Summary, err = s.readSummary(j.serial, st.Summary)
+				}
+				j.out <- result{st, err}
 			}
 		}()
 	}
@@ -844,16 +959,33 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 	if err != nil {
 		return err
 	}
-	err = s.eachState(serials, func(st *fleetState) error {
+	// Every file of the package, for SHA256SUMS: some 200 bytes a file,
+	// four files a unit.
+	var packaged []render.ManifestEntry
+	err = s.eachState(serials, func(st *unitState) error {
 		if err := fb.Add(st.Summary); err != nil {
 			return fmt.Errorf("%s: %w", filepath.Join(s.dir, s.statePath(st.Serial)), err)
 		}
 		if err := csvW.Unit(&st.Summary); err != nil {
 			return fmt.Errorf("results.csv: %w", err)
 		}
-		if err := man.Unit(st.Serial, st.Summary.Verdict, st.Inputs, st.Outputs); err != nil {
-			return fmt.Errorf("manifest.json: %w", err)
+		mu := render.ManifestUnit{Serial: st.Serial, Verdict: st.Summary.Verdict,
+			InputsSHA256: render.ManifestInputsDigest(manifestEntries(st.Inputs))}
+		rel := path.Join(unitDir(st.Serial), render.UnitManifestName)
+		for _, o := range st.Outputs {
+			if o.Path == rel {
+				mu.Manifest = o
+			}
 		}
+		if mu.Manifest.Path == "" && len(st.Outputs) > 0 {
+			return fmt.Errorf("%s: the unit's record lists no %s; gtpack build --only %s makes it again", filepath.Join(s.dir, s.statePath(st.Serial)), rel, st.Serial)
+		}
+		if mu.Manifest.Path != "" {
+			if err := man.Unit(mu); err != nil {
+				return fmt.Errorf("manifest.json: %w", err)
+			}
+		}
+		packaged = append(packaged, st.Outputs...)
 		return nil
 	})
 	if err != nil {
@@ -901,9 +1033,30 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 	if err != nil {
 		return err
 	}
+	outputs = append(outputs, me)
+	// SHA256SUMS lists every file of the package but itself and its
+	// signature, which (written by gtpack sign) no longer holds for the
+	// new list and goes with the old one.
+	sums, err := render.SumsFile(append(packaged, outputs...))
+	if err != nil {
+		return err
+	}
+	if err := s.notAPersonsFile(render.SumsName, owned); err != nil {
+		return err
+	}
+	se, err := t.put(render.SumsName, sums)
+	if err != nil {
+		return err
+	}
+	outputs = append(outputs, se)
+	if old, ok := s.readFleetStamp(); ok {
+		if sig, ok := old.signature(se); ok {
+			outputs = append(outputs, sig) // the list it signs is unchanged
+		}
+	}
 	// Fleet pages of an earlier build that are not written again go.
 	written := map[string]bool{}
-	for _, o := range append(outputs, me) {
+	for _, o := range outputs {
 		written[o.Path] = true
 	}
 	for p := range owned {
@@ -912,7 +1065,7 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 		}
 	}
 	sort.Strings(t.j.Removes)
-	stamp, err := json.Marshal(fleetStamp{States: digest, Outputs: append(outputs, me)})
+	stamp, err := json.Marshal(fleetStamp{States: digest, Outputs: outputs})
 	if err != nil {
 		return err
 	}
@@ -930,6 +1083,21 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 type fleetStamp struct {
 	States  string                 `json:"states_sha256"`
 	Outputs []render.ManifestEntry `json:"outputs"`
+}
+
+// signature is the SHA256SUMS.sig that gtpack sign wrote, when it signed
+// the very SHA256SUMS sums.
+func (st *fleetStamp) signature(sums render.ManifestEntry) (render.ManifestEntry, bool) {
+	var sig, signed render.ManifestEntry
+	for _, o := range st.Outputs {
+		switch o.Path {
+		case render.SignatureName:
+			sig = o
+		case render.SumsName:
+			signed = o
+		}
+	}
+	return sig, sig.Path != "" && signed == sums
 }
 
 func (s *site) readFleetStamp() (*fleetStamp, bool) {

@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"gtpack.example/gtpack/ingest"
+	"gtpack.example/gtpack/render"
 )
 
 // These tests check the contract's promises about the site
@@ -77,48 +78,29 @@ func treeOf(t *testing.T, dir string) map[string]string {
 	return siteDigest(t, dir)
 }
 
-// checkManifestTruthful: every file the manifest lists is in the site
-// with the size and SHA-256 it gives, and every unit folder's gtpack files
-// are listed.
+// checkManifestTruthful: every file the manifests list is in the site
+// with the size and SHA-256 they give, and, with allListed, every unit
+// folder's gtpack files are listed (a person's files have "person" in
+// their names).
 func checkManifestTruthful(t *testing.T, site string, allListed bool) {
 	t.Helper()
-	data, err := os.ReadFile(filepath.Join(site, "manifest.json"))
-	if err != nil {
-		t.Fatalf("manifest.json: %v", err)
-	}
-	var m struct {
-		Units []struct {
-			Serial  string `json:"serial"`
-			Outputs []struct {
-				Path   string `json:"path"`
-				Size   int64  `json:"size"`
-				SHA256 string `json:"sha256"`
-			} `json:"outputs"`
-		} `json:"units"`
-		Outputs []struct {
-			Path   string `json:"path"`
-			Size   int64  `json:"size"`
-			SHA256 string `json:"sha256"`
-		} `json:"outputs"`
-	}
-	if err := json.Unmarshal(data, &m); err != nil {
-		t.Fatal(err)
-	}
+	m, units := readManifests(t, site)
 	digest := siteDigest(t, site)
 	listed := map[string]bool{"manifest.json": true}
-	for _, u := range m.Units {
-		for _, o := range u.Outputs {
-			listed[o.Path] = true
-			if digest[o.Path] != o.SHA256 {
-				t.Errorf("manifest lists %s with SHA-256 %s; the site's file has %q", o.Path, o.SHA256, digest[o.Path])
-			}
-		}
-	}
-	for _, o := range m.Outputs {
+	check := func(o render.ManifestEntry) {
 		listed[o.Path] = true
 		if digest[o.Path] != o.SHA256 {
 			t.Errorf("manifest lists %s with SHA-256 %s; the site's file has %q", o.Path, o.SHA256, digest[o.Path])
 		}
+	}
+	for i, u := range units {
+		check(m.Units[i].Manifest)
+		for _, o := range u.Outputs {
+			check(o)
+		}
+	}
+	for _, o := range m.Outputs {
+		check(o)
 	}
 	for p := range digest {
 		if allListed && strings.HasPrefix(p, "units/") && !listed[p] && !strings.Contains(p, "person") {
