@@ -125,6 +125,10 @@ func ParseSigningKey(data, passphrase []byte) (ssh.Signer, error) {
 	return signer, nil
 }
 
+// Fingerprint is the SHA-256 fingerprint of the signer's public key, as
+// ssh-keygen -l prints it.
+func Fingerprint(s ssh.Signer) string { return ssh.FingerprintSHA256(s.PublicKey()) }
+
 // SignSums signs a SHA256SUMS with signer: an armored SSH signature
 // (SHA-512, namespace gtpack), as `ssh-keygen -Y sign -n gtpack` writes
 // it.

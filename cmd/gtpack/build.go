@@ -23,6 +23,11 @@ import (
 	"gtpack.example/gtpack/render"
 )
 
+// afterDiscovery, when set (by tests only), runs once the archive has
+// been discovered: a test changes a shared file there, as a person editing
+// it during a build would.
+var afterDiscovery func()
+
 type buildOptions struct {
 	archive, site  string
 	jobs           int
@@ -121,6 +126,9 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	archive, err := ingest.OpenLean(o.archive)
 	if err != nil {
 		return exitRefused, err
+	}
+	if afterDiscovery != nil {
+		afterDiscovery()
 	}
 	if os.Getenv("GOGC") == "" {
 		defer debug.SetGCPercent(debug.SetGCPercent(400))

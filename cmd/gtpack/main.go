@@ -30,6 +30,9 @@ usage:
   gtpack build ARCHIVE [-o SITE] [-j N] [--only SERIAL] [--force] [--quiet] [--shard K/N]
   gtpack index SITE                       rebuild the fleet pages from the units already in SITE
   gtpack check ARCHIVE                    validate only; exit 1 when anything is wrong
+  gtpack verify SITE [--archive ARCHIVE] [--allowed-signers FILE]
+                                          check a package: files, manifests, signature, inputs
+  gtpack sign SITE --key FILE             sign SHA256SUMS with an OpenSSH ed25519 key
   gtpack inspect FILE [--json]            what the tool reads from one input file
   gtpack demo DIR [--units N] [--seed S]  write a synthetic archive from a physical model
   gtpack version
@@ -68,6 +71,10 @@ func run(args []string, stdout, stderr io.Writer) int {
 		code, err = cmdIndex(args[1:], stdout, stderr)
 	case "check":
 		code, err = cmdCheck(args[1:], stdout, stderr)
+	case "verify":
+		code, err = cmdVerify(args[1:], stdout, stderr)
+	case "sign":
+		code, err = cmdSign(args[1:], stdout, stderr)
 	case "inspect":
 		code, err = cmdInspect(args[1:], stdout, stderr)
 	case "demo":

@@ -5,6 +5,8 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/ingest/demo"
@@ -25,6 +27,9 @@ func cmdCheck(args []string, stdout, _ io.Writer) (int, error) {
 	pos, err := parseArgs(fs, args, "ARCHIVE")
 	if err != nil {
 		return exitUsage, err
+	}
+	if isSite(pos[0]) {
+		return exitUsage, usageError("%s is a site that gtpack build wrote, not an archive; gtpack verify %s checks a site", pos[0], pos[0])
 	}
 	problems := ingest.Check(pos[0])
 	for _, p := range problems {
@@ -77,4 +82,15 @@ func cmdDemo(args []string, stdout, _ io.Writer) (int, error) {
 	}
 	fmt.Fprintf(stdout, "wrote a synthetic archive of %d unit(s) to %s\n", *units, pos[0])
 	return exitOK, nil
+}
+
+// isSite says whether dir looks like a site gtpack wrote: its cache
+// folder, or a package's SHA256SUMS and manifest.json.
+func isSite(dir string) bool {
+	if fi, err := os.Stat(filepath.Join(dir, stateDir)); err == nil && fi.IsDir() {
+		return true
+	}
+	_, err1 := os.Stat(filepath.Join(dir, "SHA256SUMS"))
+	_, err2 := os.Stat(filepath.Join(dir, "manifest.json"))
+	return err1 == nil && err2 == nil
 }

@@ -1065,14 +1065,20 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 		}
 	}
 	sort.Strings(t.j.Removes)
-	stamp, err := json.Marshal(fleetStamp{States: digest, Outputs: outputs})
-	if err != nil {
-		return err
-	}
-	if _, err := t.put(path.Join(stateDir, "fleet-stamp.json"), stamp); err != nil {
+	if err := t.putFleetStamp(&fleetStamp{States: digest, Outputs: outputs}); err != nil {
 		return err
 	}
 	return t.commit()
+}
+
+// putFleetStamp adds the fleet stamp to the transaction.
+func (t *txn) putFleetStamp(st *fleetStamp) error {
+	data, err := json.Marshal(st)
+	if err != nil {
+		return err
+	}
+	_, err = t.put(path.Join(stateDir, "fleet-stamp.json"), data)
+	return err
 }
 
 // fleetStamp is what the fleet pages were last made from, kept in
