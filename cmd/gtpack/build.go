@@ -308,6 +308,9 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 			owned[e.Path] = true
 		}
 	}
+	for _, m := range site.said {
+		fmt.Fprintf(stderr, "gtpack: %s\n", m)
+	}
 	if theirs := site.personsFiles(owned, thisBuild); len(theirs) > 0 {
 		fmt.Fprintf(stderr, "gtpack: left %d file(s) in %s that gtpack did not write: %s\n", len(theirs), o.site, listSome(theirs))
 	}
@@ -615,6 +618,9 @@ func cmdIndex(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	if err := writeFleet(site, keep, notices); err != nil {
 		return exitSite, err
+	}
+	for _, m := range site.said {
+		fmt.Fprintf(stderr, "gtpack: %s\n", m)
 	}
 	return code, nil
 }

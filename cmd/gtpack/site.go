@@ -61,6 +61,9 @@ type site struct {
 	root *os.Root
 	id   string // this process's build id
 	lock *siteLock
+	// said is what the site layer has to tell the user once the command
+	// is done (build and index print it).
+	said []string
 }
 
 // siteError is a failure to write the site itself (no space, no
@@ -917,6 +920,12 @@ func (s *site) eachState(serials []string, fn func(*unitState) error) error {
 // are shown on the overview and kept in fleet.json (a build that could not
 // write every unit says so there).
 func writeFleet(s *site, serials []string, notices []string) (err error) {
+	signed := s.signed()
+	defer func() {
+		if err == nil && signed && !s.signed() {
+			s.said = append(s.said, fmt.Sprintf("removed %s: the package changed since it was signed; gtpack sign %s --key FILE signs it again", render.SignatureName, s.dir))
+		}
+	}()
 	digest, err := s.statesDigest()
 	if err != nil {
 		return err
@@ -1089,6 +1098,13 @@ func (t *txn) putFleetStamp(st *fleetStamp) error {
 type fleetStamp struct {
 	States  string                 `json:"states_sha256"`
 	Outputs []render.ManifestEntry `json:"outputs"`
+}
+
+// signed says whether the fleet stamp records a signature gtpack sign
+// wrote.
+func (s *site) signed() bool {
+	st, ok := s.readFleetStamp()
+	return ok && slices.ContainsFunc(st.Outputs, func(e render.ManifestEntry) bool { return e.Path == render.SignatureName })
 }
 
 // signature is the SHA256SUMS.sig that gtpack sign wrote, when it signed

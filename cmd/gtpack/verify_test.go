@@ -221,7 +221,9 @@ func TestVerifyAndSignWithStandardTools(t *testing.T) {
 	p := filepath.Join(acceptanceRun(t, archive, 0), "run.yaml")
 	data, _ := os.ReadFile(p)
 	os.WriteFile(p, append(data, []byte("# rebuilt\n")...), 0o644)
-	runQuiet(t, "build", archive, "-o", site, "--quiet")
+	if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK || !strings.Contains(out, "removed SHA256SUMS.sig: the package changed since it was signed") {
+		t.Errorf("build after the package changed: %d\n%s", code, out)
+	}
 	if _, err := os.Stat(filepath.Join(site, "SHA256SUMS.sig")); !os.IsNotExist(err) {
 		t.Errorf("SHA256SUMS.sig after the package changed: %v, want it removed", err)
 	}

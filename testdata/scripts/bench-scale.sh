@@ -53,31 +53,55 @@ if [ "${FLEET_ONLY:-}" != 1 ]; then
   echo "# touched by the benchmark" >> "$first"
   measure one-changed "$work/gtpack" build "$archive" -o "$site" --quiet
   sed -i '$ d' "$first"
+  # An in-place edit of a data file with its size and time restored (as
+  # touch -r leaves it): found by its change time, one unit rebuilt.
+  data=$(find "$(dirname "$first")" -name '*.s2p' | sort | sed -n 1p)
+  cp -p "$data" "$work/saved.s2p"
+  tr '0123456789' '1234567890' < "$work/saved.s2p" | head -c "$(stat -c %s "$work/saved.s2p")" > "$work/edited.s2p"
+  cat "$work/edited.s2p" > "$data"
+  touch -r "$work/saved.s2p" "$data"
+  measure in-place-edit "$work/gtpack" build "$archive" -o "$site" --quiet
+  cat "$work/saved.s2p" > "$data"
+  touch -r "$work/saved.s2p" "$data"
+  measure edit-undone "$work/gtpack" build "$archive" -o "$site" --quiet
+  measure no-change-2 "$work/gtpack" build "$archive" -o "$site" --quiet
+  printf 'manifest sizes, %d units: manifest.json %d B, a unit manifest %d B, SHA256SUMS %d B\n' "$N" \
+    "$(stat -c %s "$site/manifest.json")" "$(stat -c %s "$(ls -d "$site"/units/*/ | head -1)manifest.json")" "$(stat -c %s "$site/SHA256SUMS")"
   awk -v f="$(cat "$work/wall-floor")" -v b="$(cat "$work/wall-full-build")" \
     'BEGIN{printf "full build / floor: %.2f\n", b/f}'
 fi
 
-# The fleet stage at ten times the units: the unit states of this site,
-# replicated ten times under new serial numbers, then `gtpack index`. The
-# unit stage holds one unit per worker whatever the archive's size, so this
-# is where memory could grow with the number of units: the fleet stage
-# reads the states one by one and keeps per unit a small record and its
-# boresight trace (3.2 kB at 801 points), so its peak at ten times the
-# units should stay near the 1,000-unit one.
+# The fleet stage at ten times the units: the units of this site (their
+# records, summaries and folders, the files hard-linked), replicated ten
+# times under new serial numbers, then `gtpack index`. The unit stage holds
+# one unit per worker whatever the archive's size, so this is where memory
+# could grow with the number of units: the fleet stage reads the states one
+# by one and keeps per unit a small record and its boresight trace (3.2 kB
+# at 801 points), so its peak at ten times the units should stay near the
+# 1,000-unit one.
 big="$work/site-x10"
 rm -rf "$big"
-mkdir -p "$big/.gtpack/units"
-/usr/bin/python3 - "$site/.gtpack/units" "$big/.gtpack/units" <<'PY'
+mkdir -p "$big/.gtpack/units" "$big/.gtpack/summaries" "$big/units"
+/usr/bin/python3 - "$site" "$big" <<'PY'
 import json, os, sys
 src, dst = sys.argv[1], sys.argv[2]
-for name in sorted(os.listdir(src)):
-    state = json.load(open(os.path.join(src, name)))
+for name in sorted(os.listdir(os.path.join(src, ".gtpack", "units"))):
+    state = json.load(open(os.path.join(src, ".gtpack", "units", name)))
+    summary = json.load(open(os.path.join(src, ".gtpack", "summaries", name)))
+    old = state["serial"]
     for k in range(10):
-        s = dict(state)
-        serial = "%s-R%d" % (state["serial"], k)
-        s["serial"] = serial
-        s["summary"] = dict(state["summary"], serial=serial)
-        json.dump(s, open(os.path.join(dst, serial + ".json"), "w"))
+        serial = "%s-R%d" % (old, k)
+        s = dict(state, serial=serial, summary=dict(state["summary"], serial=serial))
+        os.makedirs(os.path.join(dst, "units", serial))
+        outs = []
+        for o in state["outputs"]:
+            base = os.path.basename(o["path"])
+            new = base.replace(old, serial)
+            os.link(os.path.join(src, o["path"]), os.path.join(dst, "units", serial, new))
+            outs.append(dict(o, path="units/%s/%s" % (serial, new)))
+        s["outputs"] = outs
+        json.dump(s, open(os.path.join(dst, ".gtpack", "units", serial + ".json"), "w"))
+        json.dump(dict(summary, serial=serial), open(os.path.join(dst, ".gtpack", "summaries", serial + ".json"), "w"))
 PY
 echo "fleet stage, $((N)) units:"
 measure index-x1 "$work/gtpack" index "$site"
@@ -87,7 +111,7 @@ awk -v a="$(awk -F': ' '/Maximum resident/ {print $2}' "$work/time-index-x1.log"
   -v b="$(awk -F': ' '/Maximum resident/ {print $2}' "$work/time-index-x10.log")" \
   'BEGIN{printf "fleet stage peak RSS, 10x units / 1x units: %.2f\n", b/a}'
 echo "fleet pages of $((N * 10)) units:"
-for f in fleet.json fleet.xlsx index.html results.csv manifest.json; do
+for f in fleet.json fleet.xlsx index.html results.csv manifest.json SHA256SUMS; do
   printf '  %-14s %6.1f MB\n' "$f" "$(stat -c %s "$big/$f" | awk '{print $1/1e6}')"
 done
 
