@@ -4,12 +4,12 @@ import "sort"
 
 // RunFiles lists every file a run depends on, relative to the archive root
 // with '/': its run.yaml, its data files, and the station, reference (with
-// its table file) and spec documents it names. It reads nothing, so that a
-// build can tell from file stamps alone whether a unit needs redoing.
+// its table file) and spec documents it names: what Load reads and lists
+// among the inputs (and absent files) of the run, by path, without reading
+// a data file.
 //
 // A run of OpenLean is read whole first (Archive.Full); when that fails,
-// the list is its run.yaml alone, whose stamp then tells a build to redo
-// the unit and meet the problem.
+// the list is its run.yaml alone.
 func RunFiles(a *Archive, r *Run) []string {
 	if r.lean {
 		full, err := a.Full(r)

@@ -9,8 +9,7 @@ import (
 	"testing"
 )
 
-// RunFiles, which the build stamps to decide whether a unit changed, lists
-// exactly the files Load reads and hashes for the run.
+// RunFiles lists exactly the files Load reads and hashes for the run.
 func TestRunFilesAreTheLoadedInputs(t *testing.T) {
 	a, err := Open("../testdata/good")
 	if err != nil {
