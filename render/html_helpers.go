@@ -12,6 +12,10 @@ import (
 	"sync"
 
 	"github.com/yuin/goldmark"
+	"github.com/yuin/goldmark/ast"
+	"github.com/yuin/goldmark/renderer"
+	"github.com/yuin/goldmark/renderer/html"
+	"github.com/yuin/goldmark/util"
 
 	"gtpack.example/gtpack/reduce"
 	"gtpack.example/gtpack/templates"
@@ -235,16 +239,132 @@ type countRow struct {
 	N       int
 }
 
-// markdown renders notes with goldmark's defaults: raw HTML is left out
-// (replaced by a comment) and links or images whose destination is a
-// dangerous URL (javascript:, vbscript:, file:, data: other than images)
-// get an empty destination, so nothing in the notes can run.
+// markdown renders notes with goldmark. Its defaults leave raw HTML out
+// (replaced by a comment), so nothing in the notes can run or carry a
+// style. notesRenderer adds that the notes load and link nothing outside
+// the page.
 func markdown(src string) (template.HTML, error) {
 	var buf bytes.Buffer
-	if err := goldmark.New().Convert([]byte(src), &buf); err != nil {
+	if err := notesMarkdown.Convert([]byte(src), &buf); err != nil {
 		return "", fmt.Errorf("render: notes: %w", err)
 	}
 	return template.HTML(buf.String()), nil
+}
+
+var notesMarkdown = goldmark.New(goldmark.WithRendererOptions(
+	// A lower number registers later and wins over goldmark's own
+	// renderer (priority 1000) for the kinds it names.
+	renderer.WithNodeRenderers(util.Prioritized(notesRenderer{}, 100)),
+))
+
+// notesRenderer renders the notes' images and links so that a report
+// opened anywhere fetches nothing, not even on a click: an image is drawn
+// only from a data: URL of a kind goldmark calls safe (PNG, GIF, JPEG,
+// WebP); any other image is its alt text and its address as text, with a
+// note. A link stays a
+// link only within the page (#...); any other link, autolinks included,
+// is its text and its address as text (titles are left out). The address
+// is shown as written, so that a reader can still see and copy it.
+type notesRenderer struct{}
+
+func (notesRenderer) RegisterFuncs(r renderer.NodeRendererFuncRegisterer) {
+	r.Register(ast.KindImage, renderNotesImage)
+	r.Register(ast.KindLink, renderNotesLink)
+	r.Register(ast.KindAutoLink, renderNotesAutoLink)
+}
+
+func renderNotesImage(w util.BufWriter, source []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	if !entering {
+		return ast.WalkContinue, nil
+	}
+	n := node.(*ast.Image)
+	alt := plainText(source, n)
+	dest := util.URLEscape(n.Destination, true)
+	if hasPrefixFold(dest, "data:") && !html.IsDangerousURL(dest) {
+		_, _ = w.WriteString(`<img src="`)
+		_, _ = w.Write(util.EscapeHTML(dest))
+		_, _ = w.WriteString(`" alt="`)
+		_, _ = w.Write(util.EscapeHTML(alt))
+		_, _ = w.WriteString(`">`)
+		return ast.WalkSkipChildren, nil
+	}
+	_, _ = w.WriteString(`<span class="remote-image">`)
+	if len(alt) > 0 {
+		_, _ = w.Write(util.EscapeHTML(alt))
+		_ = w.WriteByte(' ')
+	}
+	writeAddress(w, n.Destination)
+	if hasPrefixFold(dest, "data:") {
+		_, _ = w.WriteString(` <span class="hint">(image not shown: only PNG, GIF, JPEG and WebP data are)</span></span>`)
+	} else {
+		_, _ = w.WriteString(` <span class="hint">(remote image not loaded)</span></span>`)
+	}
+	return ast.WalkSkipChildren, nil
+}
+
+func renderNotesLink(w util.BufWriter, source []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	n := node.(*ast.Link)
+	inPage := len(n.Destination) > 0 && n.Destination[0] == '#'
+	switch {
+	case inPage && entering:
+		_, _ = w.WriteString(`<a href="`)
+		_, _ = w.Write(util.EscapeHTML(util.URLEscape(n.Destination, true)))
+		_, _ = w.WriteString(`">`)
+	case inPage:
+		_, _ = w.WriteString("</a>")
+	case entering:
+		_, _ = w.WriteString(`<span class="remote-link">`)
+	default:
+		if len(n.Destination) > 0 {
+			_ = w.WriteByte(' ')
+			writeAddress(w, n.Destination)
+			_, _ = w.WriteString(` <span class="hint">(link not followed)</span>`)
+		}
+		_, _ = w.WriteString("</span>")
+	}
+	return ast.WalkContinue, nil
+}
+
+func renderNotesAutoLink(w util.BufWriter, source []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	if !entering {
+		return ast.WalkContinue, nil
+	}
+	n := node.(*ast.AutoLink)
+	_, _ = w.WriteString(`<span class="remote-link">`)
+	writeAddress(w, n.Label(source))
+	_, _ = w.WriteString(`</span>`)
+	return ast.WalkSkipChildren, nil
+}
+
+// writeAddress writes an address of the notes as a code span.
+func writeAddress(w util.BufWriter, addr []byte) {
+	_, _ = w.WriteString("<code>")
+	_, _ = w.Write(util.EscapeHTML(addr))
+	_, _ = w.WriteString("</code>")
+}
+
+// plainText is the text of a node's inlines without their markup (an
+// image's alt text).
+func plainText(source []byte, n ast.Node) []byte {
+	var b []byte
+	for c := n.FirstChild(); c != nil; c = c.NextSibling() {
+		switch c := c.(type) {
+		case *ast.Text:
+			b = append(b, c.Value(source)...)
+			if c.SoftLineBreak() || c.HardLineBreak() {
+				b = append(b, ' ')
+			}
+		case *ast.String:
+			b = append(b, c.Value...)
+		default:
+			b = append(b, plainText(source, c)...)
+		}
+	}
+	return b
+}
+
+func hasPrefixFold(b []byte, prefix string) bool {
+	return len(b) >= len(prefix) && strings.EqualFold(string(b[:len(prefix)]), prefix)
 }
 
 // dataURLAttr is the attribute href="data:MIME,..." linking to data.
