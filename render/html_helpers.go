@@ -2,6 +2,8 @@ package render
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/base64"
 	"encoding/json"
 	"fmt"
 	"html/template"
@@ -27,7 +29,12 @@ import (
 // value from the results reaches the page through html/template's
 // contextual escaping; the only values marked safe are the ones built here
 // (chart options marshalled as JSON, the CSV data URL, Markdown rendered
-// with raw HTML off).
+// with raw HTML off, the page's policy).
+//
+// Every page carries a Content-Security-Policy (pagePolicy) that forbids
+// every load from outside the page: a page opened from a site on a file
+// share or a web server cannot fetch anything, even where a value from
+// the results made its way into an address.
 
 var (
 	pagesOnce sync.Once
@@ -35,6 +42,7 @@ var (
 	pagesErr  error
 	assets    struct {
 		css, js, lib []byte
+		policy       string
 	}
 )
 
@@ -69,20 +77,47 @@ func loadPages() (*template.Template, error) {
 			}
 			*a.dst = b
 		}
+		assets.policy = pagePolicy(assets.lib, assets.js)
 		pages = t
 	})
 	return pages, pagesErr
 }
 
-// pageAssets is what every page inlines.
+// pageAssets is what every page inlines, and the page's policy as the
+// attribute content="..." of its <meta http-equiv="Content-Security-Policy">.
 type pageAssets struct {
-	CSS template.CSS
-	JS  template.JS
-	Lib template.JS
+	CSS    template.CSS
+	JS     template.JS
+	Lib    template.JS
+	Policy template.HTMLAttr
 }
 
 func inlineAssets() pageAssets {
-	return pageAssets{CSS: template.CSS(assets.css), JS: template.JS(assets.js), Lib: template.JS(assets.lib)}
+	return pageAssets{CSS: template.CSS(assets.css), JS: template.JS(assets.js), Lib: template.JS(assets.lib),
+		Policy: template.HTMLAttr(`content="` + assets.policy + `"`)}
+}
+
+// pagePolicy is the Content-Security-Policy of every page: nothing from
+// outside the page, by any means (default-src 'none', and the directives
+// that do not fall back to it: form-action, base-uri). What the page does
+// itself stays allowed: its inline scripts, named by their SHA-256 so that
+// no other script can run (scripts are their texts exactly as the page
+// carries them); inline styles (the style sheet, ECharts' tooltips and the
+// charts' heights); images and fonts from data: URLs.
+// The CSV download is a data: URL too: a download is not a load the policy
+// governs. The result has no double quote, so it sits in an attribute as
+// it is.
+func pagePolicy(scripts ...[]byte) string {
+	var b strings.Builder
+	b.WriteString("default-src 'none'; script-src")
+	for _, s := range scripts {
+		sum := sha256.Sum256(s)
+		b.WriteString(" 'sha256-")
+		b.WriteString(base64.StdEncoding.EncodeToString(sum[:]))
+		b.WriteString("'")
+	}
+	b.WriteString("; style-src 'unsafe-inline'; img-src data:; font-src data:; connect-src 'none'; form-action 'none'; base-uri 'none'")
+	return b.String()
 }
 
 func execute(name string, data any) ([]byte, error) {
@@ -260,11 +295,11 @@ var notesMarkdown = goldmark.New(goldmark.WithRendererOptions(
 // notesRenderer renders the notes' images and links so that a report
 // opened anywhere fetches nothing, not even on a click: an image is drawn
 // only from a data: URL of a kind goldmark calls safe (PNG, GIF, JPEG,
-// WebP); any other image is its alt text and its address as text, with a
-// note. A link stays a
-// link only within the page (#...); any other link, autolinks included,
-// is its text and its address as text (titles are left out). The address
-// is shown as written, so that a reader can still see and copy it.
+// WebP), which the page's policy lets load too; any other image is its alt
+// text and its address as text, with a note. A link stays a link only
+// within the page (#...); any other link, autolinks included, is its text
+// and its address as text (titles are left out). The address is shown as
+// written, so that a reader can still see and copy it.
 type notesRenderer struct{}
 
 func (notesRenderer) RegisterFuncs(r renderer.NodeRendererFuncRegisterer) {

@@ -2,6 +2,8 @@ package render
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/base64"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -563,6 +565,55 @@ func TestElementChartAxesAreElementNumbers(t *testing.T) {
 	for _, want := range []string{`"data":["5","6","7"]`, `"data":["1","2"]`, `"firstRow":1`, `"firstCol":5`} {
 		if !strings.Contains(opt, want) {
 			t.Errorf("heat map options lack %s:\n%.600s", want, opt)
+		}
+	}
+}
+
+// Every page carries its Content-Security-Policy first thing after the
+// character set, before anything it could govern, and the policy allows
+// exactly the page's own inline scripts (by SHA-256 of their text, as CSP
+// Level 3 hashes a script element's text) and no load from anywhere.
+func TestPagePolicy(t *testing.T) {
+	metaRe := regexp.MustCompile(`^<!DOCTYPE html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n<meta http-equiv="Content-Security-Policy" content="([^"]*)">\n`)
+	scriptRe := regexp.MustCompile(`(?s)<script([^>]*)>(.*?)</script>`)
+	for _, page := range []struct {
+		name string
+		html []byte
+	}{{"report", mustReport(t, fixtureUnit(t, 16, 801))}, {"index", mustIndex(t, fixtureFleet(t))}} {
+		m := metaRe.FindSubmatch(page.html)
+		if m == nil {
+			t.Errorf("%s: the head does not start with the charset and the policy: %q", page.name, page.html[:min(300, len(page.html))])
+			continue
+		}
+		policy := string(m[1])
+		var hashes []string
+		for _, s := range scriptRe.FindAllSubmatch(page.html, -1) {
+			if strings.Contains(string(s[1]), `type="application/json"`) {
+				continue // data, not run
+			}
+			if len(s[1]) != 0 {
+				t.Errorf("%s: a script with attributes %q", page.name, s[1])
+			}
+			sum := sha256.Sum256(s[2])
+			hashes = append(hashes, "'sha256-"+base64.StdEncoding.EncodeToString(sum[:])+"'")
+		}
+		if len(hashes) != 2 {
+			t.Errorf("%s: %d inline scripts, want 2 (the chart library and page.js)", page.name, len(hashes))
+		}
+		want := "default-src 'none'; script-src " + strings.Join(hashes, " ") +
+			"; style-src 'unsafe-inline'; img-src data:; font-src data:; connect-src 'none'; form-action 'none'; base-uri 'none'"
+		if policy != want {
+			t.Errorf("%s: policy\n%s\nwant\n%s", page.name, policy, want)
+		}
+		if n := bytes.Count(page.html, []byte("Content-Security-Policy")); n != 1 {
+			t.Errorf("%s: %d policies, want 1", page.name, n)
+		}
+	}
+	// The hashes are those of the assets as embedded.
+	for _, a := range [][]byte{assets.lib, assets.js} {
+		sum := sha256.Sum256(a)
+		if h := "'sha256-" + base64.StdEncoding.EncodeToString(sum[:]) + "'"; !strings.Contains(assets.policy, h) {
+			t.Errorf("the policy lacks the hash %s of an asset", h)
 		}
 	}
 }
