@@ -539,6 +539,13 @@ func TestBrowserNotesLoadNothing(t *testing.T) {
 	if len(got.Backdrops) != 0 {
 		t.Errorf("elements have background images %q, want none", got.Backdrops)
 	}
+	if dir := os.Getenv("GTPACK_SCREENSHOTS"); dir != "" {
+		png, err := chromedp.Run(ctx, chromedp.Screenshot(chromedp.ID("notes")))
+		if err != nil {
+			t.Fatalf("screenshot of the notes: %v", err)
+		}
+		_ = os.WriteFile(filepath.Join(dir, "report-notes.png"), png, 0o644)
+	}
 }
 
 // The page's policy stops every load, should markup ever reach the page
