@@ -4,16 +4,21 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"net/http"
+	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"sync"
 	"testing"
 	"time"
 
+	cdpbrowser "github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/cdproto/emulation"
 	cdplog "github.com/chromedp/cdproto/log"
 	"github.com/chromedp/cdproto/network"
+	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
 )
@@ -51,6 +56,12 @@ func browser(t *testing.T) context.Context {
 	t.Cleanup(cancelAlloc)
 	bctx, cancelBrowser := chromedp.NewContext(actx)
 	t.Cleanup(cancelBrowser)
+	// Start the browser now, so that every page opened later is a tab of
+	// this one (a first run on a tab's context would start a browser of
+	// its own, on the same profile).
+	if err := chromedp.Do(bctx); err != nil {
+		t.Fatalf("starting chromium: %v", err)
+	}
 	return bctx
 }
 
@@ -109,10 +120,27 @@ func openPage(t *testing.T, bctx context.Context, path string) (context.Context,
 	if err != nil {
 		t.Fatalf("listening to the tab: %v", err)
 	}
+	if _, err := chromedp.Call(ctx, page.AddScriptToEvaluateOnNewDocument, page.AddScriptToEvaluateOnNewDocumentParams{Source: policyRecorderJS}); err != nil {
+		t.Fatalf("adding the policy recorder: %v", err)
+	}
 	if err := chromedp.Do(ctx, chromedp.Navigate("file://"+path)); err != nil {
 		t.Fatalf("opening %s: %v", path, err)
 	}
 	return ctx, pl
+}
+
+// policyRecorderJS runs before the page's own scripts (DevTools adds it to
+// every new document, outside the page's policy) and keeps every
+// Content-Security-Policy violation the page reports.
+const policyRecorderJS = `window.__policyViolations = [];
+document.addEventListener('securitypolicyviolation', function (e) {
+  window.__policyViolations.push(e.violatedDirective + ' ' + e.blockedURI);
+});`
+
+// policyViolations is what the page's policy refused so far.
+func policyViolations(t *testing.T, ctx context.Context) []string {
+	t.Helper()
+	return eval[[]string](t, ctx, `window.__policyViolations || ['the policy recorder did not run']`)
 }
 
 func eval[T any](t *testing.T, ctx context.Context, expr string) T {
@@ -143,8 +171,9 @@ const chartsJS = `Array.from(document.querySelectorAll('div.chart')).map(functio
 })`
 
 // checkPage asserts what every page must satisfy: no request leaves for the
-// network, no error on the console, every chart drawn, and none of the
-// planted payloads ran.
+// network, no error on the console, nothing refused by the page's policy
+// (so the policy lets the page's own scripts and styles work), every chart
+// drawn, and none of the planted payloads ran.
 func checkPage(t *testing.T, ctx context.Context, pl *pageLog, wantCharts []string) {
 	t.Helper()
 	drawn := eval[[]drawnChart](t, ctx, chartsJS)
@@ -168,6 +197,12 @@ func checkPage(t *testing.T, ctx context.Context, pl *pageLog, wantCharts []stri
 	}
 	if pwned := eval[string](t, ctx, `typeof window.__pwned`); pwned != "undefined" {
 		t.Errorf("a planted payload ran: window.__pwned is %s", pwned)
+	}
+	for _, v := range policyViolations(t, ctx) {
+		t.Errorf("the page's policy refused %s", v)
+	}
+	if p := eval[string](t, ctx, `(document.querySelector('head > meta[http-equiv="Content-Security-Policy"]') || {}).content || ''`); !strings.HasPrefix(p, "default-src 'none';") {
+		t.Errorf("the page's policy is %q, want one that starts with default-src 'none'", p)
 	}
 	reqs, errs := pl.snapshot()
 	if len(reqs) == 0 {
@@ -201,7 +236,8 @@ func shot(t *testing.T, ctx context.Context, name string) {
 func TestBrowserReport(t *testing.T) {
 	bctx := browser(t)
 	dir := t.TempDir()
-	html, err := Report(fixtureUnit(t, 16, 801))
+	u := fixtureUnit(t, 16, 801)
+	html, err := Report(u)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -210,7 +246,7 @@ func TestBrowserReport(t *testing.T) {
 		t.Fatal(err)
 	}
 	ctx, pl := openPage(t, bctx, path)
-	checkPage(t, ctx, pl, []string{"chart-gt", "chart-gain", "chart-noise", "chart-range", "chart-scan", "chart-elements"})
+	checkPage(t, ctx, pl, reportCharts)
 
 	// The G/T chart starts on the beam of the worst limit (b00 in the
 	// fixture) and follows the focus selector.
@@ -255,6 +291,15 @@ func TestBrowserReport(t *testing.T) {
 	link := eval[string](t, ctx, `(function () { var a = document.getElementById('csv-link'); return a.getAttribute('download') + '|' + decodeURIComponent(a.getAttribute('href')).slice(0, 60); })()`)
 	if !strings.HasPrefix(link, "KP16-_script_window.__pwned_1__script_00017-per-frequency.csv|data:text/csv;charset=utf-8,frequency_hz,range_loss_db,") {
 		t.Errorf("download link: %q", link)
+	}
+
+	// The link downloads the CSV under the page's policy (a download is
+	// not a load that default-src governs; the browser saves the bytes).
+	if got := downloadCSV(t, ctx); !bytes.Equal(got, UnitCSV(u)) {
+		t.Errorf("the downloaded CSV (%d bytes) differs from UnitCSV (%d bytes)", len(got), len(UnitCSV(u)))
+	}
+	for _, v := range policyViolations(t, ctx) {
+		t.Errorf("the page's policy refused %s after the download", v)
 	}
 
 	shot(t, ctx, "report.png")
@@ -326,5 +371,224 @@ func TestBrowserIndex(t *testing.T) {
 	_, errs := pl.snapshot()
 	for _, e := range errs {
 		t.Errorf("browser reported an error after interaction: %s", e)
+	}
+}
+
+// downloadCSV clicks the report's download link and returns the bytes the
+// browser saved.
+func downloadCSV(t *testing.T, ctx context.Context) []byte {
+	t.Helper()
+	dir := t.TempDir()
+	done := make(chan string, 1)
+	if err := chromedp.ListenBrowser(ctx, func(ev any) {
+		if e, ok := ev.(*cdpbrowser.EventDownloadProgress); ok && e.State == cdpbrowser.DownloadProgressStateCompleted {
+			select {
+			case done <- e.GUID:
+			default:
+			}
+		}
+	}); err != nil {
+		t.Fatal(err)
+	}
+	events := true
+	if _, err := chromedp.CallBrowser(ctx, cdpbrowser.SetDownloadBehavior, cdpbrowser.SetDownloadBehaviorParams{
+		Behavior: cdpbrowser.SetDownloadBehaviorBehaviorAllowAndName, DownloadPath: dir, EventsEnabled: &events,
+	}); err != nil {
+		t.Fatalf("allowing downloads: %v", err)
+	}
+	eval[chromedp.Void](t, ctx, `document.getElementById('csv-link').click()`)
+	select {
+	case guid := <-done:
+		b, err := os.ReadFile(filepath.Join(dir, guid))
+		if err != nil {
+			t.Fatalf("the download: %v", err)
+		}
+		return b
+	case <-time.After(30 * time.Second):
+		t.Fatal("clicking the download link saved no file within 30 s")
+	}
+	return nil
+}
+
+// trap is an HTTP server on the loopback address that records every
+// request: a page that loads anything from it has fetched from outside.
+type trap struct {
+	*httptest.Server
+	mu    sync.Mutex
+	paths []string
+}
+
+func newTrap(t *testing.T) *trap {
+	t.Helper()
+	tr := &trap{}
+	tr.Server = httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		tr.mu.Lock()
+		tr.paths = append(tr.paths, r.URL.Path)
+		tr.mu.Unlock()
+		w.WriteHeader(http.StatusNoContent)
+	}))
+	t.Cleanup(tr.Close)
+	return tr
+}
+
+func (tr *trap) seen() []string {
+	tr.mu.Lock()
+	defer tr.mu.Unlock()
+	return append([]string(nil), tr.paths...)
+}
+
+// waitSeen waits up to d for the trap to see path.
+func (tr *trap) waitSeen(path string, d time.Duration) bool {
+	for end := time.Now().Add(d); time.Now().Before(end); time.Sleep(50 * time.Millisecond) {
+		if slices.Contains(tr.seen(), path) {
+			return true
+		}
+	}
+	return false
+}
+
+// writePage writes a page into a fresh folder and returns its path.
+func writePage(t *testing.T, name string, html []byte) string {
+	t.Helper()
+	path := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(path, html, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// trapControl opens a page without a policy that loads an image from the
+// trap, and fails unless the trap sees it: the browser can reach the trap
+// from a file: page, so a trap that sees nothing later means something.
+func trapControl(t *testing.T, bctx context.Context, tr *trap) {
+	t.Helper()
+	path := writePage(t, "control.html", []byte(`<!DOCTYPE html><html><head><meta charset="utf-8"><title>control</title></head><body><img src="`+tr.URL+`/control.png"></body></html>`))
+	openPage(t, bctx, path)
+	if !tr.waitSeen("/control.png", 10*time.Second) {
+		t.Fatalf("the control page's image never reached the trap (saw %q): the test cannot tell a page that fetches from one that does not", tr.seen())
+	}
+}
+
+// reportCharts are the charts of the report of fixtureUnit(t, 16, 801).
+var reportCharts = []string{"chart-gt", "chart-gain", "chart-noise", "chart-range", "chart-scan", "chart-elements"}
+
+// Remote images and links in the notes, pointing at a server of the test,
+// are shown as text and fetch nothing; raw HTML with a CSS url() or an
+// image is left out.
+func TestBrowserNotesLoadNothing(t *testing.T) {
+	bctx := browser(t)
+	tr := newTrap(t)
+	trapControl(t, bctx, tr)
+	u := fixtureUnit(t, 16, 801)
+	u.Notes = "Photo of the set-up: ![the horn on the mast](" + tr.URL + "/notes-image.png)\n\n" +
+		"See [the procedure](" + tr.URL + "/notes-link) and <" + tr.URL + "/notes-autolink>, or [the limits](#limits).\n\n" +
+		"<div style=\"background-image: url(" + tr.URL + "/notes-css.png); height: 20px\">styled</div>\n\n" +
+		"<img src=\"" + tr.URL + "/notes-raw.png\">\n"
+	html, err := Report(u)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, pl := openPage(t, bctx, writePage(t, "report.html", html))
+	checkPage(t, ctx, pl, reportCharts)
+	// Whatever the page would load is asked for while it loads; give a
+	// late request a moment all the same.
+	time.Sleep(500 * time.Millisecond)
+	if got := tr.seen(); !slices.Equal(got, []string{"/control.png"}) {
+		t.Errorf("the trap saw %q after the report was opened, want only the control page's /control.png", got)
+	}
+	type notesState struct {
+		Text      string   `json:"text"`
+		HTML      string   `json:"html"`
+		Images    []string `json:"images"`
+		Links     []string `json:"links"`
+		Backdrops []string `json:"backdrops"`
+	}
+	got := eval[notesState](t, ctx, `(function () {
+  var n = document.getElementById('notes');
+  var all = Array.from(document.querySelectorAll('*'));
+  return {
+    text: n.textContent, html: n.innerHTML,
+    images: Array.from(document.images).map(function (i) { return i.src; }),
+    links: Array.from(document.querySelectorAll('a[href]')).map(function (a) { return a.getAttribute('href').slice(0, 20); }),
+    backdrops: all.map(function (e) { return getComputedStyle(e).backgroundImage; }).filter(function (b) { return b !== 'none'; })
+  };
+})()`)
+	for _, want := range []string{
+		"the horn on the mast " + tr.URL + "/notes-image.png (remote image not loaded)",
+		"the procedure " + tr.URL + "/notes-link (link not followed)",
+		tr.URL + "/notes-autolink",
+		"the limits",
+	} {
+		if !strings.Contains(got.Text, want) {
+			t.Errorf("the notes lack the text %q: %q", want, got.Text)
+		}
+	}
+	for _, gone := range []string{"notes-css", "notes-raw", "styled"} {
+		if strings.Contains(got.HTML, gone) {
+			t.Errorf("the notes carry %q: %s", gone, got.HTML)
+		}
+	}
+	if len(got.Images) != 0 {
+		t.Errorf("the page has images %q, want none", got.Images)
+	}
+	for _, h := range got.Links {
+		if !strings.HasPrefix(h, "#") && !strings.HasPrefix(h, "data:") {
+			t.Errorf("the page links to %q: only #... and the data: download are allowed", h)
+		}
+	}
+	if len(got.Backdrops) != 0 {
+		t.Errorf("elements have background images %q, want none", got.Backdrops)
+	}
+	if dir := os.Getenv("GTPACK_SCREENSHOTS"); dir != "" {
+		png, err := chromedp.Run(ctx, chromedp.Screenshot(chromedp.ID("notes")))
+		if err != nil {
+			t.Fatalf("screenshot of the notes: %v", err)
+		}
+		_ = os.WriteFile(filepath.Join(dir, "report-notes.png"), png, 0o644)
+	}
+}
+
+// The page's policy stops every load, should markup ever reach the page
+// past the escaping: the report with an image, a style sheet, a CSS url(),
+// a frame and a script added to it loads nothing from the trap, runs
+// nothing, and still draws its charts. The refusals are reported, which
+// also shows that the check for refusals in checkPage sees them.
+func TestBrowserPolicyBlocks(t *testing.T) {
+	bctx := browser(t)
+	tr := newTrap(t)
+	trapControl(t, bctx, tr)
+	html, err := Report(fixtureUnit(t, 16, 801))
+	if err != nil {
+		t.Fatal(err)
+	}
+	planted := `<img src="` + tr.URL + `/planted.png"><link rel="stylesheet" href="` + tr.URL + `/planted.css">` +
+		`<div style="width: 20px; height: 20px; background-image: url(` + tr.URL + `/planted-bg.png)"></div>` +
+		`<iframe src="` + tr.URL + `/planted-frame"></iframe><script>window.__pwned = 6;</script></body>`
+	html = bytes.Replace(html, []byte("</body>"), []byte(planted), 1)
+	ctx, pl := openPage(t, bctx, writePage(t, "report.html", html))
+	eval[chromedp.Void](t, ctx, `fetch('`+tr.URL+`/planted-fetch').catch(function () {})`)
+	time.Sleep(500 * time.Millisecond)
+	if got := tr.seen(); !slices.Equal(got, []string{"/control.png"}) {
+		t.Errorf("the trap saw %q after the report was opened, want only the control page's /control.png", got)
+	}
+	if pwned := eval[string](t, ctx, `typeof window.__pwned`); pwned != "undefined" {
+		t.Errorf("the planted script ran: window.__pwned is %s", pwned)
+	}
+	drawn := eval[[]drawnChart](t, ctx, chartsJS)
+	if len(drawn) != len(reportCharts) {
+		t.Errorf("%d charts drawn, want %d", len(drawn), len(reportCharts))
+	}
+	refused := strings.Join(policyViolations(t, ctx), "\n")
+	for _, want := range []string{"img-src " + tr.URL + "/planted-bg.png", "img-src " + tr.URL + "/planted.png",
+		"style-src-elem " + tr.URL + "/planted.css",
+		"frame-src " + tr.URL, // a frame's refusal names the origin only
+		"script-src-elem inline", "connect-src " + tr.URL + "/planted-fetch"} {
+		if !strings.Contains(refused, want) {
+			t.Errorf("the policy did not report refusing %q; it reported:\n%s", want, refused)
+		}
+	}
+	_, errs := pl.snapshot()
+	if !slices.ContainsFunc(errs, func(e string) bool { return strings.Contains(e, "Content Security Policy") }) {
+		t.Errorf("no refusal reached the console log (%q): checkPage's error check would miss one", errs)
 	}
 }

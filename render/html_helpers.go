@@ -2,6 +2,8 @@ package render
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/base64"
 	"encoding/json"
 	"fmt"
 	"html/template"
@@ -12,6 +14,10 @@ import (
 	"sync"
 
 	"github.com/yuin/goldmark"
+	"github.com/yuin/goldmark/ast"
+	"github.com/yuin/goldmark/renderer"
+	"github.com/yuin/goldmark/renderer/html"
+	"github.com/yuin/goldmark/util"
 
 	"gtpack.example/gtpack/reduce"
 	"gtpack.example/gtpack/templates"
@@ -23,7 +29,12 @@ import (
 // value from the results reaches the page through html/template's
 // contextual escaping; the only values marked safe are the ones built here
 // (chart options marshalled as JSON, the CSV data URL, Markdown rendered
-// with raw HTML off).
+// with raw HTML off, the page's policy).
+//
+// Every page carries a Content-Security-Policy (pagePolicy) that forbids
+// every load from outside the page: a page opened from a site on a file
+// share or a web server cannot fetch anything, even where a value from
+// the results made its way into an address.
 
 var (
 	pagesOnce sync.Once
@@ -31,6 +42,7 @@ var (
 	pagesErr  error
 	assets    struct {
 		css, js, lib []byte
+		policy       string
 	}
 )
 
@@ -65,20 +77,47 @@ func loadPages() (*template.Template, error) {
 			}
 			*a.dst = b
 		}
+		assets.policy = pagePolicy(assets.lib, assets.js)
 		pages = t
 	})
 	return pages, pagesErr
 }
 
-// pageAssets is what every page inlines.
+// pageAssets is what every page inlines, and the page's policy as the
+// attribute content="..." of its <meta http-equiv="Content-Security-Policy">.
 type pageAssets struct {
-	CSS template.CSS
-	JS  template.JS
-	Lib template.JS
+	CSS    template.CSS
+	JS     template.JS
+	Lib    template.JS
+	Policy template.HTMLAttr
 }
 
 func inlineAssets() pageAssets {
-	return pageAssets{CSS: template.CSS(assets.css), JS: template.JS(assets.js), Lib: template.JS(assets.lib)}
+	return pageAssets{CSS: template.CSS(assets.css), JS: template.JS(assets.js), Lib: template.JS(assets.lib),
+		Policy: template.HTMLAttr(`content="` + assets.policy + `"`)}
+}
+
+// pagePolicy is the Content-Security-Policy of every page: nothing from
+// outside the page, by any means (default-src 'none', and the directives
+// that do not fall back to it: form-action, base-uri). What the page does
+// itself stays allowed: its inline scripts, named by their SHA-256 so that
+// no other script can run (scripts are their texts exactly as the page
+// carries them); inline styles (the style sheet, ECharts' tooltips and the
+// charts' heights); images and fonts from data: URLs.
+// The CSV download is a data: URL too: a download is not a load the policy
+// governs. The result has no double quote, so it sits in an attribute as
+// it is.
+func pagePolicy(scripts ...[]byte) string {
+	var b strings.Builder
+	b.WriteString("default-src 'none'; script-src")
+	for _, s := range scripts {
+		sum := sha256.Sum256(s)
+		b.WriteString(" 'sha256-")
+		b.WriteString(base64.StdEncoding.EncodeToString(sum[:]))
+		b.WriteString("'")
+	}
+	b.WriteString("; style-src 'unsafe-inline'; img-src data:; font-src data:; connect-src 'none'; form-action 'none'; base-uri 'none'")
+	return b.String()
 }
 
 func execute(name string, data any) ([]byte, error) {
@@ -235,16 +274,132 @@ type countRow struct {
 	N       int
 }
 
-// markdown renders notes with goldmark's defaults: raw HTML is left out
-// (replaced by a comment) and links or images whose destination is a
-// dangerous URL (javascript:, vbscript:, file:, data: other than images)
-// get an empty destination, so nothing in the notes can run.
+// markdown renders notes with goldmark. Its defaults leave raw HTML out
+// (replaced by a comment), so nothing in the notes can run or carry a
+// style. notesRenderer adds that the notes load and link nothing outside
+// the page.
 func markdown(src string) (template.HTML, error) {
 	var buf bytes.Buffer
-	if err := goldmark.New().Convert([]byte(src), &buf); err != nil {
+	if err := notesMarkdown.Convert([]byte(src), &buf); err != nil {
 		return "", fmt.Errorf("render: notes: %w", err)
 	}
 	return template.HTML(buf.String()), nil
+}
+
+var notesMarkdown = goldmark.New(goldmark.WithRendererOptions(
+	// A lower number registers later and wins over goldmark's own
+	// renderer (priority 1000) for the kinds it names.
+	renderer.WithNodeRenderers(util.Prioritized(notesRenderer{}, 100)),
+))
+
+// notesRenderer renders the notes' images and links so that a report
+// opened anywhere fetches nothing, not even on a click: an image is drawn
+// only from a data: URL of a kind goldmark calls safe (PNG, GIF, JPEG,
+// WebP), which the page's policy lets load too; any other image is its alt
+// text and its address as text, with a note. A link stays a link only
+// within the page (#...); any other link, autolinks included, is its text
+// and its address as text (titles are left out). The address is shown as
+// written, so that a reader can still see and copy it.
+type notesRenderer struct{}
+
+func (notesRenderer) RegisterFuncs(r renderer.NodeRendererFuncRegisterer) {
+	r.Register(ast.KindImage, renderNotesImage)
+	r.Register(ast.KindLink, renderNotesLink)
+	r.Register(ast.KindAutoLink, renderNotesAutoLink)
+}
+
+func renderNotesImage(w util.BufWriter, source []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	if !entering {
+		return ast.WalkContinue, nil
+	}
+	n := node.(*ast.Image)
+	alt := plainText(source, n)
+	dest := util.URLEscape(n.Destination, true)
+	if hasPrefixFold(dest, "data:") && !html.IsDangerousURL(dest) {
+		_, _ = w.WriteString(`<img src="`)
+		_, _ = w.Write(util.EscapeHTML(dest))
+		_, _ = w.WriteString(`" alt="`)
+		_, _ = w.Write(util.EscapeHTML(alt))
+		_, _ = w.WriteString(`">`)
+		return ast.WalkSkipChildren, nil
+	}
+	_, _ = w.WriteString(`<span class="remote-image">`)
+	if len(alt) > 0 {
+		_, _ = w.Write(util.EscapeHTML(alt))
+		_ = w.WriteByte(' ')
+	}
+	writeAddress(w, n.Destination)
+	if hasPrefixFold(dest, "data:") {
+		_, _ = w.WriteString(` <span class="hint">(image not shown: only PNG, GIF, JPEG and WebP data are)</span></span>`)
+	} else {
+		_, _ = w.WriteString(` <span class="hint">(remote image not loaded)</span></span>`)
+	}
+	return ast.WalkSkipChildren, nil
+}
+
+func renderNotesLink(w util.BufWriter, source []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	n := node.(*ast.Link)
+	inPage := len(n.Destination) > 0 && n.Destination[0] == '#'
+	switch {
+	case inPage && entering:
+		_, _ = w.WriteString(`<a href="`)
+		_, _ = w.Write(util.EscapeHTML(util.URLEscape(n.Destination, true)))
+		_, _ = w.WriteString(`">`)
+	case inPage:
+		_, _ = w.WriteString("</a>")
+	case entering:
+		_, _ = w.WriteString(`<span class="remote-link">`)
+	default:
+		if len(n.Destination) > 0 {
+			_ = w.WriteByte(' ')
+			writeAddress(w, n.Destination)
+			_, _ = w.WriteString(` <span class="hint">(link not followed)</span>`)
+		}
+		_, _ = w.WriteString("</span>")
+	}
+	return ast.WalkContinue, nil
+}
+
+func renderNotesAutoLink(w util.BufWriter, source []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	if !entering {
+		return ast.WalkContinue, nil
+	}
+	n := node.(*ast.AutoLink)
+	_, _ = w.WriteString(`<span class="remote-link">`)
+	writeAddress(w, n.Label(source))
+	_, _ = w.WriteString(`</span>`)
+	return ast.WalkSkipChildren, nil
+}
+
+// writeAddress writes an address of the notes as a code span.
+func writeAddress(w util.BufWriter, addr []byte) {
+	_, _ = w.WriteString("<code>")
+	_, _ = w.Write(util.EscapeHTML(addr))
+	_, _ = w.WriteString("</code>")
+}
+
+// plainText is the text of a node's inlines without their markup (an
+// image's alt text).
+func plainText(source []byte, n ast.Node) []byte {
+	var b []byte
+	for c := n.FirstChild(); c != nil; c = c.NextSibling() {
+		switch c := c.(type) {
+		case *ast.Text:
+			b = append(b, c.Value(source)...)
+			if c.SoftLineBreak() || c.HardLineBreak() {
+				b = append(b, ' ')
+			}
+		case *ast.String:
+			b = append(b, c.Value...)
+		default:
+			b = append(b, plainText(source, c)...)
+		}
+	}
+	return b
+}
+
+func hasPrefixFold(b []byte, prefix string) bool {
+	return len(b) >= len(prefix) && strings.EqualFold(string(b[:len(prefix)]), prefix)
 }
 
 // dataURLAttr is the attribute href="data:MIME,..." linking to data.

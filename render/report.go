@@ -120,7 +120,7 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	header := make([]string, 0, len(columns)+1)
 	header = append(header, "frequency_hz")
 	for i, c := range columns {
-		header = append(header, c.name)
+		header = append(header, safeCSVText(c.name))
 		if _, dup := cols[c.name]; !dup {
 			cols[c.name] = i + 1
 		}

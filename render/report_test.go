@@ -2,6 +2,8 @@ package render
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/base64"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -73,9 +75,9 @@ func TestReportSize(t *testing.T) {
 
 // TestNoInjection plants script in every free-text field (see the
 // fixture) and checks that no page carries it as markup. html/template
-// escapes text; goldmark drops raw HTML and empties javascript: links
-// (CommonMark leaves raw HTML to the renderer; goldmark's default is to
-// omit it).
+// escapes text; goldmark drops raw HTML (CommonMark leaves raw HTML to the
+// renderer; goldmark's default is to omit it); the notes' links other than
+// in-page ones are text.
 func TestNoInjection(t *testing.T) {
 	report := string(mustReport(t, fixtureUnit(t, 16, 801)))
 	index := string(mustIndex(t, fixtureFleet(t)))
@@ -95,8 +97,8 @@ func TestNoInjection(t *testing.T) {
 		if strings.Contains(page.html, "<script src") || strings.Contains(page.html, "<link") {
 			t.Errorf("%s loads an external resource", page.name)
 		}
-		for _, m := range regexp.MustCompile(`(?i)(?:src|href)="(https?:[^"]*)"`).FindAllStringSubmatch(page.html, -1) {
-			if m[1] != "https://example.org/procedure" { // the notes' own plain link
+		for _, m := range regexp.MustCompile(`(?i)(?:src|href)="([a-z][a-z0-9+.-]*:[^"]*|//[^"]*)"`).FindAllStringSubmatch(page.html, -1) {
+			if !strings.HasPrefix(m[1], "data:") {
 				t.Errorf("%s refers to %s", page.name, m[1])
 			}
 		}
@@ -105,8 +107,8 @@ func TestNoInjection(t *testing.T) {
 	for _, want := range []string{
 		"KP16-&lt;script&gt;window.__pwned=1&lt;/script&gt;00017",
 		"AB&lt;img src=x onerror=&#34;window.__pwned=2&#34;&gt;",
-		`<a href="">click me</a>`,
-		`<a href="https://example.org/procedure">a safe link</a>`,
+		`click me <code>javascript:window.__pwned=5</code> <span class="hint">(link not followed)</span>`,
+		`a safe link <code>https://example.org/procedure</code> <span class="hint">(link not followed)</span>`,
 		"<li>cable <code>W12</code> re-torqued</li>",
 	} {
 		if !strings.Contains(report, want) {
@@ -115,17 +117,37 @@ func TestNoInjection(t *testing.T) {
 	}
 }
 
+// The notes load nothing and link nowhere outside the page: an image is
+// drawn only from a data: URL of a safe kind, a link works only within
+// the page; anything else is shown as text with its address.
 func TestMarkdownNotes(t *testing.T) {
+	const notLoaded = ` <span class="hint">(remote image not loaded)</span></span>`
+	const notFollowed = ` <span class="hint">(link not followed)</span></span>`
 	tests := []struct {
 		src, want, not string
 	}{
 		{"*a*", "<p><em>a</em></p>", ""},
 		{"<script>x()</script>", "<!-- raw HTML omitted -->", "<script>"},
-		{"[x](javascript:alert(1))", `<a href="">x</a>`, "javascript:"},
-		{"[x](JaVaScRiPt:alert(1))", `<a href="">x</a>`, "alert"},
-		{"![i](javascript:alert(1))", `<img src="" alt="i">`, "javascript:"},
+		{`<div style="background:url(http://x/y.png)">z</div>`, "<!-- raw HTML omitted -->", "style="},
+		{`<img src="http://x/y.png">`, "<!-- raw HTML omitted -->", "<img"},
+		{"[x](javascript:alert(1))", `<span class="remote-link">x <code>javascript:alert(1)</code>` + notFollowed, "href"},
+		{"[x](JaVaScRiPt:alert(1))", `<span class="remote-link">x <code>JaVaScRiPt:alert(1)</code>` + notFollowed, "href"},
+		{"![i](javascript:alert(1))", `<span class="remote-image">i <code>javascript:alert(1)</code>` + notLoaded, "<img"},
 		{"<a href=\"javascript:x()\">y</a>", "<!-- raw HTML omitted -->y<!-- raw HTML omitted -->", "javascript:"},
-		{"[ok](https://example.org/a?b=1&c=2)", `<a href="https://example.org/a?b=1&amp;c=2">ok</a>`, ""},
+		{"[ok](https://example.org/a?b=1&c=2)", `<span class="remote-link">ok <code>https://example.org/a?b=1&amp;c=2</code>` + notFollowed, "href"},
+		{"[**b** c](http://127.0.0.1:8/x \"t\")", `<span class="remote-link"><strong>b</strong> c <code>http://127.0.0.1:8/x</code>` + notFollowed, "href"},
+		{"[r]\n\n[r]: //host/path", `<span class="remote-link">r <code>//host/path</code>` + notFollowed, "href"},
+		{"[u](../index.html)", `<span class="remote-link">u <code>../index.html</code>` + notFollowed, "href"},
+		{"<https://example.org/x>", `<span class="remote-link"><code>https://example.org/x</code></span>`, "href"},
+		{"<someone@example.org>", `<span class="remote-link"><code>someone@example.org</code></span>`, "href"},
+		{"[limits](#limits)", `<a href="#limits">limits</a>`, ""},
+		{"![horn *S/N 42*](http://127.0.0.1:8/horn.jpg)", `<span class="remote-image">horn S/N 42 <code>http://127.0.0.1:8/horn.jpg</code>` + notLoaded, "<img"},
+		{"![](HTTPS://x/y.png)", `<span class="remote-image"><code>HTTPS://x/y.png</code>` + notLoaded, "<img"},
+		{"![p](photo.png)", `<span class="remote-image">p <code>photo.png</code>` + notLoaded, "<img"},
+		{"![p](file:///etc/x.png)", `<span class="remote-image">p <code>file:///etc/x.png</code>` + notLoaded, "<img"},
+		{"[![i](http://x/i.png)](http://x/)", `<span class="remote-link"><span class="remote-image">i <code>http://x/i.png</code>` + notLoaded + ` <code>http://x/</code>` + notFollowed, "<img"},
+		{"![dot](data:image/png;base64,iVBORw0KGgo=)", `<img src="data:image/png;base64,iVBORw0KGgo=" alt="dot">`, ""},
+		{"![s](data:image/svg+xml;base64,PHN2Zz4=)", `<span class="remote-image">s <code>data:image/svg+xml;base64,PHN2Zz4=</code> <span class="hint">(image not shown: only PNG, GIF, JPEG and WebP data are)</span></span>`, "<img"},
 	}
 	for _, tc := range tests {
 		got, err := markdown(tc.src)
@@ -543,6 +565,55 @@ func TestElementChartAxesAreElementNumbers(t *testing.T) {
 	for _, want := range []string{`"data":["5","6","7"]`, `"data":["1","2"]`, `"firstRow":1`, `"firstCol":5`} {
 		if !strings.Contains(opt, want) {
 			t.Errorf("heat map options lack %s:\n%.600s", want, opt)
+		}
+	}
+}
+
+// Every page carries its Content-Security-Policy first thing after the
+// character set, before anything it could govern, and the policy allows
+// exactly the page's own inline scripts (by SHA-256 of their text, as CSP
+// Level 3 hashes a script element's text) and no load from anywhere.
+func TestPagePolicy(t *testing.T) {
+	metaRe := regexp.MustCompile(`^<!DOCTYPE html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n<meta http-equiv="Content-Security-Policy" content="([^"]*)">\n`)
+	scriptRe := regexp.MustCompile(`(?s)<script([^>]*)>(.*?)</script>`)
+	for _, page := range []struct {
+		name string
+		html []byte
+	}{{"report", mustReport(t, fixtureUnit(t, 16, 801))}, {"index", mustIndex(t, fixtureFleet(t))}} {
+		m := metaRe.FindSubmatch(page.html)
+		if m == nil {
+			t.Errorf("%s: the head does not start with the charset and the policy: %q", page.name, page.html[:min(300, len(page.html))])
+			continue
+		}
+		policy := string(m[1])
+		var hashes []string
+		for _, s := range scriptRe.FindAllSubmatch(page.html, -1) {
+			if strings.Contains(string(s[1]), `type="application/json"`) {
+				continue // data, not run
+			}
+			if len(s[1]) != 0 {
+				t.Errorf("%s: a script with attributes %q", page.name, s[1])
+			}
+			sum := sha256.Sum256(s[2])
+			hashes = append(hashes, "'sha256-"+base64.StdEncoding.EncodeToString(sum[:])+"'")
+		}
+		if len(hashes) != 2 {
+			t.Errorf("%s: %d inline scripts, want 2 (the chart library and page.js)", page.name, len(hashes))
+		}
+		want := "default-src 'none'; script-src " + strings.Join(hashes, " ") +
+			"; style-src 'unsafe-inline'; img-src data:; font-src data:; connect-src 'none'; form-action 'none'; base-uri 'none'"
+		if policy != want {
+			t.Errorf("%s: policy\n%s\nwant\n%s", page.name, policy, want)
+		}
+		if n := bytes.Count(page.html, []byte("Content-Security-Policy")); n != 1 {
+			t.Errorf("%s: %d policies, want 1", page.name, n)
+		}
+	}
+	// The hashes are those of the assets as embedded.
+	for _, a := range [][]byte{assets.lib, assets.js} {
+		sum := sha256.Sum256(a)
+		if h := "'sha256-" + base64.StdEncoding.EncodeToString(sum[:]) + "'"; !strings.Contains(assets.policy, h) {
+			t.Errorf("the policy lacks the hash %s of an asset", h)
 		}
 	}
 }

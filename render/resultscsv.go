@@ -24,8 +24,10 @@ var resultsCSVHeader = []string{
 // order reduce gave them. A unit without limits still has one row, with the
 // limit columns empty. Numbers are the shortest text that reads back to
 // the same float64; frequencies are in GHz to 1 Hz; a non-finite number is
-// an empty field. Text is written as is (no formula escaping): the file is
-// for programs. ResultsCSVWriter writes the same bytes one unit at a time.
+// an empty field. Text fields go through safeCSVText, so that a
+// spreadsheet application opening the file shows a text such as "=1+2" as
+// text and never evaluates it; numbers are written as they are.
+// ResultsCSVWriter writes the same bytes one unit at a time.
 func ResultsCSV(units []reduce.UnitSummary) []byte {
 	order := make([]int, len(units))
 	for i := range order {
@@ -67,15 +69,15 @@ func (r *ResultsCSVWriter) Unit(u *reduce.UnitSummary) error {
 	}
 	r.last = u.Serial
 	r.units++
-	head := []string{u.Serial, u.Product, u.Started, u.Verdict}
+	head := []string{safeCSVText(u.Serial), safeCSVText(u.Product), safeCSVText(u.Started), safeCSVText(u.Verdict)}
 	if len(u.Limits) == 0 {
 		return r.w.Write(append(append(r.row[:0], head...), "", "", "", "", "", "", "", "", "", ""))
 	}
 	for _, l := range u.Limits {
 		row := append(append(r.row[:0], head...),
-			l.Beam, l.Name, l.Quantity, l.Statistic,
+			safeCSVText(l.Beam), safeCSVText(l.Name), safeCSVText(l.Quantity), safeCSVText(l.Statistic),
 			csvFloat(l.WorstMarginDB), csvGHz(l.AtFrequencyHz), csvFloat(l.ValueDB), csvFloat(l.LimitDB),
-			csvFloat(l.ExpandedUncertaintyDB), l.Verdict)
+			csvFloat(l.ExpandedUncertaintyDB), safeCSVText(l.Verdict))
 		if err := r.w.Write(row); err != nil {
 			return err
 		}
@@ -87,6 +89,24 @@ func (r *ResultsCSVWriter) Unit(u *reduce.UnitSummary) error {
 func (r *ResultsCSVWriter) Flush() error {
 	r.w.Flush()
 	return r.w.Error()
+}
+
+// safeCSVText is a text field of a CSV file as a spreadsheet application
+// must show it: as text. A cell that begins with '=', '+', '-', '@', a tab
+// or a carriage return is read as a formula by such applications (OWASP,
+// "CSV Injection"), so such a text gets a single quote in front, which they
+// take as "this is text". A text whose leading single quotes are followed
+// by one of those characters gets one more quote, so that the rule can be
+// undone exactly: a program that wants the original drops one leading
+// quote from a text field whose leading quotes are followed by one of the
+// six. Only text goes through here, never a field formatted from a number:
+// "-1.25" stays a number.
+func safeCSVText(s string) string {
+	rest := strings.TrimLeft(s, "'")
+	if rest != "" && strings.IndexByte("=+-@\t\r", rest[0]) >= 0 {
+		return "'" + s
+	}
+	return s
 }
 
 func csvFloat(f float64) string {
