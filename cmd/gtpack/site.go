@@ -149,6 +149,12 @@ func openSite(dir string, create bool, command string, scope lockScope) (*site, 
 		if err != nil {
 			return nil, siteErr(err)
 		}
+		// A build started beside this one may have made .gtpack between
+		// the two looks: that folder is a site being made, not a
+		// person's.
+		if len(entries) == 1 && entries[0].Name() == stateDir && entries[0].IsDir() {
+			break
+		}
 		if len(entries) > 0 {
 			return nil, &notSiteError{fmt.Sprintf("%s is not empty and is not a gtpack site (it holds %s and has no %s folder); gtpack writes a new site only into a new or empty folder, so that it never overwrites or deletes what it did not write", dir, entries[0].Name(), stateDir)}
 		}
