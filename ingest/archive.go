@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io/fs"
 	"os"
@@ -193,6 +194,9 @@ func open(root string, lean bool) (*Archive, error) {
 		return nil
 	})
 
+	readLab(fsys, a)
+	readApprovals(fsys, a)
+
 	files, unreadable := fsys.runFiles(&a.Problems)
 	var good []checkedRun
 	var refused []*refusal
@@ -319,6 +323,76 @@ func open(root string, lean bool) (*Archive, error) {
 	sort.Slice(a.Units, func(i, j int) bool { return a.Units[i].Serial < a.Units[j].Serial })
 	a.Problems = SortProblems(a.Problems)
 	return a, nil
+}
+
+// readLab reads lab.yaml at the root, when there is one.
+func readLab(fsys *archiveFS, a *Archive) {
+	const rel = "lab.yaml"
+	if _, err := os.Lstat(filepath.Join(fsys.root, rel)); errors.Is(err, fs.ErrNotExist) {
+		return
+	}
+	data, in, p := fsys.read(rel, "", 0)
+	if p != nil {
+		a.Problems = append(a.Problems, p)
+		return
+	}
+	l, err := ParseLab(data, rel)
+	if err != nil {
+		a.Problems = append(a.Problems, Problems(err)...)
+		return
+	}
+	a.Lab = l
+	a.Documents[rel] = in
+}
+
+// readApprovals reads approvals/<serial>/*.yaml. A refused approval is a
+// problem and approves nothing.
+func readApprovals(fsys *archiveFS, a *Archive) {
+	a.Approvals = map[string][]*Approval{}
+	entries, err := os.ReadDir(filepath.Join(fsys.root, "approvals"))
+	if errors.Is(err, fs.ErrNotExist) {
+		return
+	}
+	if err != nil {
+		a.Problems = append(a.Problems, Problemf("approvals", 0, "folder cannot be read (%v)", err))
+		return
+	}
+	for _, e := range entries {
+		name := e.Name()
+		if strings.HasPrefix(name, ".") {
+			continue
+		}
+		if !e.IsDir() {
+			a.Problems = append(a.Problems, Problemf("approvals/"+name, 0, "is not a folder; expected approvals/<serial>/ folders of approval files"))
+			continue
+		}
+		if err := CheckIdentifier(name); err != nil {
+			a.Problems = append(a.Problems, Problemf("approvals/"+name, 0, "folder name: %v", err))
+			continue
+		}
+		for _, rel := range fsys.yamlFiles("approvals/"+name, &a.Problems) {
+			data, in, p := fsys.read(rel, "", 0)
+			if p != nil {
+				a.Problems = append(a.Problems, p)
+				continue
+			}
+			ap, err := ParseApproval(data, rel)
+			if err != nil {
+				a.Problems = append(a.Problems, Problems(err)...)
+				continue
+			}
+			a.Approvals[ap.Serial] = append(a.Approvals[ap.Serial], ap)
+			a.Documents[rel] = in
+		}
+	}
+	for _, list := range a.Approvals {
+		sort.SliceStable(list, func(i, j int) bool {
+			if !list[i].Date.Equal(list[j].Date) {
+				return list[i].Date.Before(list[j].Date)
+			}
+			return list[i].File < list[j].File
+		})
+	}
 }
 
 // checkedRun is a good run and the problems its station, reference and

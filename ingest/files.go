@@ -44,11 +44,16 @@ func RunFiles(a *Archive, r *Run) []string {
 	return out
 }
 
-// RunDocuments lists the YAML documents a run depends on: its run.yaml and
-// the station, reference (with its table file) and spec it names, where
-// discovery accepted them.
+// RunDocuments lists the YAML documents a run depends on: its run.yaml,
+// lab.yaml (the laboratory named in the report) and the station,
+// reference (with its table file) and spec it names, where discovery
+// accepted them. Approvals are not among them: they issue a report of
+// these inputs, and are not inputs of it.
 func RunDocuments(a *Archive, r *Run) []string {
 	docs := []string{r.File}
+	if a.Lab != nil {
+		docs = append(docs, a.Lab.File)
+	}
 	if s := a.Stations[r.Station]; s != nil {
 		docs = append(docs, s.File)
 	}

@@ -205,6 +205,9 @@ type Spec struct {
 	// ElementPhaseRMSToleranceDeg flags a unit whose residual element phase
 	// rms exceeds it (optional).
 	ElementPhaseRMSToleranceDeg *float64
+	// Customer is who the product's units are tested for (optional; a
+	// run's customer overrides it).
+	Customer *Customer
 }
 
 // NoiseInput names one noise trace of a beam.
@@ -254,6 +257,8 @@ type Run struct {
 	// Elements and Notes are relative to the archive root, or "".
 	Elements string
 	Notes    string
+	// Customer overrides the spec's customer for this run (optional).
+	Customer *Customer
 	// KeyLines gives the run.yaml line of each key's value by key path
 	// ("station", "reference", "product", "started", "range_reference.pre",
 	// "range_reference.post", "beams[0].transmission",
@@ -282,12 +287,13 @@ type Element struct {
 
 // InputFile is one file an output depends on: the size and SHA-256 of
 // the bytes that were parsed, and the file's stat as it was when they
-// were read.
+// were read. The stat is for the build's own record, never an output: it
+// differs between two copies of one archive.
 type InputFile struct {
 	Path   string   `json:"path"`
 	Size   int64    `json:"size"`
 	SHA256 string   `json:"sha256"`
-	Stat   FileStat `json:"stat"`
+	Stat   FileStat `json:"-"`
 }
 
 // BeamData is the measured data of one beam.
@@ -401,6 +407,12 @@ type Archive struct {
 	// as they were read: each is read once a build, and Load lists the
 	// shared ones' very bytes as a run's inputs.
 	Documents map[string]InputFile
+	// Lab is lab.yaml, nil when the archive has none (or it was refused:
+	// see Problems); its input is in Documents under "lab.yaml".
+	Lab *Lab
+	// Approvals are the approvals of each serial, in date order (then by
+	// file). Each file's input is in Documents.
+	Approvals map[string][]*Approval
 	// Orphans are refused runs that belong to no unit: their serial could
 	// not be read, or their folder or run.yaml could not be read at all.
 	// In the order of their paths.

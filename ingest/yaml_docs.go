@@ -197,6 +197,7 @@ func ParseSpec(data []byte, name string) (*Spec, error) {
 		field{"limits", true, "a list of limits (name, quantity, beams, band_ghz, statistic, limit)"},
 		field{"operating_antenna_k", false, "the antenna temperature in K the projected G/T is stated at, above 0"},
 		field{"element_phase_rms_tolerance_deg", false, "the allowed rms of the residual element phase in degrees, above 0"},
+		field{"customer", false, "who the units are tested for: {name, address: [lines], order}"},
 	)
 	if m == nil {
 		return nil, p.err()
@@ -208,6 +209,7 @@ func ParseSpec(data []byte, name string) (*Spec, error) {
 		s.Title, _ = m.str("title")
 	}
 	s.DecisionRule, _ = m.oneOf("decision_rule", "simple", "guarded")
+	s.Customer = m.customer("customer")
 	if m.has("operating_antenna_k") {
 		if v, ok := m.positive("operating_antenna_k"); ok {
 			s.OperatingAntennaK = &v

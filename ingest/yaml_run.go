@@ -62,6 +62,7 @@ func ParseRun(data []byte, name string) (*Run, error) {
 		field{"beams", true, "a list of beams (id, theta_deg, phi_deg, transmission, noise)"},
 		field{"elements", false, "an elements CSV file relative to this folder"},
 		field{"notes", false, "a Markdown file relative to this folder"},
+		field{"customer", false, "who this run is for, when not the spec's customer: {name, address: [lines], order}"},
 	)
 	if m == nil {
 		return nil, p.err()
@@ -140,6 +141,7 @@ func ParseRun(data []byte, name string) (*Run, error) {
 	if m.has("notes") {
 		r.Notes, _ = m.str("notes")
 	}
+	r.Customer = m.customer("customer")
 	if err := p.err(); err != nil {
 		return nil, err
 	}

@@ -470,7 +470,7 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		Summary:     res.Summary(),
 	}
 	for _, in := range inputs {
-		st.Inputs = append(st.Inputs, in)
+		st.Inputs = append(st.Inputs, recordedInput(in))
 	}
 	sort.Slice(st.Inputs, func(i, j int) bool { return st.Inputs[i].Path < st.Inputs[j].Path })
 	for p := range absent {

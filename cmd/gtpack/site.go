@@ -108,7 +108,7 @@ type unitState struct {
 	// Inputs are every file read for the unit's files, of every run,
 	// with the size and SHA-256 of the bytes used and their stat; Absent
 	// the files the runs name that could not be read.
-	Inputs  []ingest.InputFile     `json:"inputs"`
+	Inputs  []recordedInput        `json:"inputs"`
 	Absent  []string               `json:"absent,omitempty"`
 	Outputs []render.ManifestEntry `json:"outputs"`
 	// Summary is the head of the summary in the record, and the whole
@@ -518,6 +518,22 @@ func (a *atomicFile) abort() {
 	a.t.s.root.Remove(a.tmp)
 }
 
+// recordedInput is an input as the unit's record keeps it: with its stat.
+type recordedInput struct {
+	Path   string          `json:"path"`
+	Size   int64           `json:"size"`
+	SHA256 string          `json:"sha256"`
+	Stat   ingest.FileStat `json:"stat"`
+}
+
+func recordInputs(ins []ingest.InputFile) []recordedInput {
+	out := make([]recordedInput, len(ins))
+	for i, in := range ins {
+		out[i] = recordedInput(in)
+	}
+	return out
+}
+
 // current says whether the unit's record st still describes unit u of
 // archive a: built by this tool version, not damaged or stale, from the
 // same runs and documents, every input unchanged (ingest.Recheck: by
@@ -537,9 +553,9 @@ func (s *site) current(a *ingest.Archive, u *ingest.Unit, st *unitState) (ok boo
 	if !slices.Equal(st.Documents, unitDocuments(a, u.Runs)) {
 		return false, nil
 	}
-	var renewed []ingest.InputFile
+	var renewed []recordedInput
 	for i, in := range st.Inputs {
-		now, same := a.Recheck(in)
+		now, same := a.Recheck(ingest.InputFile(in))
 		if !same {
 			return false, nil
 		}
@@ -547,7 +563,7 @@ func (s *site) current(a *ingest.Archive, u *ingest.Unit, st *unitState) (ok boo
 			if renewed == nil {
 				renewed = slices.Clone(st.Inputs)
 			}
-			renewed[i] = now
+			renewed[i] = recordedInput(now)
 		}
 	}
 	for _, p := range st.Absent {
@@ -681,7 +697,7 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 }
 
 // manifestEntries are the inputs as the manifest lists them.
-func manifestEntries(inputs []ingest.InputFile) []render.ManifestEntry {
+func manifestEntries(inputs []recordedInput) []render.ManifestEntry {
 	out := make([]render.ManifestEntry, len(inputs))
 	for i, in := range inputs {
 		out[i] = render.ManifestEntry{Path: in.Path, Size: in.Size, SHA256: in.SHA256}
