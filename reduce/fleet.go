@@ -23,6 +23,15 @@ type UnitSummary struct {
 	// NoReport is set when the site holds no report for the unit (its
 	// only runs were refused).
 	NoReport bool `json:"no_report,omitempty"`
+	// Runs is how many runs the unit had; FirstVerdict is its first run's
+	// verdict (a retested unit's first verdict differs from the last).
+	Runs         int    `json:"runs,omitempty"`
+	FirstVerdict string `json:"first_verdict,omitempty"`
+	// IssueState, Revision and ReportNumber are the report's issue state
+	// (see Issue).
+	IssueState   string `json:"issue_state,omitempty"`
+	Revision     int    `json:"revision,omitempty"`
+	ReportNumber string `json:"report_number,omitempty"`
 }
 
 // BoresightTrace is one unit's G/T against frequency at boresight.

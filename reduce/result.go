@@ -1,6 +1,10 @@
 package reduce
 
-import "gtpack.example/gtpack/ingest"
+import (
+	"math"
+
+	"gtpack.example/gtpack/ingest"
+)
 
 // ResultSchema is the version of the result.json layout. Schema 2 writes
 // the budgets short: a term the same at every frequency as one value
@@ -50,6 +54,29 @@ type Unit struct {
 	Elements *ElementState      `json:"elements,omitempty"`
 	Notes    string             `json:"notes_markdown,omitempty"`
 	Inputs   []ingest.InputFile `json:"inputs"`
+
+	// Lab and Customer are who issues the report and for whom (nil when
+	// not stated); Issue is the report's issue state, set by the caller
+	// (IssueOf) once every input of the unit is known.
+	Lab      *LabInfo      `json:"lab,omitempty"`
+	Customer *CustomerInfo `json:"customer,omitempty"`
+	Issue    Issue         `json:"issue"`
+}
+
+// LabInfo is the issuing laboratory, as lab.yaml states it.
+type LabInfo struct {
+	Name          string   `json:"name"`
+	Address       []string `json:"address"`
+	Contact       string   `json:"contact,omitempty"`
+	Accreditation string   `json:"accreditation,omitempty"`
+}
+
+// CustomerInfo is who the unit was tested for: the run's customer, else
+// the spec's.
+type CustomerInfo struct {
+	Name    string   `json:"name"`
+	Address []string `json:"address,omitempty"`
+	Order   string   `json:"order,omitempty"`
 }
 
 // StationInfo is what the report shows of the station.
@@ -242,6 +269,27 @@ type HistoryEntry struct {
 	Run     string `json:"run"`
 	Started string `json:"started"`
 	Verdict string `json:"verdict"`
+	// WorstLimit and WorstMarginDB are the run's worst limit result (the
+	// smallest finite margin), when it has one; Notes are its notes.
+	WorstLimit    string   `json:"worst_limit,omitempty"`
+	WorstBeam     string   `json:"worst_beam,omitempty"`
+	WorstMarginDB *float64 `json:"worst_margin_db,omitempty"`
+	Notes         string   `json:"notes_markdown,omitempty"`
+}
+
+// HistoryOf is what the report of a later run shows of this one.
+func (u *Unit) HistoryOf() HistoryEntry {
+	h := HistoryEntry{Run: u.Run, Started: u.Started, Verdict: u.Verdict, Notes: u.Notes}
+	for _, l := range u.Limits {
+		if math.IsNaN(l.WorstMarginDB) || math.IsInf(l.WorstMarginDB, 0) {
+			continue
+		}
+		if h.WorstMarginDB == nil || l.WorstMarginDB < *h.WorstMarginDB {
+			m := l.WorstMarginDB
+			h.WorstLimit, h.WorstBeam, h.WorstMarginDB = l.Name, l.Beam, &m
+		}
+	}
+	return h
 }
 
 // Scan is the scan behaviour of a unit (method.md section 8).

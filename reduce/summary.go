@@ -15,6 +15,15 @@ func (u *Unit) Summary() UnitSummary {
 		Started: u.Started,
 		Verdict: u.Verdict,
 		Limits:  make([]LimitResult, len(u.Limits)),
+		Runs:    len(u.History) + 1,
+
+		IssueState:   u.Issue.State,
+		Revision:     u.Issue.Revision,
+		ReportNumber: u.Issue.ReportNumber,
+	}
+	s.FirstVerdict = u.Verdict
+	if len(u.History) > 0 {
+		s.FirstVerdict = u.History[0].Verdict
 	}
 	for i, l := range u.Limits {
 		l.LimitCurve = nil

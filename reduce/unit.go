@@ -18,6 +18,7 @@ type Input struct {
 	Spec      *ingest.Spec      // nil when unknown/refused
 	Problems  []*ingest.Problem // what ingest refused for this run
 	History   []HistoryEntry    // earlier runs, filled by the caller
+	Lab       *ingest.Lab       // the issuing laboratory; nil when not stated
 }
 
 // ReduceUnit reduces one unit's acceptance run: range loss, gain and G/T
@@ -80,6 +81,16 @@ func reduceInto(u *Unit, in Input) {
 		u.Started = run.Started.UTC().Format(time.RFC3339)
 	}
 	u.Operator, u.AmbientC, u.Firmware = run.Operator, run.AmbientC, run.Firmware
+	if l := in.Lab; l != nil {
+		u.Lab = &LabInfo{Name: l.Name, Address: l.Address, Contact: l.Contact, Accreditation: l.Accreditation}
+	}
+	customer := run.Customer
+	if customer == nil && in.Spec != nil {
+		customer = in.Spec.Customer
+	}
+	if customer != nil {
+		u.Customer = &CustomerInfo{Name: customer.Name, Address: customer.Address, Order: customer.Order}
+	}
 	data := in.Data
 	if data == nil {
 		addProblem(ingest.Problemf(run.File, 0, "the run's data files were not read: no beam can be reduced"), false)

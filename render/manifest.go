@@ -44,7 +44,10 @@ type UnitManifest struct {
 	Verdict      string          `json:"verdict"`
 	InputsSHA256 string          `json:"inputs_sha256"`
 	Inputs       []ManifestEntry `json:"inputs"`
-	Outputs      []ManifestEntry `json:"outputs"`
+	// Approvals are the serial's approval files (archive-relative) the
+	// report's issue state comes from; not inputs, and not in the digest.
+	Approvals []ManifestEntry `json:"approvals,omitempty"`
+	Outputs   []ManifestEntry `json:"outputs"`
 }
 
 // ManifestUnit is one unit of the site's manifest.json.
@@ -77,12 +80,15 @@ func ManifestInputsDigest(inputs []ManifestEntry) string {
 
 // UnitManifestJSON is a unit's manifest.json, indented like the other
 // JSON files, with a final newline; inputs and outputs in path order.
-func UnitManifestJSON(serial, verdict string, inputs, outputs []ManifestEntry) ([]byte, error) {
+func UnitManifestJSON(serial, verdict string, inputs, approvals, outputs []ManifestEntry) ([]byte, error) {
 	if serial == "" {
 		return nil, fmt.Errorf("render: manifest: a unit without serial")
 	}
 	m := UnitManifest{Schema: manifestSchema, ToolVersion: Version, Serial: serial, Verdict: verdict,
 		InputsSHA256: ManifestInputsDigest(inputs), Inputs: sortedEntries(inputs), Outputs: sortedEntries(outputs)}
+	if len(approvals) > 0 {
+		m.Approvals = sortedEntries(approvals)
+	}
 	b, err := appendJSON(nil, reflect.ValueOf(&m), 0)
 	if err != nil {
 		return nil, err
@@ -204,6 +210,9 @@ func ParseUnitManifest(file string, data []byte) (*UnitManifest, error) {
 		return nil, err
 	}
 	if err := checkEntries(file, "outputs", m.Outputs); err != nil {
+		return nil, err
+	}
+	if err := checkEntries(file, "approvals", m.Approvals); err != nil {
 		return nil, err
 	}
 	if d := ManifestInputsDigest(m.Inputs); d != m.InputsSHA256 {

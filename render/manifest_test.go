@@ -64,7 +64,7 @@ func TestManifestRoundTrip(t *testing.T) {
 
 	// A unit's manifest: every input, the shared station included, and
 	// its files, each in path order; inputs_sha256 over the inputs.
-	um, err := UnitManifestJSON("KP16-00017", "pass", []ManifestEntry{run17, station, data17},
+	um, err := UnitManifestJSON("KP16-00017", "pass", []ManifestEntry{run17, station, data17}, nil,
 		[]ManifestEntry{out("KP16-00017", "result.json"), out("KP16-00017", "KP16-00017.xlsx")})
 	if err != nil {
 		t.Fatal(err)
@@ -157,7 +157,7 @@ func TestManifestRefuses(t *testing.T) {
 		}
 	}
 	// A unit manifest whose inputs_sha256 is not that of its inputs.
-	um, err := UnitManifestJSON("S1", "pass", []ManifestEntry{{Path: "a", Size: 3, SHA256: hashABC}}, nil)
+	um, err := UnitManifestJSON("S1", "pass", []ManifestEntry{{Path: "a", Size: 3, SHA256: hashABC}}, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

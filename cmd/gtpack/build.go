@@ -417,42 +417,12 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 			return out
 		}
 	}
-	// The archive was opened lean: each run is read whole here, one unit
-	// at a time, so that discovery holds little per unit.
-	runs := make([]*ingest.Run, len(u.Runs))
-	for i, r := range u.Runs {
-		full, err := a.Full(r)
-		if err != nil {
-			out.err = err
-			return out
-		}
-		runs[i] = full
+	w, err := reduceWhole(a, u)
+	if err != nil {
+		out.err = err
+		return out
 	}
-
-	// Every file read for the unit's files is an input: the acceptance
-	// run's and those of the earlier runs, whose verdicts the report
-	// shows.
-	inputs := map[string]ingest.InputFile{}
-	absent := map[string]bool{}
-	var history []reduce.HistoryEntry
-	var res *reduce.Unit
-	for i, r := range runs {
-		var h []reduce.HistoryEntry
-		if i == len(runs)-1 {
-			h = history
-		}
-		reduced, data := reduceRun(a, r, h)
-		for _, in := range data.Inputs {
-			inputs[in.Path] = in
-		}
-		for _, p := range data.Absent {
-			absent[p] = true
-		}
-		if i < len(runs)-1 {
-			history = append(history, reduce.HistoryEntry{Run: r.Dir, Started: reduced.Started, Verdict: reduced.Verdict})
-		}
-		res = reduced
-	}
+	res := w.unit
 	for i := range res.Problems {
 		p := res.Problems[i]
 		out.problems = append(out.problems, &p)
@@ -466,19 +436,14 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 	st := &unitState{
 		Serial:      u.Serial,
 		ToolVersion: render.Version,
-		Documents:   unitDocuments(a, runs),
+		Documents:   unitDocuments(a, w.runs),
+		Inputs:      recordInputs(w.inputs),
+		Absent:      w.absent,
+		Approvals:   recordInputs(w.approvals),
 		Summary:     res.Summary(),
 	}
-	for _, in := range inputs {
-		st.Inputs = append(st.Inputs, recordedInput(in))
-	}
-	sort.Slice(st.Inputs, func(i, j int) bool { return st.Inputs[i].Path < st.Inputs[j].Path })
-	for p := range absent {
-		st.Absent = append(st.Absent, p)
-	}
-	sort.Strings(st.Absent)
 	st.ReportStarted = st.Summary.Started
-	for _, r := range runs {
+	for _, r := range w.runs {
 		st.Runs = append(st.Runs, r.Dir)
 	}
 	if err := site.writeUnit(old, st, files); err != nil {
@@ -534,6 +499,73 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 	return out
 }
 
+// wholeUnit is a unit reduced from all its runs: the acceptance run's
+// result with the earlier runs as its history and its issue state, and
+// every file read for it.
+type wholeUnit struct {
+	unit      *reduce.Unit
+	runs      []*ingest.Run // whole, oldest first
+	inputs    []ingest.InputFile
+	absent    []string
+	approvals []ingest.InputFile // the serial's approval files
+}
+
+// reduceWhole reads and reduces every run of u. Every file read for the
+// unit's files is an input: the acceptance run's and those of the
+// earlier runs, whose verdicts, worst limits and notes the report shows.
+// Its issue state follows from the digest of those inputs and the
+// serial's approvals.
+func reduceWhole(a *ingest.Archive, u *ingest.Unit) (*wholeUnit, error) {
+	w := &wholeUnit{}
+	// The archive was opened lean: each run is read whole here, one unit
+	// at a time, so that discovery holds little per unit.
+	for _, r := range u.Runs {
+		full, err := a.Full(r)
+		if err != nil {
+			return nil, err
+		}
+		w.runs = append(w.runs, full)
+	}
+	if len(w.runs) == 0 {
+		return nil, fmt.Errorf("unit %s has no run that can be read", u.Serial)
+	}
+	inputs := map[string]ingest.InputFile{}
+	absent := map[string]bool{}
+	var history []reduce.HistoryEntry
+	for i, r := range w.runs {
+		var h []reduce.HistoryEntry
+		if i == len(w.runs)-1 {
+			h = history
+		}
+		reduced, data := reduceRun(a, r, h)
+		for _, in := range data.Inputs {
+			inputs[in.Path] = in
+		}
+		for _, p := range data.Absent {
+			absent[p] = true
+		}
+		if i < len(w.runs)-1 {
+			history = append(history, reduced.HistoryOf())
+		}
+		w.unit = reduced
+	}
+	for _, in := range inputs {
+		w.inputs = append(w.inputs, in)
+	}
+	sort.Slice(w.inputs, func(i, j int) bool { return w.inputs[i].Path < w.inputs[j].Path })
+	for p := range absent {
+		w.absent = append(w.absent, p)
+	}
+	sort.Strings(w.absent)
+	approvals := a.Approvals[u.Serial]
+	for _, ap := range approvals {
+		w.approvals = append(w.approvals, a.Documents[ap.File])
+	}
+	digest := render.ManifestInputsDigest(manifestEntries(recordInputs(w.inputs)))
+	w.unit.Issue = reduce.IssueOf(a.Lab, u.Serial, digest, w.unit.Verdict, len(w.unit.Problems), approvals)
+	return w, nil
+}
+
 // reduceRun loads one run's files and reduces them. It returns the result
 // and what was loaded (the inputs, and the files that could not be read).
 func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) (*reduce.Unit, *ingest.RunData) {
@@ -546,6 +578,7 @@ func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) 
 		Spec:      a.Specs[r.Product],
 		Problems:  problems,
 		History:   history,
+		Lab:       a.Lab,
 	}
 	return reduce.ReduceUnit(in), data
 }

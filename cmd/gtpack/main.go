@@ -33,6 +33,8 @@ usage:
   gtpack verify SITE [--archive ARCHIVE] [--allowed-signers FILE]
                                           check a package: files, manifests, signature, inputs
   gtpack sign SITE --key FILE             sign SHA256SUMS with an OpenSSH ed25519 key
+  gtpack approve ARCHIVE SERIAL --by NAME [--role R] [--comment C] [--date T]
+                                          approve the unit's report as it is now (adds approvals/SERIAL/*.yaml)
   gtpack inspect FILE [--json]            what the tool reads from one input file
   gtpack demo DIR [--units N] [--seed S]  write a synthetic archive from a physical model
   gtpack version
@@ -71,6 +73,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		code, err = cmdIndex(args[1:], stdout, stderr)
 	case "check":
 		code, err = cmdCheck(args[1:], stdout, stderr)
+	case "approve":
+		code, err = cmdApprove(args[1:], stdout, stderr)
 	case "verify":
 		code, err = cmdVerify(args[1:], stdout, stderr)
 	case "sign":

@@ -110,6 +110,10 @@ type unitState struct {
 	// the files the runs name that could not be read.
 	Inputs  []recordedInput        `json:"inputs"`
 	Absent  []string               `json:"absent,omitempty"`
+	// Approvals are the serial's approval files the outputs show: not
+	// inputs (an approval issues a report of the inputs), but a change of
+	// them changes the report.
+	Approvals []recordedInput `json:"approvals,omitempty"`
 	Outputs []render.ManifestEntry `json:"outputs"`
 	// Summary is the head of the summary in the record, and the whole
 	// summary once readSummary has read it or a build made it.
@@ -571,6 +575,15 @@ func (s *site) current(a *ingest.Archive, u *ingest.Unit, st *unitState) (ok boo
 			return false, nil
 		}
 	}
+	approvals := a.Approvals[u.Serial]
+	if len(approvals) != len(st.Approvals) {
+		return false, nil
+	}
+	for i, ap := range approvals {
+		if now := a.Documents[ap.File]; now.Path != st.Approvals[i].Path || now.SHA256 != st.Approvals[i].SHA256 {
+			return false, nil
+		}
+	}
 	for _, o := range st.Outputs {
 		fi, err := s.root.Lstat(o.Path)
 		if err != nil || !fi.Mode().IsRegular() || fi.Size() != o.Size {
@@ -675,7 +688,7 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 			return err
 		}
 	}
-	man, err := render.UnitManifestJSON(st.Serial, st.Summary.Verdict, manifestEntries(st.Inputs), st.Outputs)
+	man, err := render.UnitManifestJSON(st.Serial, st.Summary.Verdict, manifestEntries(st.Inputs), manifestEntries(st.Approvals), st.Outputs)
 	if err == nil {
 		err = put(render.UnitManifestName, man)
 	}
@@ -714,7 +727,7 @@ func (s *site) writeStale(st *unitState, builtVerdict string) error {
 	t := s.begin("unit-" + st.Serial)
 	rel := path.Join(unitDir(st.Serial), render.UnitManifestName)
 	if !st.Summary.NoReport && !slices.ContainsFunc(st.Outputs, func(e render.ManifestEntry) bool { return e.Path == rel }) {
-		man, err := render.UnitManifestJSON(st.Serial, builtVerdict, manifestEntries(st.Inputs), st.Outputs)
+		man, err := render.UnitManifestJSON(st.Serial, builtVerdict, manifestEntries(st.Inputs), manifestEntries(st.Approvals), st.Outputs)
 		if err != nil {
 			return err
 		}

@@ -11,6 +11,7 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -238,7 +239,7 @@ func (v *verifier) checkInputs(archive string, units []*render.UnitManifest) {
 	seen := map[string]string{} // path: its SHA-256 in the archive, or "" when unreadable
 	n := 0
 	for _, u := range units {
-		for _, in := range u.Inputs {
+		for _, in := range append(slices.Clone(u.Inputs), u.Approvals...) {
 			h, done := seen[in.Path]
 			if !done {
 				h = ""
