@@ -108,13 +108,13 @@ type unitState struct {
 	// Inputs are every file read for the unit's files, of every run,
 	// with the size and SHA-256 of the bytes used and their stat; Absent
 	// the files the runs name that could not be read.
-	Inputs  []recordedInput        `json:"inputs"`
-	Absent  []string               `json:"absent,omitempty"`
+	Inputs []recordedInput `json:"inputs"`
+	Absent []string        `json:"absent,omitempty"`
 	// Approvals are the serial's approval files the outputs show: not
 	// inputs (an approval issues a report of the inputs), but a change of
 	// them changes the report.
-	Approvals []recordedInput `json:"approvals,omitempty"`
-	Outputs []render.ManifestEntry `json:"outputs"`
+	Approvals []recordedInput        `json:"approvals,omitempty"`
+	Outputs   []render.ManifestEntry `json:"outputs"`
 	// Summary is the head of the summary in the record, and the whole
 	// summary once readSummary has read it or a build made it.
 	Summary reduce.UnitSummary `json:"summary"`
