@@ -460,3 +460,27 @@ func TestFleetPagesKeptWhenNothingChanged(t *testing.T) {
 		t.Errorf("after a unit changed the build rewrote only %v of %v", got, pages)
 	}
 }
+
+// The gtpack demo command writes sample-archive/ byte for byte: the
+// files of ingest/demo and the approvals it makes (one unit issued and
+// co-signed, one approved before its retest, one more issued).
+func TestDemoCommandIsTheSampleArchive(t *testing.T) {
+	if testing.Short() {
+		t.Skip("reduces four units")
+	}
+	dir := filepath.Join(t.TempDir(), "demo")
+	if code, out := runOut("demo", dir, "--units", "8", "--seed", "1"); code != exitOK || !strings.Contains(out, "with 4 approval(s)") {
+		t.Fatalf("demo: %d\n%s", code, out)
+	}
+	want, got := siteDigest(t, "../../sample-archive"), siteDigest(t, dir)
+	sameSite(t, "gtpack demo --units 8 --seed 1 and sample-archive/", want, got)
+	n := 0
+	for p := range got {
+		if strings.HasPrefix(p, "approvals/") {
+			n++
+		}
+	}
+	if n != 4 {
+		t.Errorf("%d approval files, want 4", n)
+	}
+}

@@ -7,9 +7,11 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"time"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/ingest/demo"
+	"gtpack.example/gtpack/reduce"
 	"gtpack.example/gtpack/render"
 )
 
@@ -80,8 +82,68 @@ func cmdDemo(args []string, stdout, _ io.Writer) (int, error) {
 	if _, err := demo.Write(pos[0], demo.Options{Units: *units, Seed: *seed}); err != nil {
 		return exitRefused, err
 	}
-	fmt.Fprintf(stdout, "wrote a synthetic archive of %d unit(s) to %s\n", *units, pos[0])
+	n, err := demoApprovals(pos[0])
+	if err != nil {
+		return exitRefused, err
+	}
+	fmt.Fprintf(stdout, "wrote a synthetic archive of %d unit(s) with %d approval(s) to %s\n", *units, n, pos[0])
 	return exitOK, nil
+}
+
+// demoApprovals approves some reports of a demo archive as a laboratory
+// would: the first unit is issued and co-signed, the first retested unit
+// was approved before its retest (so the retest made that approval void),
+// and the last unit is issued; the others stay drafts. Each approval is
+// dated a day after the run it approves, and names the inputs and verdict
+// gtpack reduces for the unit as it was then.
+func demoApprovals(dir string) (int, error) {
+	a, err := ingest.OpenLean(dir)
+	if err != nil {
+		return 0, err
+	}
+	if len(a.Units) == 0 {
+		return 0, nil
+	}
+	type approval struct {
+		unit     *ingest.Unit
+		by, role string
+		after    time.Duration
+	}
+	first := a.Units[0]
+	plan := []approval{
+		{first, "A. Tester", "Test engineer", 24 * time.Hour},
+		{first, "Q. Reviewer", "Quality engineer", 26 * time.Hour},
+	}
+	for _, u := range a.Units {
+		if len(u.Runs) > 1 {
+			before := &ingest.Unit{Serial: u.Serial, Runs: u.Runs[:1]}
+			plan = append(plan, approval{before, "Q. Reviewer", "Quality engineer", 24 * time.Hour})
+			break
+		}
+	}
+	if last := a.Units[len(a.Units)-1]; len(a.Units) > 2 && len(last.Runs) == 1 {
+		plan = append(plan, approval{last, "Q. Reviewer", "Quality engineer", 24 * time.Hour})
+	}
+	n := 0
+	for _, p := range plan {
+		w, err := reduceWhole(a, p.unit)
+		if err != nil {
+			return n, err
+		}
+		res := w.unit
+		if res.Verdict == reduce.VerdictIncomplete || len(res.Problems) > 0 {
+			continue
+		}
+		acceptance := p.unit.Runs[len(p.unit.Runs)-1]
+		when := acceptance.Started.UTC().Add(p.after).Truncate(time.Hour)
+		ap := &ingest.Approval{Schema: 1, Serial: p.unit.Serial, InputsSHA256: res.Issue.InputsSHA256, Verdict: res.Verdict,
+			ApprovedBy: p.by, Role: p.role, Date: when}
+		if _, err := writeApproval(dir, p.unit.Serial, when, p.by, ingest.ApprovalYAML(ap)); err != nil {
+			return n, err
+		}
+		n++
+	}
+	return n, nil
 }
 
 // isSite says whether dir looks like a site gtpack wrote: its cache

@@ -40,6 +40,7 @@ func WriteTruth(dir string, t *Truth) error {
 	w.file("stations/"+t.Station+".yaml", w.stationYAML())
 	w.file("references/"+t.Reference+".yaml", w.referenceYAML())
 	w.file("specs/"+t.Product+".yaml", w.specYAML())
+	w.file("lab.yaml", w.labYAML())
 	for i := range t.Runs {
 		w.run(&t.Runs[i])
 		if w.err != nil {
@@ -139,6 +140,33 @@ func (w *writer) referenceYAML() []byte {
 	return b.Bytes()
 }
 
+// The laboratory and the customer of the demo's scenario (invented).
+const (
+	demoLabName       = "Quarrydown Arrays acceptance test laboratory"
+	demoLabContact    = "acceptance@quarrydown.example"
+	demoReportPrefix  = "QDA-GT"
+	demoCustomer      = "Tern Valley Satellite Services"
+	demoOrder         = "TVS-PO-2026-014"
+	demoLabAccredited = "not accredited (demonstration archive)"
+)
+
+var (
+	demoLabAddress      = []string{"Unit 7, Quarry Road", "Stonebridge Industrial Park", "Stonebridge"}
+	demoCustomerAddress = []string{"12 Harbour Lane", "Tern Valley"}
+)
+
+// labYAML is the issuing laboratory of the scenario.
+func (w *writer) labYAML() []byte {
+	var b bytes.Buffer
+	b.WriteString("schema: 1\n")
+	fmt.Fprintf(&b, "name: %s\n", demoLabName)
+	fmt.Fprintf(&b, "address: [%s]\n", strings.Join(demoLabAddress, ", "))
+	fmt.Fprintf(&b, "contact: %s\n", demoLabContact)
+	fmt.Fprintf(&b, "accreditation: %s\n", demoLabAccredited)
+	fmt.Fprintf(&b, "report_prefix: %s\n", demoReportPrefix)
+	return b.Bytes()
+}
+
 func (w *writer) specYAML() []byte {
 	t := w.t
 	lo, hi := num(t.StartHz/1e9), num(t.StopHz/1e9)
@@ -150,6 +178,7 @@ func (w *writer) specYAML() []byte {
 	fmt.Fprintf(&b, "product: %s\n", t.Product)
 	fmt.Fprintf(&b, "title: %s\n", t.ProductTitle)
 	b.WriteString("decision_rule: guarded\n")
+	fmt.Fprintf(&b, "customer:\n  name: %s\n  address: [%s]\n  order: %s\n", demoCustomer, strings.Join(demoCustomerAddress, ", "), demoOrder)
 	fmt.Fprintf(&b, "operating_antenna_k: %s\n", num(t.OperatingAntennaK))
 	fmt.Fprintf(&b, "element_phase_rms_tolerance_deg: %s\n", num(t.ElementToleranceDeg))
 	b.WriteString("limits:\n")
@@ -485,7 +514,12 @@ func (w *writer) readme() []byte {
 	fmt.Fprintf(&b, "(package ingest/demo, Options{Units: %d, Seed: %d, Beams: %d, Points: %d}). The same\n", o.Units, o.Seed, o.Beams, o.Points)
 	b.WriteString("options always give byte-identical files. The sample-archive folder of the gtpack source is\n")
 	b.WriteString("this output for `--units 8 --seed 1`; a test (ingest/demo TestSampleArchive) checks it byte\n")
-	b.WriteString("for byte, and `go test ./ingest/demo -run TestSampleArchive -update` rewrites it.\n\n")
+	b.WriteString("for byte; `rm -rf sample-archive && go run ./cmd/gtpack demo sample-archive --units 8 --seed 1`\n")
+	b.WriteString("rewrites it.\n")
+	b.WriteString("The `gtpack demo` command also approves some reports, as a laboratory would, into\n")
+	b.WriteString("approvals/ (the first unit issued and co-signed, the first retested unit approved before\n")
+	b.WriteString("its retest, so that the retest made that approval void, and the last unit issued);\n")
+	b.WriteString("the others are drafts. A test of the command checks that folder too.\n\n")
 	b.WriteString("## Model\n\n")
 	b.WriteString("- Range loss about 50.8 dB at 11.725 GHz, rising as 20*log10(f), with a 0.05 dB quiet-zone\n")
 	b.WriteString("  ripple common to the reference and the unit; the reference horn (realized gain, about 20 dBi)\n")
