@@ -448,6 +448,7 @@ func SortProblems(ps []*Problem) []*Problem {
 type archiveFS struct {
 	root     string
 	realRoot string
+	lines    runLines // of the data files a run.yaml names (Load: one archiveFS a run)
 }
 
 func newArchiveFS(root string) *archiveFS {
@@ -503,11 +504,13 @@ func (f *archiveFS) resolve(rel string) (string, string) {
 func (f *archiveFS) read(rel, from string, line int) ([]byte, *Problem) {
 	full, why := f.resolve(rel)
 	if why == "" {
-		data, err := os.ReadFile(full)
-		if err == nil {
+		var data []byte
+		if data, why = readBounded(full, rel); why == "" && path.Base(from) == "run.yaml" {
+			why = f.lines.take(data)
+		}
+		if why == "" {
 			return data, nil
 		}
-		why = fmt.Sprintf("cannot be read (%v)", err)
 	}
 	if from == "" {
 		return nil, Problemf(rel, 0, "file %s", why)
