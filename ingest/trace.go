@@ -137,6 +137,9 @@ func ReadTrace(r io.Reader, name string) (*Trace, error) {
 		if err != nil {
 			return nil, Problemf(name, ln, "%s %q: %v", t.Column, fields[1], err)
 		}
+		if len(t.FrequencyHz) >= MaxTracePoints {
+			return nil, pointLimit(name, ln, len(t.FrequencyHz)+1, "point")
+		}
 		t.FrequencyHz = append(t.FrequencyHz, f)
 		t.Values = append(t.Values, v)
 		prevText = fields[0]
@@ -499,6 +502,9 @@ func readReferenceTable(r io.Reader, name string) ([]ReferencePoint, error) {
 		}
 		if p.ExpandedUncertaintyDB < 0 {
 			return nil, Problemf(name, ln, "uncertainty_db %s is negative; expected an expanded uncertainty >= 0 dB", fields[2])
+		}
+		if len(out) >= MaxTracePoints {
+			return nil, pointLimit(name, ln, len(out)+1, "point")
 		}
 		out = append(out, p)
 		prevText = fields[0]
