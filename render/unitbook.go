@@ -248,7 +248,10 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	}
 	// The shared parts are compressed once, at the best level.
 	var z bytes.Buffer
-	d, _ := flate.NewWriter(&z, flate.BestCompression) // a valid level never fails
+	d, err := flate.NewWriter(&z, flate.BestCompression)
+	if err != nil {
+		return nil, err
+	}
 	for _, e := range c.entries {
 		data := e.data.Bytes()
 		p := skeletonPart{name: e.name}
@@ -298,7 +301,11 @@ func (sk *unitSkeleton) write(tables map[string]*bulkSheet, title, subject strin
 	var out bytes.Buffer
 	out.Grow(size + bulkSize(tables))
 	zw := zip.NewWriter(&out)
-	defer useDeflater(zw)()
+	release, err := useDeflater(zw)
+	if err != nil {
+		return nil, err
+	}
+	defer release()
 	byPart := make(map[string]*bulkSheet, len(tables))
 	for name, t := range tables {
 		p, ok := sk.sheetPart[name]
@@ -324,7 +331,10 @@ func (sk *unitSkeleton) write(tables map[string]*bulkSheet, title, subject strin
 		}
 		switch t := byPart[p.name]; {
 		case p.name == corePart:
-			_, err = w.Write(fillCore(p.xml, title, subject, created.UTC().Format(time.RFC3339)))
+			var core []byte
+			if core, err = fillCore(p.xml, title, subject, created.UTC().Format(time.RFC3339)); err == nil {
+				_, err = w.Write(core)
+			}
 		case t != nil:
 			err = writeBulkSheet(w, p.xml, t)
 		default:
@@ -364,13 +374,13 @@ func rawHeader(p skeletonPart, modified time.Time) *zip.FileHeader {
 
 // fillCore fills the slots of docProps/core.xml, each value escaped as
 // encoding/xml escapes text.
-func fillCore(core []byte, title, subject, stamp string) []byte {
-	esc := func(s string) []byte {
+func fillCore(core []byte, title, subject, stamp string) ([]byte, error) {
+	for _, slot := range [][2]string{{slotTitle, title}, {slotSubject, subject}, {slotStamp, stamp}} {
 		var b bytes.Buffer
-		xml.EscapeText(&b, []byte(s)) // writes to memory: cannot fail
-		return b.Bytes()
+		if err := xml.EscapeText(&b, []byte(slot[1])); err != nil {
+			return nil, err
+		}
+		core = bytes.ReplaceAll(core, []byte(slot[0]), b.Bytes())
 	}
-	core = bytes.ReplaceAll(core, []byte(slotTitle), esc(title))
-	core = bytes.ReplaceAll(core, []byte(slotSubject), esc(subject))
-	return bytes.ReplaceAll(core, []byte(slotStamp), esc(stamp))
+	return core, nil
 }
