@@ -145,13 +145,30 @@ var unitFormats = []string{nfDB, nfGHz, nfDeg, nfTemp, nfDiv, nfInt}
 
 // skeletons holds the skeletons made so far, by shape. A build sees a few
 // shapes (one per product and specification); when more than
-// maxSkeletons have been made the store starts again.
+// maxSkeletons have been made, or they would hold more than
+// maxSkeletonBytes, the store starts again. A skeleton takes some 4 kB a
+// beam (67 kB for 16 beams, 0.85 MB for 256, measured), so that the store
+// stays within a few megabytes even when every unit has a shape of its
+// own with many beams.
 var skeletons struct {
 	sync.Mutex
-	m map[string]*unitSkeleton
+	m     map[string]*unitSkeleton
+	bytes int
 }
 
-const maxSkeletons = 32
+const (
+	maxSkeletons     = 32
+	maxSkeletonBytes = 8 << 20
+)
+
+// size is about what the skeleton holds, in bytes.
+func (sk *unitSkeleton) size() int {
+	n := 0
+	for _, p := range sk.parts {
+		n += len(p.name) + len(p.xml) + len(p.stored) + 64
+	}
+	return n
+}
 
 // skeletonFor returns the skeleton of shape s, made when it is new. Two
 // workers meeting a new shape at once both make it; they make the same.
@@ -167,11 +184,15 @@ func skeletonFor(s *unitShape) (*unitSkeleton, error) {
 	if err != nil {
 		return nil, err
 	}
+	size := sk.size()
 	skeletons.Lock()
-	if skeletons.m == nil || len(skeletons.m) >= maxSkeletons {
-		skeletons.m = map[string]*unitSkeleton{}
+	if skeletons.m == nil || len(skeletons.m) >= maxSkeletons || skeletons.bytes+size > maxSkeletonBytes {
+		skeletons.m, skeletons.bytes = map[string]*unitSkeleton{}, 0
 	}
-	skeletons.m[k] = sk
+	if _, kept := skeletons.m[k]; !kept {
+		skeletons.m[k] = sk
+		skeletons.bytes += size
+	}
 	skeletons.Unlock()
 	return sk, nil
 }
