@@ -34,7 +34,7 @@ const (
 	// values took 100 MB, a 2.5 MB run.yaml of 10,000 beams 53 MB), and a
 	// worker parses its run.yaml again while the other renders, so a
 	// document is bounded much more tightly than a data file. A run of
-	// MaxRunBeams beams, each with two noise entries, takes some 120 kB; a
+	// MaxRunBeams beams, each with two noise entries, takes some 60 kB; a
 	// reference table of 256 kB some 10,000 rows.
 	MaxDocumentBytes = 256 << 10
 
@@ -58,33 +58,49 @@ const (
 	MaxNetworkValues = 1 << 20
 
 	// MaxRunBeams bounds the beams of one run. A unit workbook has a
-	// sheet and a chart per beam and the report a chart per beam, which
-	// cost some 0.4 MB of memory a beam while the unit is written; 256
-	// beams of 625 points built two at a time peaked at 223-237 MB.
+	// sheet and a chart per beam, and the report a chart per beam, so a
+	// beam costs memory beyond its points while the unit is written: two
+	// units of 256 beams of 625 points (160,000 beam points each) built at
+	// once peaked at 219-259 MB, where two of 16 beams of 10,000 points
+	// took 161-163 MB and two of 128 beams of 1,250 points 169-182 MB.
 	// General knowledge: an acceptance beam plan is some tens of beam
-	// states, rarely more than a couple of hundred.
-	MaxRunBeams = 256
+	// states.
+	MaxRunBeams = 128
 
 	// MaxRunBeamPoints bounds the sum over a run's beams of the points of
 	// their transmission traces: the grid every reduced value, report
 	// chart, workbook row and result.json list of the unit is on. A unit
 	// takes some 430 bytes of memory a beam point while it is reduced and
-	// written (its result.json alone some 160 bytes), so 160,000 beam
-	// points (16 beams of 10,000 points, 256 beams of 625, 128 beams of
-	// 1,250) keep two units built at once under 250 MB.
+	// written (its result.json alone some 160 bytes: 126 MB for 16 beams
+	// of 50,001 points), and a build holds a unit's report, workbook and
+	// result.json at once. 160,000 beam points: 16 beams of 10,000
+	// points, 128 beams of 1,250; two such units built at once peaked at
+	// 161-182 MB.
 	MaxRunBeamPoints = 160000
 
 	// MaxRunLines bounds the lines of all the data files one run reads
 	// (each point of a trace takes at least a line, so it bounds the
 	// points held while the run is loaded: some 24 bytes a point, 24 MB
-	// at the limit). 1,000,000 lines: 256 beams of 625 points with three
-	// traces each are 480,000; 16 beams of 10,000 with three traces each
-	// and two range references of 100,001 points are 680,000.
+	// at the limit), where the other limits would let 128 beams with
+	// three traces of MaxTracePoints points each take 38 million.
+	// 1,000,000 lines: 128 beams of 1,250 points with three traces each
+	// are 480,000; 16 beams of 10,000 with three traces each and two range
+	// references of 100,001 points are 680,000.
 	MaxRunLines = 1000000
 
+	// MaxElements bounds the rows of an elements table. A unit's element
+	// state (the fit, the heat map in the report and result.json) takes
+	// some 600 bytes of memory an element while it is written: one unit of
+	// 16 beams of 801 points peaked at 39 MB with 256 elements, 90 MB with
+	// 65,536, 339 MB with 490,000 (one worker). 16,384 elements (128 x
+	// 128) add some 10 MB. General knowledge: a flat-panel terminal has
+	// some hundreds to a few thousand elements.
+	MaxElements = 16384
+
 	// MaxSheetRows is the row limit of a worksheet: 1,048,576 rows
-	// (ECMA-376 Part 1, 18.3.1.73, row index at most 1048576; Microsoft,
-	// "Excel specifications and limits").
+	// (Microsoft, "Excel specifications and limits": worksheet size
+	// 1,048,576 rows by 16,384 columns; other spreadsheet applications
+	// read no more).
 	MaxSheetRows = 1048576
 
 	// MaxCellChars is the most characters a cell holds: 32,767

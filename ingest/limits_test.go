@@ -111,7 +111,8 @@ func touchstone1Port(n int) []byte {
 }
 
 // Every reader of a trace takes MaxTracePoints points and refuses the next
-// at its line, where it stops.
+// at its line, where it stops; likewise the elements table at
+// MaxElements.
 func TestTracePointLimit(t *testing.T) {
 	refTable := func(n int) []byte {
 		var b bytes.Buffer
@@ -120,6 +121,22 @@ func TestTracePointLimit(t *testing.T) {
 			fmt.Fprintf(&b, "%d.%06d,20,0.3\n", 1+k/1_000_000, k%1_000_000)
 		}
 		return b.Bytes()
+	}
+	elements := func(n int) []byte {
+		var b bytes.Buffer
+		b.WriteString("row,col,amplitude_db,phase_deg\n")
+		for k := 0; k < n; k++ {
+			fmt.Fprintf(&b, "%d,%d,0,0\n", k/128, k%128)
+		}
+		return b.Bytes()
+	}
+	els, err := ReadElements(bytes.NewReader(elements(MaxElements)), "elements.csv")
+	if err != nil || len(els) != MaxElements {
+		t.Errorf("elements at the limit: %d, %v", len(els), err)
+	}
+	_, err = ReadElements(bytes.NewReader(elements(MaxElements+1)), "elements.csv")
+	if p, ok := err.(*Problem); !ok || p.Line != MaxElements+2 || !strings.Contains(p.Message, "element 16,385 is past the limit of an elements table; expected at most 16,384") {
+		t.Errorf("elements one past the limit: got %v", err)
 	}
 	readers := []struct {
 		name string
@@ -170,7 +187,7 @@ func TestTracePointLimit(t *testing.T) {
 	// A version-2 file that declares more points than a trace may have is
 	// refused at the keyword, before its data.
 	v2 := "[Version] 2.0\n# GHz S RI R 50\n[Number of Ports] 1\n[Number of Frequencies] 100002\n[Network Data]\n1 0 0\n"
-	_, err := ReadTouchstone(strings.NewReader(v2), "t.ts")
+	_, err = ReadTouchstone(strings.NewReader(v2), "t.ts")
 	if p, ok := err.(*Problem); !ok || p.Line != 4 || !strings.Contains(p.Message, "[Number of Frequencies] 100,002 is past the limit") {
 		t.Errorf("declared count: got %v, want t.ts:4 [Number of Frequencies] 100,002 is past the limit", err)
 	}
@@ -221,7 +238,7 @@ func TestParseRunBeamLimit(t *testing.T) {
 	_, err = ParseRun(run(MaxRunBeams+1), "run.yaml")
 	ps := Problems(err)
 	line := 12 + 4*MaxRunBeams // the beams start at line 12, four lines each
-	want := "run: beam 257 of the 257 listed from line 12 is past the limit of a run; expected at most 256 beams"
+	want := fmt.Sprintf("run: beam %d of the %d listed from line 12 is past the limit of a run; expected at most %d beams", MaxRunBeams+1, MaxRunBeams+1, MaxRunBeams)
 	if len(ps) != 1 || ps[0].File != "run.yaml" || ps[0].Line != line || !strings.Contains(ps[0].Message, want) {
 		t.Errorf("one past the limit: got %v, want run.yaml:%d %s", ps, line, want)
 	}

@@ -428,6 +428,10 @@ func ReadElements(r io.Reader, name string) ([]Element, error) {
 			return nil, Problemf(name, ln, "element row %d col %d is already on line %d; expected each element once", e.Row, e.Col, first)
 		}
 		seen[key] = ln
+		if len(out) >= MaxElements {
+			return nil, Problemf(name, ln, "element %s is past the limit of an elements table; expected at most %s elements (see the README's limits)",
+				groupDigits(int64(len(out)+1)), groupDigits(MaxElements))
+		}
 		out = append(out, e)
 	}
 	if len(out) == 0 {
