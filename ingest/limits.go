@@ -17,8 +17,8 @@ import (
 // (testdata/scripts/bench-limits.sh, peak resident memory from
 // /usr/bin/time -v on the project's 2-core machine with two workers, the
 // default) so that the worst accepted archive stays under 250 MB, a
-// margin below the 300 MB bound; the measurements are in the script's
-// comment and in DEVELOPERS.md. The README states them for users.
+// margin below the 300 MB bound; the script's comment has the figures.
+// The README states the limits for users.
 const (
 	// MaxFileBytes bounds a data file (Touchstone, trace CSV, elements,
 	// notes, a reference's table file). The size is checked before the

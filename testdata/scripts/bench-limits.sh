@@ -14,6 +14,21 @@
 # and the same build varies from run to run, so read the figures as
 # ranges. The archives stay in WORKDIR (default /tmp/gtpack-limits) for
 # the next run.
+#
+# Measured (2 cores, three rounds; peak RSS at -j 1 / -j 2, wall time at
+# -j 2):
+#   at-beam-points  103 / 175-179 MB, 0.8 s
+#   at-beams        105 / 162-183 MB, 1.0-1.6 s
+#   at-trace        105-107 / 167-171 MB, 0.8 s
+#   past-file-size  47-52 / 53 MB, 0.1 s (refused before it is read)
+#   past-trace      79-80 / 73-77 MB, 0.1 s
+#   past-beams-10k  23 / 23 MB, 0.02 s
+#   past-beams      25 / 24-26 MB, 0.03 s
+#   past-run        112-114 / 174-175 MB, 3.6-6.2 s (it reads up to the
+#                   1,000,000 lines of the run before refusing the rest)
+# Before the limits, two units of 256 beams of 625 points took 219-259
+# MB, one unit of 16 beams of 100,001 points 699 MB, and a 200 MB
+# Touchstone file was read whole.
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 work=${1:-/tmp/gtpack-limits}
