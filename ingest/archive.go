@@ -536,6 +536,7 @@ func SortProblems(ps []*Problem) []*Problem {
 type archiveFS struct {
 	root     string
 	realRoot string
+	lines    runLines // of the data files a run.yaml names (Load: one archiveFS a run)
 }
 
 func newArchiveFS(root string) *archiveFS {
@@ -593,11 +594,15 @@ func (f *archiveFS) resolve(rel string) (string, string) {
 func (f *archiveFS) read(rel, from string, line int) ([]byte, InputFile, *Problem) {
 	full, why := f.resolve(rel)
 	if why == "" {
-		data, st, err := readStable(full)
-		if err == nil {
+		var data []byte
+		var st FileStat
+		data, st, why = readStableLimited(full, rel)
+		if why == "" && path.Base(from) == "run.yaml" {
+			why = f.lines.take(data)
+		}
+		if why == "" {
 			return data, inputOf(rel, data, st), nil
 		}
-		why = fmt.Sprintf("cannot be read (%v)", err)
 	}
 	if from == "" {
 		return nil, InputFile{}, Problemf(rel, 0, "file %s", why)

@@ -17,8 +17,10 @@ func Check(root string) []*Problem {
 				probs = append(probs, Problems(err)...)
 				continue
 			}
-			_, p := a.Load(full)
+			d, p := a.Load(full)
 			probs = append(probs, p...)
+			// What reduce refuses of a loaded run (ReduceUnit calls it too).
+			probs = append(probs, LimitBeamPoints(full, d)...)
 		}
 	}
 	return SortProblems(probs)

@@ -22,11 +22,15 @@ var touchstoneExt = regexp.MustCompile(`(?i)\.(s\d+p|ts)$`)
 // spec by its folder (stations/, references/, specs/); .md is notes. A reference's
 // table_file is read relative to the reference, inside the folder above
 // references/ (the archive root). A refused file is the error, with its
-// file and line.
+// file and line. The limits of a build hold (limits.go): a file larger
+// than its size limit is refused before it is read.
 func Inspect(path string) (string, any, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
+	if _, err := os.Stat(path); err != nil {
 		return "", nil, err
+	}
+	data, why := readBounded(path, filepath.ToSlash(path))
+	if why != "" {
+		return "", nil, Problemf(path, 0, "file %s", why)
 	}
 	base := filepath.Base(path)
 	folder := filepath.Base(filepath.Dir(path))

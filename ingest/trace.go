@@ -137,6 +137,9 @@ func ReadTrace(r io.Reader, name string) (*Trace, error) {
 		if err != nil {
 			return nil, Problemf(name, ln, "%s %q: %v", t.Column, fields[1], err)
 		}
+		if len(t.FrequencyHz) >= MaxTracePoints {
+			return nil, pointLimit(name, ln, len(t.FrequencyHz)+1, "point")
+		}
 		t.FrequencyHz = append(t.FrequencyHz, f)
 		t.Values = append(t.Values, v)
 		prevText = fields[0]
@@ -425,6 +428,10 @@ func ReadElements(r io.Reader, name string) ([]Element, error) {
 			return nil, Problemf(name, ln, "element row %d col %d is already on line %d; expected each element once", e.Row, e.Col, first)
 		}
 		seen[key] = ln
+		if len(out) >= MaxElements {
+			return nil, Problemf(name, ln, "element %s is past the limit of an elements table; expected at most %s elements (see the README's limits)",
+				groupDigits(int64(len(out)+1)), groupDigits(MaxElements))
+		}
 		out = append(out, e)
 	}
 	if len(out) == 0 {
@@ -499,6 +506,9 @@ func readReferenceTable(r io.Reader, name string) ([]ReferencePoint, error) {
 		}
 		if p.ExpandedUncertaintyDB < 0 {
 			return nil, Problemf(name, ln, "uncertainty_db %s is negative; expected an expanded uncertainty >= 0 dB", fields[2])
+		}
+		if len(out) >= MaxTracePoints {
+			return nil, pointLimit(name, ln, len(out)+1, "point")
 		}
 		out = append(out, p)
 		prevText = fields[0]

@@ -115,6 +115,13 @@ func ParseRun(data []byte, name string) (*Run, error) {
 		if len(items) == 0 {
 			m.invalid("beams", "is an empty list")
 		}
+		if len(items) > MaxRunBeams {
+			// The beams past the limit are not read: the run is refused,
+			// and each of them would only add a problem.
+			p.errf(items[MaxRunBeams].Line, "run: beam %d of the %d listed from line %d is past the limit of a run; expected at most %d beams (each has its own sheet and charts; see the README's limits)",
+				MaxRunBeams+1, len(items), m.line("beams"), MaxRunBeams)
+			items = items[:MaxRunBeams]
+		}
 		// By the id in lower case: b00 and B00 would be one file name on
 		// a system that ignores case, so they are one beam.
 		ids := map[string]*Beam{}

@@ -46,7 +46,8 @@ const (
 // 3.5 (Iglewicz and Hoaglin 1993); none when the MAD is 0.
 //
 // Golden band: the units of the product with a boresight trace, in serial
-// order; the grid is the first one's; every other trace is interpolated
+// order; the grid is the first one's (every k-th of its frequencies when
+// it has more than maxBandGridPoints, bandGrid); every other trace is interpolated
 // (piecewise linear) at the grid frequencies inside its own span. At each
 // frequency covered by at least 5 units the band is the median and
 // low/high = median -/+ 3*1.4826*MAD (1.4826*MAD estimates a normal sigma,
@@ -190,7 +191,7 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 // trace's), smooths it and keeps it as float32 differences from the first.
 func (p *fleetProductAcc) addTrace(idx int, fs, gt []float64) {
 	if p.grid == nil {
-		p.grid = append([]float64(nil), fs...)
+		p.grid = bandGrid(fs)
 		p.smooth = bandSmoothingPoints(len(p.grid))
 	}
 	grid := p.grid
@@ -511,6 +512,31 @@ func fleetTestBefore(a, b string) bool {
 		return false
 	}
 	return a < b
+}
+
+// maxBandGridPoints bounds the golden band's grid: the builder keeps every
+// traced unit's trace on it (4 bytes a point), so that a product whose
+// traces have the most points a trace may have (ingest.MaxTracePoints,
+// 100,001) would take 400 kB a unit, 4 GB at 10,000 units. 1,601 points,
+// the most of a usual acceptance sweep (general knowledge), keep such
+// grids as they are and 10,000 units within 64 MB.
+const maxBandGridPoints = 1601
+
+// bandGrid is the golden band's grid for a product whose first traced
+// unit has the frequencies fs: fs itself up to maxBandGridPoints, else
+// every k-th frequency of fs (k the smallest that gives no more than
+// maxBandGridPoints), with the last frequency kept, so that the band spans
+// the trace.
+func bandGrid(fs []float64) []float64 {
+	if len(fs) <= maxBandGridPoints {
+		return append([]float64(nil), fs...)
+	}
+	step := (len(fs) - 1 + maxBandGridPoints - 2) / (maxBandGridPoints - 1)
+	grid := make([]float64, 0, maxBandGridPoints)
+	for k := 0; k < len(fs)-1; k += step {
+		grid = append(grid, fs[k])
+	}
+	return append(grid, fs[len(fs)-1])
 }
 
 // bandSmoothingPoints is the moving-average width used for the golden

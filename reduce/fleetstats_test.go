@@ -431,3 +431,38 @@ func TestFleetBuilderBandPrecision(t *testing.T) {
 		t.Errorf("band median off the float64 median by %.3g dB, want within 2.4e-7", worst)
 	}
 }
+
+// The golden band's grid holds at most maxBandGridPoints frequencies: a
+// product whose traces have 100,001 points (ingest.MaxTracePoints) gets
+// every 63rd of them and the last, so the band spans the trace; a grid of
+// 1,601 points or fewer is the trace's own.
+func TestFleetBandGridBounded(t *testing.T) {
+	for _, c := range []struct{ points, want int }{{1601, 1601}, {1602, 802}, {100001, 1589}} {
+		fs := make([]float64, c.points)
+		for k := range fs {
+			fs[k] = 10.7e9 + float64(k)*2.05e9/float64(c.points-1)
+		}
+		g := bandGrid(fs)
+		if len(g) != c.want || g[0] != fs[0] || g[len(g)-1] != fs[len(fs)-1] {
+			t.Errorf("%d points: grid of %d from %g to %g, want %d from %g to %g", c.points, len(g), g[0], g[len(g)-1], c.want, fs[0], fs[len(fs)-1])
+		}
+		for k := 1; k < len(g); k++ {
+			if !(g[k] > g[k-1]) {
+				t.Fatalf("%d points: grid not increasing at %d", c.points, k)
+			}
+		}
+	}
+	us := bandFleet()
+	for _, u := range us {
+		tr := u.Boresight
+		tr.FrequencyHz, tr.GTdBPerK = make([]float64, 100001), make([]float64, 100001)
+		for k := range tr.FrequencyHz {
+			tr.FrequencyHz[k] = 11e9 + float64(k)*1e4
+			tr.GTdBPerK[k] = 3
+		}
+	}
+	p := ComputeFleet(us).Products[0]
+	if p.Band == nil || len(p.Band.FrequencyHz) != 1589 || p.Band.FrequencyHz[1588] != 12e9 {
+		t.Errorf("band of 100,001-point traces: %v", p.Band)
+	}
+}
