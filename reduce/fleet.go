@@ -27,6 +27,9 @@ type UnitSummary struct {
 	// verdict (a retested unit's first verdict differs from the last).
 	Runs         int    `json:"runs,omitempty"`
 	FirstVerdict string `json:"first_verdict,omitempty"`
+	// RangeChecks are the range checks of the unit's runs, oldest first
+	// (range health: fleet.json's stations).
+	RangeChecks []RangeCheck `json:"range_checks,omitempty"`
 	// IssueState, Revision and ReportNumber are the report's issue state
 	// (see Issue).
 	IssueState   string `json:"issue_state,omitempty"`
