@@ -50,6 +50,11 @@ type Fleet struct {
 	Schema   int            `json:"schema"`
 	Units    []FleetUnit    `json:"units"` // sorted by serial
 	Products []ProductFleet `json:"products"`
+	// Stations are the range charts of each station and reference antenna
+	// (range health), References each reference antenna's dates and the
+	// runs that used it past its due date.
+	Stations   []RangeChart      `json:"stations"`
+	References []ReferenceHealth `json:"references"`
 	// Notices say what the pages do not show as they should (units a
 	// build could not write); empty when all is well.
 	Notices []string `json:"notices,omitempty"`

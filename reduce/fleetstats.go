@@ -98,6 +98,7 @@ func ComputeFleet(units []UnitSummary) *Fleet {
 // 754): far below the 1e-6 dB to which fleet.json writes the band.
 type FleetBuilder struct {
 	units    []fleetRecord
+	checks   map[string][]RangeCheck // by serial: the range checks of its runs
 	products map[string]*fleetProductAcc
 	last     string
 }
@@ -130,7 +131,7 @@ type fleetProductAcc struct {
 
 // NewFleetBuilder returns an empty builder.
 func NewFleetBuilder() *FleetBuilder {
-	return &FleetBuilder{products: map[string]*fleetProductAcc{}}
+	return &FleetBuilder{products: map[string]*fleetProductAcc{}, checks: map[string][]RangeCheck{}}
 }
 
 // Add takes one unit's summary; it keeps none of u's lists. Units must
@@ -188,6 +189,9 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 			jd.worst = math.Min(jd.worst, l.WorstMarginDB)
 			jd.rank = max(jd.rank, r)
 		}
+	}
+	if len(u.RangeChecks) > 0 {
+		b.checks[u.Serial] = append(b.checks[u.Serial], u.RangeChecks...)
 	}
 	idx := len(b.units)
 	b.units = append(b.units, rec)
@@ -255,6 +259,7 @@ func (b *FleetBuilder) Finish() *Fleet {
 	for i := range b.units {
 		f.Units[i] = b.units[i].FleetUnit
 	}
+	f.Stations, f.References = RangeCharts(b.checks), ReferencesHealth(b.checks)
 	return f
 }
 

@@ -22,10 +22,60 @@ type RangeCheck struct {
 	RangeLossDB float64 `json:"range_loss_db"`
 	// DriftDB is |RL_pre - RL_post| there; nil with one measurement.
 	DriftDB *float64 `json:"drift_db,omitempty"`
-	// ReferenceDue is the reference antenna's due date (YYYY-MM-DD) and
-	// PastDue whether the run started after it.
-	ReferenceDue string `json:"reference_due,omitempty"`
-	PastDue      bool   `json:"past_due,omitempty"`
+	// ReferenceCertificate, ReferenceCalibrated and ReferenceDue are the
+	// reference antenna's (dates YYYY-MM-DD); PastDue says whether the run
+	// started after the due date.
+	ReferenceCertificate string `json:"reference_certificate,omitempty"`
+	ReferenceCalibrated  string `json:"reference_calibrated,omitempty"`
+	ReferenceDue         string `json:"reference_due,omitempty"`
+	PastDue              bool   `json:"past_due,omitempty"`
+}
+
+// ReferenceHealth is a reference antenna as the runs used it.
+type ReferenceHealth struct {
+	ID          string `json:"id"`
+	Certificate string `json:"certificate"`
+	Calibrated  string `json:"calibrated"`
+	Due         string `json:"due"`
+	// RunsAfterDue are the runs that used it after its due date, in time
+	// order.
+	RunsAfterDue []RangePoint `json:"runs_after_due"`
+}
+
+// ReferencesHealth lists each reference antenna the checks name, by id,
+// with the runs that used it past its due date (method.md section 12).
+// The dates are those of the latest run's record of it.
+func ReferencesHealth(checks map[string][]RangeCheck) []ReferenceHealth {
+	byID := map[string]*ReferenceHealth{}
+	latest := map[string]string{}
+	serials := make([]string, 0, len(checks))
+	for s := range checks {
+		serials = append(serials, s)
+	}
+	sort.Strings(serials)
+	for _, serial := range serials {
+		for _, c := range checks[serial] {
+			r := byID[c.Reference]
+			if r == nil {
+				r = &ReferenceHealth{ID: c.Reference, RunsAfterDue: []RangePoint{}}
+				byID[c.Reference] = r
+			}
+			if c.Started >= latest[c.Reference] {
+				latest[c.Reference] = c.Started
+				r.Certificate, r.Calibrated, r.Due = c.ReferenceCertificate, c.ReferenceCalibrated, c.ReferenceDue
+			}
+			if c.PastDue {
+				r.RunsAfterDue = append(r.RunsAfterDue, RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB})
+			}
+		}
+	}
+	out := []ReferenceHealth{}
+	for _, r := range byID {
+		sort.SliceStable(r.RunsAfterDue, func(i, j int) bool { return r.RunsAfterDue[i].Started < r.RunsAfterDue[j].Started })
+		out = append(out, *r)
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].ID < out[j].ID })
+	return out
 }
 
 // RangeCheckOf is the range check of a run from its range loss; nil
@@ -51,9 +101,12 @@ func RangeCheckOf(run *ingest.Run, ref *ingest.Reference, rl *RangeLoss) *RangeC
 		d := rl.DriftDB[k]
 		c.DriftDB = &d
 	}
-	if ref != nil && !ref.Due.IsZero() {
-		c.ReferenceDue = formatDate(ref.Due)
-		c.PastDue = !run.Started.IsZero() && run.Started.After(ref.Due)
+	if ref != nil {
+		c.ReferenceCertificate, c.ReferenceCalibrated = ref.Certificate, formatDate(ref.Calibrated)
+		if !ref.Due.IsZero() {
+			c.ReferenceDue = formatDate(ref.Due)
+			c.PastDue = !run.Started.IsZero() && run.Started.After(ref.Due)
+		}
 	}
 	return c
 }
@@ -98,6 +151,7 @@ type RangePoint struct {
 // mean of the baseline, limits the centre -/+ 2.66 times its mean moving
 // range (method.md section 10). checks maps serial to its runs' checks.
 func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
+	out := []RangeChart{}
 	type key struct{ station, reference string }
 	type point struct {
 		RangePoint
@@ -122,7 +176,6 @@ func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
 		}
 		return keys[i].reference < keys[j].reference
 	})
-	var out []RangeChart
 	for _, k := range keys {
 		ps := byPair[k]
 		sort.Slice(ps, func(i, j int) bool {
