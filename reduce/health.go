@@ -22,6 +22,8 @@ type RangeCheck struct {
 	RangeLossDB float64 `json:"range_loss_db"`
 	// DriftDB is |RL_pre - RL_post| there; nil with one measurement.
 	DriftDB *float64 `json:"drift_db,omitempty"`
+	// DriftToleranceDB is the station's allowed drift (0 when unknown).
+	DriftToleranceDB float64 `json:"drift_tolerance_db,omitempty"`
 	// ReferenceCertificate, ReferenceCalibrated and ReferenceDue are the
 	// reference antenna's (dates YYYY-MM-DD); PastDue says whether the run
 	// started after the due date.
@@ -80,7 +82,7 @@ func ReferencesHealth(checks map[string][]RangeCheck) []ReferenceHealth {
 
 // RangeCheckOf is the range check of a run from its range loss; nil
 // without one.
-func RangeCheckOf(run *ingest.Run, ref *ingest.Reference, rl *RangeLoss) *RangeCheck {
+func RangeCheckOf(run *ingest.Run, st *ingest.Station, ref *ingest.Reference, rl *RangeLoss) *RangeCheck {
 	if run == nil || rl == nil || len(rl.FrequencyHz) == 0 || len(rl.RangeLossDB) != len(rl.FrequencyHz) {
 		return nil
 	}
@@ -100,6 +102,9 @@ func RangeCheckOf(run *ingest.Run, ref *ingest.Reference, rl *RangeLoss) *RangeC
 	if len(rl.DriftDB) == len(f) && finite(rl.DriftDB[k]) {
 		d := rl.DriftDB[k]
 		c.DriftDB = &d
+	}
+	if st != nil {
+		c.DriftToleranceDB = st.DriftToleranceDB
 	}
 	if ref != nil {
 		c.ReferenceCertificate, c.ReferenceCalibrated = ref.Certificate, formatDate(ref.Calibrated)
@@ -123,6 +128,9 @@ type RangeChart struct {
 	Station     string  `json:"station"`
 	Reference   string  `json:"reference"`
 	FrequencyHz float64 `json:"frequency_hz"`
+	// DriftToleranceDB is the station's allowed pre/post drift, as the
+	// latest run recorded it (0 when unknown).
+	DriftToleranceDB float64 `json:"drift_tolerance_db"`
 	// Points are the runs in time order (then by serial and run).
 	Points []RangePoint `json:"points"`
 	// Baseline is the number of first points the limits are set on
@@ -155,15 +163,16 @@ func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
 	type key struct{ station, reference string }
 	type point struct {
 		RangePoint
-		t  time.Time
-		hz float64
+		t   time.Time
+		hz  float64
+		tol float64
 	}
 	byPair := map[key][]point{}
 	for serial, cs := range checks {
 		for _, c := range cs {
 			t, _ := time.Parse(time.RFC3339, c.Started)
 			k := key{c.Station, c.Reference}
-			byPair[k] = append(byPair[k], point{RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB}, t, c.FrequencyHz})
+			byPair[k] = append(byPair[k], point{RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB}, t, c.FrequencyHz, c.DriftToleranceDB})
 		}
 	}
 	keys := make([]key, 0, len(byPair))
@@ -187,7 +196,7 @@ func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
 			}
 			return ps[i].Run < ps[j].Run
 		})
-		c := RangeChart{Station: k.station, Reference: k.reference, FrequencyHz: ps[0].hz, OutOfControl: []int{}}
+		c := RangeChart{Station: k.station, Reference: k.reference, FrequencyHz: ps[0].hz, DriftToleranceDB: ps[len(ps)-1].tol, OutOfControl: []int{}}
 		for _, p := range ps {
 			c.Points = append(c.Points, p.RangePoint)
 		}

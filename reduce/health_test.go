@@ -19,17 +19,17 @@ func TestRangeCheckOf(t *testing.T) {
 	ref := &ingest.Reference{Due: time.Date(2027, 2, 10, 0, 0, 0, 0, time.UTC)}
 	rl := &RangeLoss{FrequencyHz: []float64{10e9, 11e9, 12e9, 13.5e9}, RangeLossDB: []float64{50, 51, 52, 53},
 		DriftDB: []float64{0.01, 0.02, 0.03, 0.04}}
-	c := RangeCheckOf(run, ref, rl)
+	c := RangeCheckOf(run, &ingest.Station{DriftToleranceDB: 0.25}, ref, rl)
 	// Centre (10 + 13.5)/2 = 11.75 GHz: 12 GHz is nearer than 11.
-	if c == nil || c.FrequencyHz != 12e9 || c.RangeLossDB != 52 || c.DriftDB == nil || *c.DriftDB != 0.03 || !c.PastDue || c.ReferenceDue != "2027-02-10" {
+	if c == nil || c.FrequencyHz != 12e9 || c.RangeLossDB != 52 || c.DriftDB == nil || *c.DriftDB != 0.03 || !c.PastDue || c.ReferenceDue != "2027-02-10" || c.DriftToleranceDB != 0.25 {
 		t.Errorf("range check %+v", c)
 	}
 	run.Started = time.Date(2027, 2, 9, 9, 0, 0, 0, time.UTC)
 	rl.DriftDB = nil
-	if c := RangeCheckOf(run, ref, rl); c.PastDue || c.DriftDB != nil {
+	if c := RangeCheckOf(run, &ingest.Station{DriftToleranceDB: 0.25}, ref, rl); c.PastDue || c.DriftDB != nil {
 		t.Errorf("before the due date, one measurement: %+v", c)
 	}
-	if RangeCheckOf(run, ref, nil) != nil {
+	if RangeCheckOf(run, nil, ref, nil) != nil {
 		t.Error("a range check without a range loss")
 	}
 }

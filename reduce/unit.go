@@ -166,7 +166,7 @@ func reduceInto(u *Unit, in Input) {
 		}
 		u.Flags = append(u.Flags, flags...)
 		ctx.rl = rl
-		u.RangeCheck = RangeCheckOf(run, ref, rl)
+		u.RangeCheck = RangeCheckOf(run, in.Station, ref, rl)
 		if rl != nil {
 			if rl.ReferenceMatch == nil && ctx.haveStation {
 				u.Flags = append(u.Flags, Flag{Kind: "budget", Message: fmt.Sprintf(

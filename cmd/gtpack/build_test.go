@@ -357,8 +357,8 @@ func TestSampleArchiveBuildsAreIdentical(t *testing.T) {
 	}
 	runQuiet(t, "build", "../../sample-archive", "-o", b, "--quiet")
 	da := siteDigest(t, a)
-	if len(da) != 8*4+6 {
-		t.Errorf("sample site has %d files, want 8 units x 4 files (report, workbook, result.json, manifest) + 6 (fleet pages, results.csv, manifest.json, SHA256SUMS)", len(da))
+	if len(da) != 8*4+7 {
+		t.Errorf("sample site has %d files, want 8 units x 4 files (report, workbook, result.json, manifest) + 7 (index, health, fleet.json, fleet.xlsx, results.csv, manifest.json, SHA256SUMS)", len(da))
 	}
 	sameSite(t, "two builds of sample-archive", da, siteDigest(t, b))
 }

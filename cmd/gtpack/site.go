@@ -1045,6 +1045,7 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 	}{
 		{"fleet.json", func(w io.Writer) error { return render.WriteFleetJSON(w, fleet) }},
 		{"fleet.xlsx", writeBytes(func() ([]byte, error) { return render.FleetWorkbook(fleet) })},
+		{"health.html", writeBytes(func() ([]byte, error) { return render.Health(fleet) })},
 		{"index.html", writeBytes(func() ([]byte, error) { return render.Index(fleet) })},
 	}
 	for _, p := range pages {
