@@ -277,9 +277,8 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	if density != nil {
 		nRel = onto(density.trace.FrequencyHz, density.trace.Values, "noise of "+density.in.File)
 		if density.in.Quantity == NoiseDensityDBmPerHz {
-			kt0 := KT0DBmPerHz()
 			for i := range nRel {
-				nRel[i] -= kt0 // NoiseRelativeFromDensityDB, with kT0 computed once
+				nRel[i] = NoiseRelativeFromDensityDB(nRel[i])
 			}
 		}
 	}
@@ -289,16 +288,14 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	var gtDensity, gtFigure []float64
 	if nRel != nil && b.GainDBi != nil {
 		gtDensity = make([]float64, n)
-		t0 := ReferenceTemperatureDBK()
 		for i := range gtDensity {
-			gtDensity[i] = b.GainDBi[i] - nRel[i] - t0 // GTNoiseDensity, with 10log10(T0) computed once
+			gtDensity[i] = GTNoiseDensity(b.GainDBi[i], nRel[i])
 		}
 	}
 	if nf != nil && b.RangeLossDB != nil {
 		gtFigure = make([]float64, n)
-		t0 := ReferenceTemperatureDBK()
 		for i := range gtFigure {
-			gtFigure[i] = b.RangeLossDB[i] - nf[i] - t0 // GTSystemNoiseFigure, 10log10(T0) computed once
+			gtFigure[i] = GTSystemNoiseFigure(b.RangeLossDB[i], nf[i])
 		}
 	}
 	var scatterFile string
