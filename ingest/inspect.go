@@ -97,7 +97,11 @@ func Inspect(path string) (string, any, error) {
 }
 
 func inspectCSV(path string, data []byte) (string, any, error) {
-	header, _, err := newCSVLines(bytes.NewReader(data), path).next()
+	c := newCSVReader(data, path, nil)
+	if ln := c.peekLine(); ln != nil {
+		c.delim = detectDelimiter(ln)
+	}
+	header, _, err := c.next()
 	if err == nil && len(header) > 0 {
 		switch strings.ToLower(header[0]) {
 		case "row":

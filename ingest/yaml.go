@@ -138,14 +138,6 @@ func kindName(n *yaml.Node) string {
 	return "an unexpected YAML node"
 }
 
-// field describes one key of a mapping: whether it must be there and what
-// its value is expected to be (used in messages).
-type field struct {
-	key    string
-	req    bool
-	expect string
-}
-
 // ymap is one YAML mapping being decoded against a list of known keys.
 type ymap struct {
 	p      *yparser
