@@ -215,8 +215,10 @@ func (m *ymap) expect(fields ...field) *ymap {
 		if !f.req {
 			continue
 		}
-		if v, ok := m.vals[f.key]; !ok || isNull(v) {
+		if v, ok := m.vals[f.key]; !ok {
 			m.p.errf(m.node.Line, "%s: missing required key %q; expected %s", m.what, f.key, f.expect)
+		} else if isNull(v) {
+			m.p.errf(m.keys[f.key].Line, "%s: %s has no value; expected %s", m.what, f.key, f.expect)
 		}
 	}
 	return m

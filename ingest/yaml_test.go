@@ -185,7 +185,7 @@ func TestParseStation(t *testing.T) {
 		{"unknown key in term", "    coverage_k: 2\n", "    coverage_k: 2\n    unit: dB\n", 13, `uncertainty term "Noise receiver calibration": unknown key "unit"`},
 		{"duplicate key", "id: range-a\n", "id: range-a\nid: range-b\n", 3, `key "id" is repeated (first on line 2)`},
 		{"missing id", "id: range-a\n", "", 1, `missing required key "id"`},
-		{"null id", "id: range-a\n", "id:\n", 1, `missing required key "id"`},
+		{"null id", "id: range-a\n", "id:\n", 2, `id has no value`},
 		{"receiver match 1", "receiver_match: 0.03", "receiver_match: 1.0", 4, "1 is outside [0, 1)"},
 		{"receiver match text", "receiver_match: 0.03", "receiver_match: low", 4, `receiver_match is "low"; expected`},
 		{"receiver match quoted", "receiver_match: 0.03", `receiver_match: "0.03"`, 4, `receiver_match is "0.03"`},
