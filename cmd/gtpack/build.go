@@ -593,8 +593,8 @@ func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) 
 		// The run's discovery problems (an unknown station) are its own:
 		// reduce says what follows from them under them.
 		Problems: append(a.ProblemsOf(r), problems...),
-		History:   history,
-		Lab:       a.Lab,
+		History:  history,
+		Lab:      a.Lab,
 	}
 	return reduce.ReduceUnit(in), data
 }
