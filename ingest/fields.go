@@ -26,6 +26,7 @@ type shapeKind int
 
 const (
 	kText    shapeKind = iota // a non-blank scalar (free text, a file name)
+	kString                   // a non-blank string (a scalar that is not a number)
 	kIdent                    // an identifier (CheckIdentifier)
 	kNumber                   // a finite number
 	kInteger                  // a whole number
@@ -108,7 +109,7 @@ func transmissionParameterPattern() string {
 }
 
 // sColumn is a CSV column: its header text or its 1-based number.
-var sColumn = anyOf(&shape{kind: kText}, &shape{kind: kInteger, min: fp(1)})
+var sColumn = anyOf(&shape{kind: kString}, &shape{kind: kInteger, min: fp(1)})
 
 // csvFields are the keys of a csv: mapping (contract, "Data files").
 // uncertainty_column is an extension for a reference's table_file.

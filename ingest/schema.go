@@ -159,6 +159,8 @@ func valueSchema(s *shape) object {
 			p = s.pattern
 		}
 		o = append(o, kv{"pattern", p})
+	case kString:
+		o = obj(kv{"type", "string"}, kv{"pattern", `\S`})
 	case kIdent:
 		o = obj(kv{"type", []string{"string", "number"}}, kv{"pattern", identPattern})
 	case kNumber:
