@@ -256,6 +256,19 @@ func reduceInto(u *Unit, in Input, cons *consequences) {
 			addProblem(p, false)
 		}
 		u.Flags = append(u.Flags, flags...)
+		if rl != nil {
+			// method.md section 13: a range loss no antenna range has is a
+			// wrong file or parameter, not a measurement.
+			for i, v := range rl.RangeLossDB {
+				if v < minPlausibleRangeLossDB || v > maxPlausibleRangeLossDB {
+					addProblem(ingest.Problemf(joinList(rl.Files), 0, "range loss %.1f dB at %s is outside %g to %g dB, which no antenna range produces (method.md section 13): the reference measurement is refused; expected the reference antenna's transmission in the range (is it the right file and parameter?)",
+						v, formatGHz(rl.FrequencyHz[i]), minPlausibleRangeLossDB, maxPlausibleRangeLossDB), false)
+					ctx.rlCause = len(u.Problems) - 1
+					rl = nil
+					break
+				}
+			}
+		}
 		ctx.rl = rl
 		if rl != nil {
 			if rl.ReferenceMatch == nil && ctx.haveStation {
@@ -377,6 +390,16 @@ func reduceInto(u *Unit, in Input, cons *consequences) {
 	if len(run.Beams) == 0 {
 		addProblem(ingest.Problemf(run.File, 0, "the run has no beams"), false)
 	}
+	for _, b := range u.Beams {
+		for i, v := range b.GTdBPerK {
+			if v < minPlausibleGTdBPerK || v > maxPlausibleGTdBPerK {
+				u.Flags = append(u.Flags, Flag{Kind: "implausible", Beam: b.ID, Message: fmt.Sprintf(
+					"G/T %.1f dB/K at %s is outside %g to %g dB/K, which is implausible for an antenna (method.md section 13): check the declared noise quantity and the files",
+					v, formatGHz(b.FrequencyHz[i]), minPlausibleGTdBPerK, maxPlausibleGTdBPerK)})
+				break
+			}
+		}
+	}
 	if len(noMatch) > 0 {
 		u.Flags = append(u.Flags, Flag{Kind: "budget", Message: fmt.Sprintf(
 			"the transmission files of beam(s) %s hold no reflection coefficient of the AUT: "+
@@ -433,6 +456,14 @@ func unitVerdict(u *Unit) string {
 	}
 	return v
 }
+
+// Plausibility ranges of method.md section 13 (common practice).
+const (
+	minPlausibleRangeLossDB = 0.0
+	maxPlausibleRangeLossDB = 150.0
+	minPlausibleGTdBPerK    = -60.0
+	maxPlausibleGTdBPerK    = 60.0
+)
 
 // ReferenceExpired reports whether a run started on a calendar day (UTC)
 // after the reference's due date. A zero due date never expires.
