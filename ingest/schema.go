@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
-	"sort"
 )
 
 // SchemaKinds are the YAML kinds of the archive, in the order gtpack init
@@ -208,16 +207,4 @@ func valueSchema(s *shape) object {
 		o = obj(kv{"anyOf", alts})
 	}
 	return append(o, s.extra...)
-}
-
-// schemaKeys lists the keys a kind's schema knows at the top level,
-// sorted (used by init's templates to stay within the schema).
-func schemaKeys(kind string) []string {
-	fields, _, _ := kindFields(kind)
-	var out []string
-	for _, f := range fields {
-		out = append(out, f.key)
-	}
-	sort.Strings(out)
-	return out
 }
