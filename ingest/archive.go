@@ -91,6 +91,7 @@ func (a *Archive) Full(r *Run) (*Run, error) {
 		return nil, err
 	}
 	full.Source = in
+	resolveBeams(a.Root, a.Specs[full.Product], full)
 	rootRelative(full)
 	if full.Serial != r.Serial || !full.Started.Equal(r.Started) {
 		return nil, Problemf(r.File, full.KeyLines["serial"], "names serial %s started %s, but named %s started %s when the archive was opened; expected the file not to change during a build",
@@ -154,7 +155,7 @@ func open(root string, lean bool) (*Archive, error) {
 				refusedRefs[ref.ID] = rel
 				return p
 			}
-			tt, err := readReferenceTable(bytes.NewReader(tdata), tf)
+			tt, err := readReferenceTableCSV(tdata, tf, ref.TableCSV)
 			if err != nil {
 				refusedRefs[ref.ID] = rel
 				return err
@@ -210,6 +211,9 @@ func open(root string, lean bool) (*Archive, error) {
 			continue
 		}
 		r := parsed.run
+		if !r.lean {
+			resolveBeams(a.Root, a.Specs[r.Product], r)
+		}
 		rootRelative(r)
 		var probs []*Problem
 		check := func(key, kind, id, folder string, known bool, refused map[string]string) {

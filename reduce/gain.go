@@ -16,6 +16,9 @@ func GainDBi(s21DB, rangeLossDB float64) float64 { return s21DB + rangeLossDB }
 type beamContext struct {
 	run *ingest.Run
 	rl  *RangeLoss
+	// rlCause is the unit problem the missing range loss follows from,
+	// -1 when there is none (see consequences).
+	rlCause int
 	// referenceK is the coverage factor of the reference certificate.
 	referenceK  float64
 	certificate string
@@ -78,6 +81,8 @@ type beamOutcome struct {
 	// noAUTMatch is true when the beam has gain but its transmission file
 	// holds no AUT reflection coefficient (mismatch term left out).
 	noAUTMatch bool
+	// noGT: the beam has no G/T.
+	noGT bool
 }
 
 // noiseUse is one checked noise trace of a beam.
@@ -352,6 +357,7 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 			}
 			problem(runFile, rb.Line, "beam %s: no G/T, because %s", rb.ID, why)
 		}
+		out.noGT = true
 	}
 	if scatterFile != "" {
 		scatterDB = scatterOf(scatterFile)

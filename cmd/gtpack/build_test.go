@@ -484,3 +484,50 @@ func TestDemoCommandIsTheSampleArchive(t *testing.T) {
 		t.Errorf("%d approval files, want 4", n)
 	}
 }
+
+// The sample archive's runs written both ways, naming the spec's beam
+// plan (as sample-archive is) and with every beam in full, reduce to the
+// same results: the same beams, numbers, limits and verdicts.
+func TestBeamPlanAndExplicitRunsAgree(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the sample archive twice")
+	}
+	results := func(explicit bool) map[string]map[string]any {
+		dir := t.TempDir()
+		archive, site := filepath.Join(dir, "archive"), filepath.Join(dir, "site")
+		if _, err := demo.Write(archive, demo.Options{Units: 8, Seed: 1, ExplicitBeams: explicit}); err != nil {
+			t.Fatal(err)
+		}
+		if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK {
+			t.Fatalf("build (explicit %v): %d\n%s", explicit, code, out)
+		}
+		files, _ := filepath.Glob(filepath.Join(site, "units", "*", "result.json"))
+		if len(files) != 8 {
+			t.Fatalf("%d results", len(files))
+		}
+		out := map[string]map[string]any{}
+		for _, f := range files {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var r map[string]any
+			if err := json.Unmarshal(data, &r); err != nil {
+				t.Fatal(err)
+			}
+			out[filepath.Base(filepath.Dir(f))] = r
+		}
+		return out
+	}
+	plan, explicit := results(false), results(true)
+	for serial, p := range plan {
+		e := explicit[serial]
+		for _, k := range []string{"verdict", "beams", "limits", "scan", "elements", "flags", "history"} {
+			a, _ := json.Marshal(p[k])
+			b, _ := json.Marshal(e[k])
+			if !bytes.Equal(a, b) {
+				t.Errorf("%s: %s differ between the plan and the explicit runs (%d and %d bytes)", serial, k, len(a), len(b))
+			}
+		}
+	}
+}
