@@ -72,7 +72,7 @@ func sameSite(t *testing.T, what string, a, b map[string]string) {
 func smallArchive(t *testing.T) string {
 	t.Helper()
 	dir := filepath.Join(t.TempDir(), "archive")
-	if _, err := demo.Write(dir, demo.Options{Units: 5, Seed: 7, Beams: 4, Points: 101}); err != nil {
+	if _, err := demo.Write(dir, demo.Options{Units: 5, Seed: 7, Beams: 4, Points: 101, NoCheckUnit: true}); err != nil {
 		t.Fatal(err)
 	}
 	return dir
@@ -357,8 +357,8 @@ func TestSampleArchiveBuildsAreIdentical(t *testing.T) {
 	}
 	runQuiet(t, "build", "../../sample-archive", "-o", b, "--quiet")
 	da := siteDigest(t, a)
-	if len(da) != 8*4+7 {
-		t.Errorf("sample site has %d files, want 8 units x 4 files (report, workbook, result.json, manifest) + 7 (index, health, fleet.json, fleet.xlsx, results.csv, manifest.json, SHA256SUMS)", len(da))
+	if len(da) != 9*4+7 {
+		t.Errorf("sample site has %d files, want 9 units (8 and the check unit) x 4 files (report, workbook, result.json, manifest) + 7 (index, health, fleet.json, fleet.xlsx, results.csv, manifest.json, SHA256SUMS)", len(da))
 	}
 	sameSite(t, "two builds of sample-archive", da, siteDigest(t, b))
 }
@@ -495,7 +495,7 @@ func TestBeamPlanAndExplicitRunsAgree(t *testing.T) {
 	results := func(explicit bool) map[string]map[string]any {
 		dir := t.TempDir()
 		archive, site := filepath.Join(dir, "archive"), filepath.Join(dir, "site")
-		if _, err := demo.Write(archive, demo.Options{Units: 8, Seed: 1, ExplicitBeams: explicit}); err != nil {
+		if _, err := demo.Write(archive, demo.Options{Units: 8, Seed: 1, ExplicitBeams: explicit, NoCheckUnit: true}); err != nil {
 			t.Fatal(err)
 		}
 		if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK {

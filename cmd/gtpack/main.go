@@ -36,7 +36,8 @@ usage:
   gtpack approve ARCHIVE SERIAL --by NAME [--role R] [--comment C] [--date T]
                                           approve the unit's report as it is now (adds approvals/SERIAL/*.yaml)
   gtpack inspect FILE [--json]            what the tool reads from one input file
-  gtpack demo DIR [--units N] [--seed S]  write a synthetic archive from a physical model
+  gtpack demo DIR [--units N] [--seed S] [--beams N] [--points N] [--months M]
+                                          write a synthetic archive from a physical model
   gtpack schema run|station|reference|spec|lab|approval
                                           print the JSON Schema of a YAML kind (for editors)
   gtpack init DIR                         a new archive: commented templates, schemas, no runs

@@ -95,6 +95,9 @@ func cmdDemo(args []string, stdout, _ io.Writer) (int, error) {
 	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
 	units := fs.Int("units", 8, "number of units")
 	seed := fs.Int64("seed", 1, "seed of the synthetic measurement noise")
+	beams := fs.Int("beams", 16, "beams per run (1 to 16)")
+	points := fs.Int("points", 801, "frequency points per file (11 to 100,001)")
+	months := fs.Int("months", 0, "spread the runs over this many months (0: one run a day)")
 	pos, err := parseArgs(fs, args, "DIR")
 	if err != nil {
 		return exitUsage, err
@@ -102,7 +105,7 @@ func cmdDemo(args []string, stdout, _ io.Writer) (int, error) {
 	if *units < 1 {
 		return exitUsage, usageError("--units must be at least 1")
 	}
-	if _, err := demo.Write(pos[0], demo.Options{Units: *units, Seed: *seed}); err != nil {
+	if _, err := demo.Write(pos[0], demo.Options{Units: *units, Seed: *seed, Beams: *beams, Points: *points, Months: *months}); err != nil {
 		return exitRefused, err
 	}
 	n, err := demoApprovals(pos[0])
@@ -144,8 +147,14 @@ func demoApprovals(dir string) (int, error) {
 			break
 		}
 	}
-	if last := a.Units[len(a.Units)-1]; len(a.Units) > 2 && len(last.Runs) == 1 {
-		plan = append(plan, approval{last, "Q. Reviewer", "Quality engineer", 24 * time.Hour})
+	// The last production unit (a check unit is never issued).
+	for i := len(a.Units) - 1; i > 1; i-- {
+		if u := a.Units[i]; u.Serial != demo.CheckUnitSerial {
+			if len(u.Runs) == 1 {
+				plan = append(plan, approval{u, "Q. Reviewer", "Quality engineer", 24 * time.Hour})
+			}
+			break
+		}
 	}
 	n := 0
 	for _, p := range plan {

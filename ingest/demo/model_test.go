@@ -71,19 +71,37 @@ func TestScenarioPlanted(t *testing.T) {
 	for _, u := range tr.Units {
 		roles[u.Role]++
 	}
-	want := map[string]int{RoleNormal: 2, RoleElementFault: 2, RoleRetest: 1, RoleMarginal: 1, RoleRangeDrift: 1, RoleOutlier: 1}
+	want := map[string]int{RoleNormal: 2, RoleElementFault: 2, RoleRetest: 1, RoleMarginal: 1, RoleRangeDrift: 1, RoleOutlier: 1, RoleCheck: 1}
 	for role, n := range want {
 		if roles[role] != n {
 			t.Errorf("%d units with role %s; want %d", roles[role], role, n)
 		}
 	}
-	if len(tr.Runs) != 9 {
-		t.Fatalf("%d runs; want 9 (8 units, one retest)", len(tr.Runs))
+	// Nine production runs (8 units, one retest), then the check unit's:
+	// every other day over the production's 8 days (at least three runs).
+	if len(tr.Runs) != 14 || tr.CheckUnit != CheckUnitSerial {
+		t.Fatalf("%d runs, check unit %q; want 9 production runs and 5 of the check unit", len(tr.Runs), tr.CheckUnit)
+	}
+	for _, r := range tr.Runs[9:] {
+		if r.Serial != CheckUnitSerial || r.Started.Hour() != 7 {
+			t.Errorf("check unit run %s %s", r.Serial, r.Started)
+		}
+	}
+	// The range event: the range loss steps up by RangeEventDB from the
+	// run at 90 % of the production runs on (the last of the nine).
+	if tr.RangeStepFrom != 8 || tr.RangeStepDB != RangeEventDB {
+		t.Errorf("range event from run %d by %g dB", tr.RangeStepFrom, tr.RangeStepDB)
+	}
+	for i, r := range tr.Runs[:9] {
+		stepped := r.RangeLossCentreDB > 50.8+0.2
+		if stepped != (i == 8) {
+			t.Errorf("run %d: range loss %.3f dB at centre; the event is run 8", i, r.RangeLossCentreDB)
+		}
 	}
 	// Runs on consecutive days, inside the reference's calibration period.
 	calibrated := time.Date(2026, 1, 15, 0, 0, 0, 0, time.UTC)
 	due := time.Date(2027, 1, 15, 0, 0, 0, 0, time.UTC)
-	for i, r := range tr.Runs {
+	for i, r := range tr.Runs[:9] {
 		day := r.Started.Truncate(24 * time.Hour)
 		if want := firstDay.AddDate(0, 0, i); !day.Equal(want) {
 			t.Errorf("run %d on %s; want %s", i, day.Format(time.DateOnly), want.Format(time.DateOnly))
@@ -107,6 +125,9 @@ func TestScenarioPlanted(t *testing.T) {
 		return m
 	}
 	for ui, u := range tr.Units {
+		if u.Role == RoleCheck {
+			continue
+		}
 		switch u.Role {
 		case RoleRetest:
 			first, last := &tr.Runs[u.Runs[0]], tr.Acceptance(ui)

@@ -18,7 +18,20 @@ type Options struct {
 	// archives did before beam plans; by default the runs name the spec's
 	// beam_plan (each beam by id, with the unit's own passive gain).
 	ExplicitBeams bool
+	// Months spreads the production runs over that many months (30 days
+	// each); 0: one run a day while there are fewer than 330, else over
+	// 330 days.
+	Months int
+	// NoCheckUnit leaves out the station's check unit (measured every
+	// seven days, or at least three times), and NoRangeEvent the planted
+	// range event: the range loss steps up by RangeEventDB from the run at
+	// 90 % of the production runs on (a feed moved and left so).
+	NoCheckUnit  bool
+	NoRangeEvent bool
 }
+
+// RangeEventDB is the planted range event's step of the range loss.
+const RangeEventDB = 0.3
 
 // Limits of the options: more beams than the scenario's 16 beam states
 // would need invented states; fewer than 11 points make no band.
@@ -49,6 +62,8 @@ func (o Options) withDefaults() (Options, error) {
 		return o, fmt.Errorf("demo: %d beams; expected 1 to %d", o.Beams, maxBeams)
 	case o.Points < minPoints || o.Points > maxPoints:
 		return o, fmt.Errorf("demo: %d points; expected %d to %d", o.Points, minPoints, maxPoints)
+	case o.Months < 0 || o.Months > 120:
+		return o, fmt.Errorf("demo: %d months; expected 0 to 120", o.Months)
 	}
 	return o, nil
 }
@@ -184,7 +199,22 @@ func Plan(o Options) (*Truth, error) {
 	if retestUnit >= 0 {
 		totalRuns++
 	}
-	perDay := (totalRuns + 329) / 330
+	days := 330
+	if o.Months > 0 {
+		days = 30 * o.Months
+	}
+	perDay := (totalRuns + days - 1) / days
+	if o.Months > 0 && totalRuns < days {
+		// Fewer runs than days: spread them, a run every few days.
+		perDay = 1
+	}
+	dayStep := 1
+	if o.Months > 0 && totalRuns < days {
+		dayStep = days / totalRuns
+	}
+	if !o.NoRangeEvent && totalRuns > 1 {
+		t.RangeStepDB, t.RangeStepFrom = RangeEventDB, totalRuns*9/10
+	}
 
 	t.Units = make([]UnitTruth, n)
 	t.Runs = make([]RunTruth, 0, totalRuns)
@@ -197,7 +227,7 @@ func Plan(o Options) (*Truth, error) {
 		r := units[i] // copy of the unit's parameters
 		r.Beams = append([]BeamTruth(nil), units[i].Beams...)
 		r.Order = len(t.Runs)
-		day, slot := r.Order/perDay, r.Order%perDay
+		day, slot := r.Order/perDay*dayStep, r.Order%perDay
 		minutes := 8*60 + 30 + slot*(600/perDay)
 		if perDay == 1 {
 			minutes += (r.Order * 17) % 45
@@ -217,7 +247,40 @@ func Plan(o Options) (*Truth, error) {
 			addRun(retestUnit, false)
 		}
 	}
+	if !o.NoCheckUnit {
+		t.planCheckUnit(n)
+	}
 	return t, nil
+}
+
+// planCheckUnit adds the station's check unit: a unit of the lot's make
+// measured at 07:45 every seven days over the production runs' span (at
+// least three times), on its own generator draws so that the production
+// runs stay as they are without it.
+func (t *Truth) planCheckUnit(n int) {
+	model := t.unitModel(n)
+	model.Serial, model.Role = CheckUnitSerial, RoleCheck
+	model.ElementBlock = nil
+	t.CheckUnit = CheckUnitSerial
+	first := firstDay
+	last := t.Runs[len(t.Runs)-1].Started
+	span := int(last.Sub(first).Hours() / 24)
+	step := 7
+	if span < 3*step {
+		step = max(1, span/3)
+	}
+	t.Units = append(t.Units, UnitTruth{Serial: model.Serial, Role: model.Role})
+	for d := 0; d <= span; d += step {
+		r := model
+		r.Beams = append([]BeamTruth(nil), model.Beams...)
+		r.Order = len(t.Runs)
+		r.Started = first.AddDate(0, 0, d).Add(7*time.Hour + 45*time.Minute)
+		r.Dir = "runs/" + r.Serial + "/" + r.Started.Format("2006-01-02T1504")
+		r.Operator = operators[d%len(operators)]
+		t.runModel(&r, false)
+		t.Units[len(t.Units)-1].Runs = append(t.Units[len(t.Units)-1].Runs, len(t.Runs))
+		t.Runs = append(t.Runs, r)
+	}
 }
 
 // unitModel draws the parameters that belong to the unit itself.
@@ -338,10 +401,25 @@ const elementRandomDeg = 2.5
 
 // runModel draws what belongs to one run: the day's ambient, range state
 // and drift, and the planted faults of the run.
+// rangeEventAt says whether run r is at or after the planted range event:
+// a production run from RangeStepFrom on, a check unit's run from that
+// run's start on.
+func (t *Truth) rangeEventAt(r *RunTruth) bool {
+	if r.Role != RoleCheck {
+		return r.Order >= t.RangeStepFrom
+	}
+	return t.RangeStepFrom < len(t.Runs) && !r.Started.Before(t.Runs[t.RangeStepFrom].Started)
+}
+
 func (t *Truth) runModel(r *RunTruth, retestFirst bool) {
+	r.Faults = nil
 	rng := rngFor(t.Options.Seed, purposeRun, uint64(r.Order), 0)
 	r.AmbientC = round(20+5*rng.Float64(), 1)
 	r.RangeLossCentreDB = 50.8 + 0.03*rng.NormFloat64()
+	if t.RangeStepDB != 0 && t.rangeEventAt(r) {
+		r.RangeLossCentreDB += t.RangeStepDB
+		r.Faults = append(r.Faults, fmt.Sprintf("range event: the range loss is %.1f dB higher from this run on (feed moved)", t.RangeStepDB))
+	}
 	r.QuietZoneRippleDB = 0.05
 	r.QuietZoneRipplePeriodHz = 37e6
 	r.QuietZoneRipplePhaseRad = 1.1
@@ -351,7 +429,6 @@ func (t *Truth) runModel(r *RunTruth, retestFirst bool) {
 	}
 	r.DriftSlope = 0.2 * rng.NormFloat64()
 	r.ElementErrorRMSDeg = elementErrorRMS(r.ElementBlock)
-	r.Faults = nil
 	if r.ElementBlock != nil {
 		b := r.ElementBlock
 		r.Faults = append(r.Faults, fmt.Sprintf("element phase error %+.1f deg on rows %d-%d, cols %d-%d",

@@ -25,7 +25,12 @@ const (
 	RoleMarginal     = "marginal"            // receiver noise a little high: close to the limit
 	RoleRangeDrift   = "range-drift"         // the range loss drifts over the station tolerance
 	RoleOutlier      = "outlier"             // a degraded LNA chain: far below the fleet
+	RoleCheck        = "check-unit"          // the range's golden unit, measured now and then
 )
+
+// CheckUnitSerial is the serial of the scenario's check unit (the station's
+// golden unit).
+const CheckUnitSerial = "QDA-GOLD-01"
 
 // Truth is the model behind a demo archive: every parameter the files were
 // synthesized from, so that a test can compare what the tool reduces with
@@ -40,6 +45,12 @@ type Truth struct {
 	ProductTitle string
 	Station      string
 	Reference    string
+	// CheckUnit is the station's check unit ("" when the options leave it
+	// out); RangeStepDB is the planted range event: the range loss steps up
+	// by that much from run RangeStepFrom (in test order, from 0) on.
+	CheckUnit     string
+	RangeStepDB   float64
+	RangeStepFrom int
 
 	// StartHz, StopHz and Points describe the transmission grid;
 	// CentreHz is the frequency the declared passive gain holds at.

@@ -99,6 +99,9 @@ func (w *writer) stationYAML() []byte {
 	fmt.Fprintf(&b, "receiver_match: %s\n", num(t.ReceiverMatch))
 	fmt.Fprintf(&b, "drift_tolerance_db: %s\n", num(t.DriftToleranceDB))
 	fmt.Fprintf(&b, "method_tolerance_db: %s\n", num(t.MethodToleranceDB))
+	if t.CheckUnit != "" {
+		fmt.Fprintf(&b, "check_units: [%s]             # measured now and then: range health charts its G/T\n", t.CheckUnit)
+	}
 	b.WriteString(`csv_formats:                  # how this range's noise figure analyser exports a trace
   ` + nfaFormat + `:
     delimiter: ";"
@@ -608,7 +611,17 @@ func (w *writer) readme() []byte {
 	b.WriteString("  boresight beams also carry the system noise figure NF_sys = N/(kT0) - S21 (dB).\n")
 	fmt.Fprintf(&b, "- Noise: %s dB on |S21|, %s deg on its phase, %.4f dB on the noise traces\n", num(t.S21NoiseDB), num(t.S21PhaseNoiseDeg), t.NoiseTraceDB)
 	fmt.Fprintf(&b, "  (4.343/sqrt(B*tau) with B = %s Hz, tau = %s s); some noise traces are on a coarser grid.\n", num(t.NoiseBandwidthHz), num(t.IntegrationS))
-	b.WriteString("- passive_gain_dbi on the boresight beams is the passive gain at 11.725 GHz (band centre).\n\n")
+	b.WriteString("- passive_gain_dbi on the boresight beams is the passive gain at 11.725 GHz (band centre).\n")
+	if t.RangeStepDB != 0 {
+		fmt.Fprintf(&b, "- Range event: from %s on (run %d in test order) the range loss is %s dB higher, in the reference\n", t.Runs[t.RangeStepFrom].Started.Format("2006-01-02 15:04"), t.RangeStepFrom+1, num(t.RangeStepDB))
+		b.WriteString("  and the unit measurements alike (a moved feed): the units' G/T is unchanged, and health.html\n")
+		b.WriteString("  shows those runs beyond the range chart's control limits.\n")
+	}
+	if t.CheckUnit != "" {
+		fmt.Fprintf(&b, "- Check unit %s (the station's check_units), a unit of the lot's make, measured at 07:45\n", t.CheckUnit)
+		b.WriteString("  every seven days over the production's span (at least three times); it is in no yield.\n")
+	}
+	b.WriteString("\n")
 	b.WriteString("## Units\n\n")
 	b.WriteString("| serial | run | started | role | planted |\n|---|---|---|---|---|\n")
 	for _, r := range t.Runs {
