@@ -202,7 +202,10 @@
     });
   }
 
-  // For paper: no tooltip, no zoom slider, the printed width.
+  // For paper: no tooltip, no zoom slider, the printed size (the style
+  // sheet's 7.6 cm high, 680 px wide: within the text width of A4 and
+  // Letter alike).
+  var printWidth = 680, printHeight = 287;
   function resizeAll(width) {
     charts.forEach(function (c) {
       // A heat map redrawn for paper printed blank (its redraw is not done
@@ -213,7 +216,7 @@
       });
       if (width) { c.dispatchAction({ type: 'hideTip' }); }
       if (zs.length) { c.setOption({ dataZoom: zs }); }
-      c.resize(width ? { width: width } : undefined);
+      c.resize(width ? { width: width, height: printHeight } : undefined);
     });
   }
 
@@ -221,12 +224,12 @@
   Array.prototype.forEach.call(document.querySelectorAll('table.sortable'), sortable);
   Array.prototype.forEach.call(document.querySelectorAll('input.filter-box'), filterBox);
   var printMedia = window.matchMedia ? window.matchMedia('print') : null;
-  function layout() { resizeAll(printMedia && printMedia.matches ? 690 : 0); }
+  function layout() { resizeAll(printMedia && printMedia.matches ? printWidth : 0); }
   window.addEventListener('resize', layout);
   if (printMedia && printMedia.addEventListener) { printMedia.addEventListener('change', layout); }
   // Paper is narrower than most screens: draw the charts at the printed
-  // width (A4 text width at 96 px per inch) while printing.
-  window.addEventListener('beforeprint', function () { resizeAll(690); });
+  // size while printing.
+  window.addEventListener('beforeprint', function () { resizeAll(printWidth); });
   window.addEventListener('afterprint', function () { resizeAll(); });
   document.documentElement.setAttribute('data-charts', String(charts.length));
 }());
