@@ -20,31 +20,34 @@ func fixtureIssueOf(sums []reduce.UnitSummary) func(*reduce.FleetUnit) fleetIssu
 
 func TestIndexIssueColumns(t *testing.T) {
 	f, sums := fixtureFleetAndSummaries(t)
-	// What the fleet does not know, the overview does not show.
-	plain := string(mustIndex(t, f))
-	if strings.Contains(plain, "Report state") || strings.Contains(plain, "Reports:") {
-		t.Error("the overview shows issue columns for a fleet that carries no issue state")
-	}
 	if _, err := loadPages(); err != nil {
 		t.Fatal(err)
 	}
-	v, err := indexModel(f, fixtureIssueOf(sums))
-	if err != nil {
-		t.Fatal(err)
+	index := func(issueOf func(*reduce.FleetUnit) fleetIssue) string {
+		v, err := indexModel(f, issueOf)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := execute("index.tmpl", v)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
 	}
-	b, err := execute("index.tmpl", v)
-	if err != nil {
-		t.Fatal(err)
+	// What the fleet does not know, the overview does not show.
+	plain := index(noFleetIssue)
+	if strings.Contains(plain, "Report state") || strings.Contains(plain, "Reports:") {
+		t.Error("the overview shows issue columns for a fleet that carries no issue state")
 	}
-	page := string(b)
+	page := index(fixtureIssueOf(sums))
 	for _, want := range []string{
 		`<th data-sort="text">Report state</th><th data-sort="num" class="num">Runs</th>`,
 		// KP16-00001: issued R1.
-		`<td data-v="issued EATL-GT-KP16-00001-R1"><span class="tag issue-issued">issued</span> R1<div class="hint">EATL-GT-KP16-00001-R1</div></td><td class="num" data-v="1">1</td>`,
+		`<td data-v="issued EATL-GT-KP16-00001-R1"><span class="tag issue-issued">issued</span><div class="hint">EATL-GT-KP16-00001-R1</div></td><td class="num" data-v="1">1</td>`,
 		// KP16-00010: its R1 void by a retest, a draft of R2; first run passed.
-		`<span class="tag issue-void">void</span> R2<div class="hint">EATL-GT-KP16-00010-R2</div></td><td class="num" data-v="2">2 <span class="tag retest" title="first run PASS">retest</span><div class="hint">first run PASS</div></td>`,
+		`<span class="tag issue-void">void</span><div class="hint">EATL-GT-KP16-00010-R2</div></td><td class="num" data-v="2">2 <span class="tag retest" title="retested: first run PASS">retest</span></td>`,
 		// KP16-00015: three runs, the first failed.
-		`<td class="num" data-v="3">3 <span class="tag retest" title="first run FAIL">retest</span><div class="hint">first run FAIL</div></td>`,
+		`<td class="num" data-v="3">3 <span class="tag retest" title="retested: first run FAIL">retest</span></td>`,
 		// The unit of the other product has no issue state: dashes.
 		`<td data-v=" ">–</td><td class="num" data-v="0">–</td>`,
 		// Counts: 24 units of KU-PANEL-16, every fourth and the 15th issued (7), one void, 16 drafts.
@@ -98,17 +101,14 @@ func TestFleetWorkbookIssueColumns(t *testing.T) {
 	}
 	checkVerdictRules(t, s, "H2:H26")
 	// Without issue states the columns stay, empty.
-	plain := readWorkbook(t, mustFleetWorkbook(t, f)).sheet(t, "Units")
+	none, err := fleetWorkbook(f, noFleetIssue)
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain := readWorkbook(t, none).sheet(t, "Units")
 	if plain.cell(1, 9) != "Issue state" || plain.cell(2, 9) != nil {
 		t.Errorf("a fleet without issue states: header %v, first cell %v", plain.cell(1, 9), plain.cell(2, 9))
 	}
 }
 
-func mustFleetWorkbook(t *testing.T, f *reduce.Fleet) []byte {
-	t.Helper()
-	b, err := FleetWorkbook(f)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return b
-}
+func noFleetIssue(*reduce.FleetUnit) fleetIssue { return fleetIssue{} }
