@@ -203,20 +203,29 @@
   }
 
   // For paper: no tooltip, no zoom slider, the printed size (the style
-  // sheet's 7.6 cm high, 680 px wide: within the text width of A4 and
+  // sheet's 6.8 cm high, 680 px wide: within the text width of A4 and
   // Letter alike).
-  var printWidth = 680, printHeight = 287;
+  var printWidth = 680, printHeight = 257, printHeatHeight = 300;
   function resizeAll(width) {
     charts.forEach(function (c) {
       // A heat map redrawn for paper printed blank (its redraw is not done
-      // when the page is captured): it keeps its drawing.
-      if (width && c.gtpackHeat) { return; }
+      // when the page is captured): it keeps its drawing, zoomed down to
+      // fit the printed width and 8 cm.
+      if (c.gtpackHeat) {
+        var inner = c.getDom().firstChild;
+        var z = Math.min(1, width / c.getWidth(), printHeatHeight / c.getHeight());
+        if (inner) { inner.style.zoom = width && z < 1 ? String(z) : ''; }
+        if (width) { return; }
+      }
       var zs = (c.getOption().dataZoom || []).map(function (z) {
         return z.type === 'slider' ? { show: !width } : {};
       });
       if (width) { c.dispatchAction({ type: 'hideTip' }); }
       if (zs.length) { c.setOption({ dataZoom: zs }); }
       c.resize(width ? { width: width, height: printHeight } : undefined);
+      // Paint now: a page being printed may be captured before the next
+      // animation frame, which would leave the drawing of the old size.
+      c.getZr().flush();
     });
   }
 
