@@ -143,7 +143,7 @@ func certificateOf(u *reduce.Unit) (*certificate, error) {
 	}
 	c.Identity = c.ReportNumber
 	if c.Identity == "" {
-		c.Identity = "Unit " + u.Serial + ", no report number"
+		c.Identity = "Unit " + u.Serial
 		if h := u.Issue.InputsSHA256; h != "" {
 			c.Identity += ", inputs " + h[:min(12, len(h))]
 		}

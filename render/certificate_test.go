@@ -117,11 +117,11 @@ func TestCertificateStates(t *testing.T) {
 			[]string{"Approved by", "ISSUED", "Approval void", "Replaces report"}, nil},
 		{"no laboratory", noLab, stateDraft, false,
 			// No report number: the unit and its inputs identify every page.
-			[]string{`@top-left { content: "Unit KP16-00017, no report number, inputs 9f1c2e5a7b3d";`, `content: "Draft of revision 1";`, "@top-center"},
+			[]string{`@top-left { content: "Unit KP16-00017, inputs 9f1c2e5a7b3d";`, `content: "Draft of revision 1";`, "@top-center"},
 			[]string{`<div class="lab-missing">Laboratory not stated: this report cannot be issued.</div>`,
 				"the laboratory is not stated (the archive has no lab.yaml): this report cannot be issued",
 				`<div class="report-number">No report number</div>`,
-				"End of report Unit KP16-00017, no report number, inputs 9f1c2e5a7b3d (DRAFT, not issued)"},
+				"End of report Unit KP16-00017, inputs 9f1c2e5a7b3d (DRAFT, not issued)"},
 			[]string{"EATL-GT-", "Approved by", "ISSUED", "A. Example"}, nil},
 		{"no issue state", blank, stateDraft, false,
 			[]string{`content: "Draft";`, "@top-center"},
