@@ -91,6 +91,7 @@ func (a *Archive) Full(r *Run) (*Run, error) {
 		return nil, err
 	}
 	full.Source = in
+	resolveBeams(a.Root, a.Specs[full.Product], full)
 	rootRelative(full)
 	if full.Serial != r.Serial || !full.Started.Equal(r.Started) {
 		return nil, Problemf(r.File, full.KeyLines["serial"], "names serial %s started %s, but named %s started %s when the archive was opened; expected the file not to change during a build",
@@ -154,7 +155,7 @@ func open(root string, lean bool) (*Archive, error) {
 				refusedRefs[ref.ID] = rel
 				return p
 			}
-			tt, err := readReferenceTable(bytes.NewReader(tdata), tf)
+			tt, err := readReferenceTableCSV(tdata, tf, ref.TableCSV)
 			if err != nil {
 				refusedRefs[ref.ID] = rel
 				return err
@@ -210,6 +211,9 @@ func open(root string, lean bool) (*Archive, error) {
 			continue
 		}
 		r := parsed.run
+		if !r.lean {
+			resolveBeams(a.Root, a.Specs[r.Product], r)
+		}
 		rootRelative(r)
 		var probs []*Problem
 		check := func(key, kind, id, folder string, known bool, refused map[string]string) {
@@ -536,6 +540,7 @@ func SortProblems(ps []*Problem) []*Problem {
 type archiveFS struct {
 	root     string
 	realRoot string
+	lines    runLines // of the data files a run.yaml names (Load: one archiveFS a run)
 }
 
 func newArchiveFS(root string) *archiveFS {
@@ -593,11 +598,15 @@ func (f *archiveFS) resolve(rel string) (string, string) {
 func (f *archiveFS) read(rel, from string, line int) ([]byte, InputFile, *Problem) {
 	full, why := f.resolve(rel)
 	if why == "" {
-		data, st, err := readStable(full)
-		if err == nil {
+		var data []byte
+		var st FileStat
+		data, st, why = readStableLimited(full, rel)
+		if why == "" && path.Base(from) == "run.yaml" {
+			why = f.lines.take(data)
+		}
+		if why == "" {
 			return data, inputOf(rel, data, st), nil
 		}
-		why = fmt.Sprintf("cannot be read (%v)", err)
 	}
 	if from == "" {
 		return nil, InputFile{}, Problemf(rel, 0, "file %s", why)

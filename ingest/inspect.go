@@ -22,11 +22,15 @@ var touchstoneExt = regexp.MustCompile(`(?i)\.(s\d+p|ts)$`)
 // spec by its folder (stations/, references/, specs/); .md is notes. A reference's
 // table_file is read relative to the reference, inside the folder above
 // references/ (the archive root). A refused file is the error, with its
-// file and line.
+// file and line. The limits of a build hold (limits.go): a file larger
+// than its size limit is refused before it is read.
 func Inspect(path string) (string, any, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
+	if _, err := os.Stat(path); err != nil {
 		return "", nil, err
+	}
+	data, why := readBounded(path, filepath.ToSlash(path))
+	if why != "" {
+		return "", nil, Problemf(path, 0, "file %s", why)
 	}
 	base := filepath.Base(path)
 	folder := filepath.Base(filepath.Dir(path))
@@ -53,7 +57,23 @@ func Inspect(path string) (string, any, error) {
 			if err != nil {
 				return "", nil, err
 			}
-			return describeRun(r), runJSON(r), nil
+			// The beams as a build resolves them: against the beam_plan of
+			// the spec in the archive around the run, with the files
+			// found in the run's folder.
+			specFile := ""
+			if root := archiveRootOf(filepath.Dir(path)); root != "" {
+				sp := filepath.Join(root, "specs", r.Product+".yaml")
+				if sdata, why := readBounded(sp, filepath.ToSlash(sp)); why == "" {
+					if spec, err := ParseSpec(sdata, sp); err == nil {
+						specFile = sp
+						resolveBeams("", spec, r)
+					}
+				}
+			}
+			if specFile == "" {
+				resolveBeams("", nil, r)
+			}
+			return describeRun(r, specFile), runJSON(r), nil
 		case folder == "stations":
 			s, err := ParseStation(data, path)
 			if err != nil {
@@ -93,7 +113,11 @@ func Inspect(path string) (string, any, error) {
 }
 
 func inspectCSV(path string, data []byte) (string, any, error) {
-	header, _, err := newCSVLines(bytes.NewReader(data), path).next()
+	c := newCSVReader(data, path, nil)
+	if ln := c.peekLine(); ln != nil {
+		c.delim = detectDelimiter(ln)
+	}
+	header, _, err := c.next()
 	if err == nil && len(header) > 0 {
 		switch strings.ToLower(header[0]) {
 		case "row":
@@ -349,12 +373,13 @@ type beamJSON struct {
 	Transmission   string      `json:"transmission"`
 	Noise          []noiseJSON `json:"noise"`
 	PassiveGainDBi *float64    `json:"passive_gain_dbi,omitempty"`
+	FromPlan       bool        `json:"from_plan,omitempty"`
 }
 
 func runJSON(r *Run) any {
 	beams := make([]beamJSON, len(r.Beams))
 	for i, b := range r.Beams {
-		bj := beamJSON{ID: b.ID, ThetaDeg: b.ThetaDeg, PhiDeg: b.PhiDeg, Polarization: b.Polarization, Transmission: b.Transmission, PassiveGainDBi: b.PassiveGainDBi}
+		bj := beamJSON{ID: b.ID, ThetaDeg: b.ThetaDeg, PhiDeg: b.PhiDeg, Polarization: b.Polarization, Transmission: b.Transmission, PassiveGainDBi: b.PassiveGainDBi, FromPlan: b.FromPlan}
 		for _, n := range b.Noise {
 			bj.Noise = append(bj.Noise, noiseJSON{n.File, n.Quantity, n.NoiseBandwidthHz, n.IntegrationS})
 		}
@@ -383,7 +408,33 @@ func runJSON(r *Run) any {
 		rangeRef{r.RangePre, r.RangePost, r.RangeParameter}, beams, r.Elements, r.Notes}
 }
 
-func describeRun(r *Run) string {
+// archiveRootOf is the nearest folder at or above dir that holds specs/,
+// "" when there is none.
+func archiveRootOf(dir string) string {
+	for i := 0; i < 32; i++ {
+		if st, err := os.Stat(filepath.Join(dir, "specs")); err == nil && st.IsDir() {
+			return dir
+		}
+		up := filepath.Dir(dir)
+		if up == dir {
+			break
+		}
+		dir = up
+	}
+	return ""
+}
+
+func csvText(c *CSVRef) string {
+	switch {
+	case c == nil:
+		return ""
+	case c.Name != "":
+		return ", csv " + c.Name
+	}
+	return ", csv mapping"
+}
+
+func describeRun(r *Run, specFile string) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s: run of %s (%s), started %s by %s at %g degC\n", r.File, r.Serial, r.Product, r.Started.Format("2006-01-02T15:04:05Z07:00"), r.Operator, r.AmbientC)
 	fmt.Fprintf(&b, "station %s, reference %s\n", r.Station, r.Reference)
@@ -392,12 +443,35 @@ func describeRun(r *Run) string {
 		fmt.Fprintf(&b, ", post %s", r.RangePost)
 	}
 	fmt.Fprintf(&b, " (%s)\n", r.RangeParameter)
+	switch {
+	case specFile != "" && r.noBeams:
+		fmt.Fprintf(&b, "beams: every beam of the beam_plan in %s\n", specFile)
+	case specFile != "":
+		fmt.Fprintf(&b, "beams: as run.yaml lists them, each of the beam_plan in %s inheriting from it\n", specFile)
+	}
 	for _, bm := range r.Beams {
-		fmt.Fprintf(&b, "  beam %s: theta %g deg, phi %g deg, transmission %s", bm.ID, bm.ThetaDeg, bm.PhiDeg, bm.Transmission)
-		for _, n := range bm.Noise {
-			fmt.Fprintf(&b, ", noise %s (%s)", n.File, n.Quantity)
+		from := ""
+		if bm.FromPlan {
+			from = " (plan)"
 		}
-		b.WriteString("\n")
+		tr := bm.Transmission
+		if tr == "" {
+			tr = "(none found)"
+		}
+		fmt.Fprintf(&b, "  beam %s%s: theta %g deg, phi %g deg", bm.ID, from, bm.ThetaDeg, bm.PhiDeg)
+		if bm.Polarization != "" {
+			fmt.Fprintf(&b, ", polarization %s", bm.Polarization)
+		}
+		if bm.PassiveGainDBi != nil {
+			fmt.Fprintf(&b, ", passive gain %g dBi", *bm.PassiveGainDBi)
+		}
+		fmt.Fprintf(&b, "\n    transmission %s%s\n", tr, csvText(bm.TransmissionCSV))
+		for _, n := range bm.Noise {
+			fmt.Fprintf(&b, "    noise %s (%s%s)\n", n.File, n.Quantity, csvText(n.CSV))
+		}
+	}
+	for _, kp := range r.resolved {
+		fmt.Fprintf(&b, "problem: %s\n", kp.p.Error())
 	}
 	if r.Elements != "" {
 		fmt.Fprintf(&b, "elements %s\n", r.Elements)

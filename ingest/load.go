@@ -41,8 +41,12 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 	if r.lean {
 		return nil, []*Problem{Problemf(r.File, 0, "internal: this run was discovered without its beams (OpenLean); expected the whole run from Archive.Full")}
 	}
-	l := &loader{fs: newArchiveFS(a.Root), run: r, inputs: map[string]InputFile{}}
-	d := &RunData{Beams: make([]BeamData, len(r.Beams))}
+	l := &loader{fs: newArchiveFS(a.Root), run: r, inputs: map[string]InputFile{}, station: a.Stations[r.Station], causes: map[string]*Problem{}}
+	d := &RunData{Beams: make([]BeamData, len(r.Beams)), Causes: l.causes}
+	for _, kp := range r.resolved {
+		l.problems = append(l.problems, kp.p)
+		l.causes[kp.key] = kp.p
+	}
 
 	// The run.yaml and the shared documents are not read again: their
 	// inputs are the bytes that were parsed.
@@ -55,25 +59,30 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 	}
 
 	if r.RangePre != "" {
-		d.RangePre = l.transmission(r.RangePre, "range_reference.pre")
+		d.RangePre = l.transmission(r.RangePre, r.RangePreCSV, "range_reference.pre")
 	}
 	if r.RangePost != "" {
-		d.RangePost = l.transmission(r.RangePost, "range_reference.post")
+		d.RangePost = l.transmission(r.RangePost, r.RangePostCSV, "range_reference.post")
 	}
 	for i, b := range r.Beams {
 		key := fmt.Sprintf("beams[%d]", i)
 		if b.Transmission != "" {
-			d.Beams[i].Transmission = l.transmission(b.Transmission, key+".transmission")
+			d.Beams[i].Transmission = l.transmission(b.Transmission, b.TransmissionCSV, key+".transmission")
 		}
 		d.Beams[i].Noise = make([]*Trace, len(b.Noise))
 		for k, n := range b.Noise {
-			data, ok := l.read(n.File, fmt.Sprintf("%s.noise[%d].file", key, k))
+			nk := fmt.Sprintf("%s.noise[%d].file", key, k)
+			format, ok := l.format(n.CSV, nk)
 			if !ok {
 				continue
 			}
-			t, err := ReadTrace(bytes.NewReader(data), n.File)
+			data, ok := l.read(n.File, nk)
+			if !ok {
+				continue
+			}
+			t, _, err := readTrace(data, n.File, traceSpec{quantity: n.Quantity, format: format, where: "the noise entry in " + l.entryFile(n.CSV)})
 			if err != nil {
-				l.problems = append(l.problems, Problems(err)...)
+				l.refuse(nk, Problems(err))
 				continue
 			}
 			d.Beams[i].Noise[k] = t
@@ -81,7 +90,7 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 	}
 	if r.Elements != "" {
 		if data, ok := l.read(r.Elements, "elements"); ok {
-			els, err := ReadElements(bytes.NewReader(data), r.Elements)
+			els, err := readElements(data, r.Elements)
 			if err != nil {
 				l.problems = append(l.problems, Problems(err)...)
 			} else {
@@ -113,9 +122,62 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 type loader struct {
 	fs       *archiveFS
 	run      *Run
+	station  *Station
 	inputs   map[string]InputFile
 	absent   map[string]bool
 	problems []*Problem
+	causes   map[string]*Problem
+}
+
+// refuse records the problems that refused the file of a run.yaml key;
+// the first is its cause.
+func (l *loader) refuse(key string, ps []*Problem) {
+	l.problems = append(l.problems, ps...)
+	if len(ps) > 0 && l.causes[key] == nil {
+		l.causes[key] = ps[0]
+	}
+}
+
+// entryFile is the YAML file where a csv: mapping of a data file goes.
+func (l *loader) entryFile(ref *CSVRef) string {
+	if ref != nil && ref.Name != "" && l.station != nil {
+		return l.station.File + " (csv_formats: " + ref.Name + ")"
+	}
+	return l.run.File
+}
+
+// format returns the layout of a data file: nil for the contract's form,
+// the mapping, or the station's csv_formats entry of that name. ok is
+// false when a name cannot be found (reported here, or, for a station
+// that is unknown or refused, by discovery: the file is not read).
+func (l *loader) format(ref *CSVRef, key string) (*CSVFormat, bool) {
+	if ref == nil {
+		return nil, true
+	}
+	if ref.Format != nil {
+		return ref.Format, true
+	}
+	if l.station == nil {
+		return nil, false
+	}
+	if f := l.station.CSVFormats[ref.Name]; f != nil {
+		return f, true
+	}
+	var names []string
+	for n := range l.station.CSVFormats {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	known := "it has none"
+	if len(names) > 0 {
+		known = "it has " + strings.Join(names, ", ")
+	}
+	line := ref.Line
+	if line == 0 {
+		line = l.run.KeyLines[key]
+	}
+	l.refuse(key, []*Problem{Problemf(l.run.File, line, "%s: csv format %q is not in the csv_formats of station %s (%s; %s); expected one of its names, or a csv: mapping", key, ref.Name, l.station.ID, l.station.File, known)})
+	return nil, false
 }
 
 // read returns a data file named by the run.yaml key, and lists it among
@@ -124,7 +186,7 @@ func (l *loader) read(rel, key string) ([]byte, bool) {
 	data, in, p := l.fs.read(rel, l.run.File, l.run.KeyLines[key])
 	if p != nil {
 		p.Message = key + ": " + p.Message
-		l.problems = append(l.problems, p)
+		l.refuse(key, []*Problem{p})
 		if l.absent == nil {
 			l.absent = map[string]bool{}
 		}
@@ -135,27 +197,40 @@ func (l *loader) read(rel, key string) ([]byte, bool) {
 	return data, true
 }
 
-func (l *loader) transmission(rel, key string) *Transmission {
+func (l *loader) transmission(rel string, ref *CSVRef, key string) *Transmission {
+	isCSV := strings.EqualFold(path.Ext(rel), ".csv")
+	if ref != nil && !isCSV {
+		line := ref.Line
+		if line == 0 {
+			line = l.run.KeyLines[key]
+		}
+		l.refuse(key, []*Problem{Problemf(l.run.File, line, "%s: csv: is given for %s, which is not a .csv file; expected csv: only beside a CSV file (a Touchstone file needs none)", key, rel)})
+		return nil
+	}
+	format, ok := l.format(ref, key)
+	if !ok {
+		return nil
+	}
 	data, ok := l.read(rel, key)
 	if !ok {
 		return nil
 	}
-	if strings.EqualFold(path.Ext(rel), ".csv") {
-		t, err := ReadTrace(bytes.NewReader(data), rel)
+	if isCSV {
+		t, _, err := readTrace(data, rel, traceSpec{quantity: "s21", format: format, where: "the file's entry in " + l.entryFile(ref) + " ({file, csv})"})
 		if err != nil {
-			l.problems = append(l.problems, Problems(err)...)
+			l.refuse(key, Problems(err))
 			return nil
 		}
 		return &Transmission{File: rel, FrequencyHz: t.FrequencyHz, ParameterDB: t.Values}
 	}
 	n, err := ReadTouchstone(bytes.NewReader(data), rel)
 	if err != nil {
-		l.problems = append(l.problems, Problems(err)...)
+		l.refuse(key, Problems(err))
 		return nil
 	}
 	line := l.run.KeyLines[key]
 	if n.Ports < 2 {
-		l.problems = append(l.problems, Problemf(l.run.File, line, "%s: %s has %d port; expected a transmission file with at least 2 ports (it must hold %s)", key, rel, n.Ports, l.run.RangeParameter))
+		l.refuse(key, []*Problem{Problemf(l.run.File, line, "%s: %s has %d port; expected a transmission file with at least 2 ports (it must hold %s)", key, rel, n.Ports, l.run.RangeParameter)})
 		return nil
 	}
 	param := l.run.RangeParameter
@@ -164,14 +239,14 @@ func (l *loader) transmission(rel, key string) *Transmission {
 	}
 	i, j, ok := sParameterPorts(param)
 	if !ok || i > n.Ports || j > n.Ports {
-		l.problems = append(l.problems, Problemf(l.run.File, line, "%s: %s has %d ports, so it holds no %s; expected a file with that parameter", key, rel, n.Ports, param))
+		l.refuse(key, []*Problem{Problemf(l.run.File, line, "%s: %s has %d ports, so it holds no %s; expected a file with that parameter", key, rel, n.Ports, param)})
 		return nil
 	}
 	t := &Transmission{File: rel, FrequencyHz: append([]float64(nil), n.FrequencyHz...), ParameterDB: make([]float64, len(n.FrequencyHz))}
 	for k := range n.FrequencyHz {
 		m := cmplx.Abs(n.At(k, i-1, j-1))
 		if !(m > 0) || math.IsInf(m, 0) {
-			l.problems = append(l.problems, Problemf(rel, 0, "%s is %v at %g Hz; expected a measured, non-zero transmission", param, m, n.FrequencyHz[k]))
+			l.refuse(key, []*Problem{Problemf(rel, 0, "%s is %v at %g Hz; expected a measured, non-zero transmission", param, m, n.FrequencyHz[k])})
 			return nil
 		}
 		t.ParameterDB[k] = 20 * math.Log10(m)

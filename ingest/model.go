@@ -130,6 +130,55 @@ type Station struct {
 	DriftToleranceDB  float64           `yaml:"drift_tolerance_db"`
 	MethodToleranceDB float64           `yaml:"method_tolerance_db"`
 	Uncertainty       []UncertaintyTerm `yaml:"uncertainty"`
+	// CSVFormats are the station's named csv: mappings (csv_formats), which
+	// a run on this station names with csv: NAME.
+	CSVFormats map[string]*CSVFormat `yaml:"-"`
+}
+
+// CSVFormat is a csv: mapping: how an instrument's or a spreadsheet's CSV
+// file is laid out (contract, "Data files"). The zero value reads the
+// contract's own form: the delimiter detected from the header line,
+// decimal points, "#" and "!" comment lines, the header on the first line,
+// the frequency in column 1 with its unit in the header, the value in
+// column 2.
+type CSVFormat struct {
+	// Delimiter is ',', ';' or '\t'; 0 detects it from the header line.
+	Delimiter byte
+	// Decimal is the decimal separator, '.' or ','; 0 is '.'.
+	Decimal byte
+	// Comment is the prefix of comment lines; "" is "#" and "!".
+	Comment string
+	// SkipLines are the lines before the header row.
+	SkipLines int
+	// UnitsRow: a row of units follows the header.
+	UnitsRow bool
+	// FrequencyColumn, ValueColumn and UncertaintyColumn (a reference
+	// table's) choose columns by header text or number; zero: 1, 2, 3.
+	FrequencyColumn   CSVColumn
+	ValueColumn       CSVColumn
+	UncertaintyColumn CSVColumn
+	// FrequencyUnit is hz, khz, mhz or ghz, for a header that does not
+	// say; "" when it does.
+	FrequencyUnit string
+	// Line is where the mapping is written (its YAML file's line).
+	Line int
+}
+
+// CSVColumn is a column of a CSV file: by its header text, or by its
+// number counted from 1. The zero value is the column's default.
+type CSVColumn struct {
+	Name   string
+	Number int
+}
+
+// CSVRef is the csv: of a data file: a mapping (Format), or the name of
+// one of the run's station's csv_formats (Name; Format is nil until Load
+// finds it).
+type CSVRef struct {
+	Name   string
+	Format *CSVFormat
+	// Line is the line of csv: in its YAML file.
+	Line int
 }
 
 // ReferencePoint is one row of a reference antenna's calibration table.
@@ -156,7 +205,9 @@ type Reference struct {
 	// TableFile is the CSV the table came from, relative to the archive
 	// root, or "" for an inline table.
 	TableFile string
-	Table     []ReferencePoint
+	// TableCSV is the csv: of TableFile, nil for the contract's form.
+	TableCSV *CSVFormat
+	Table    []ReferencePoint
 }
 
 // BeamSelector chooses the beams a limit applies to: by id, or by scan
@@ -208,6 +259,25 @@ type Spec struct {
 	// Customer is who the product's units are tested for (optional; a
 	// run's customer overrides it).
 	Customer *Customer
+	// BeamPlan is the beams every unit is measured in (optional).
+	BeamPlan *BeamPlan
+}
+
+// BeamPlan is a spec's beam_plan: the beams of the product, and where a
+// run finds each beam's files ({beam} stands for the beam id).
+type BeamPlan struct {
+	// Transmission is a glob in the run folder that must match exactly
+	// one file; "" when the plan names none.
+	Transmission    string
+	TransmissionCSV *CSVRef
+	// Noise are noise entries whose File has {beam}; each whose file is
+	// in the run folder is used.
+	Noise []NoiseInput
+	// Beams are the plan's beams; Line is their line in the spec.
+	Beams []Beam
+	// Line is the line of beam_plan in the spec, FilesLine of its files.
+	Line      int
+	FilesLine int
 }
 
 // NoiseInput names one noise trace of a beam.
@@ -218,19 +288,38 @@ type NoiseInput struct {
 	Quantity         string
 	NoiseBandwidthHz *float64
 	IntegrationS     *float64
-	Line             int
+	// CSV is how the file is laid out, nil for the contract's form.
+	CSV  *CSVRef
+	Line int
 }
 
 // Beam is one beam state of a run.
 type Beam struct {
-	ID             string
-	ThetaDeg       float64
-	PhiDeg         float64
-	Polarization   string
-	Transmission   string
-	Noise          []NoiseInput
-	PassiveGainDBi *float64
-	Line           int
+	ID           string
+	ThetaDeg     float64
+	PhiDeg       float64
+	Polarization string
+	Transmission string
+	// TransmissionCSV is the csv: of a CSV transmission file, nil for
+	// the contract's form.
+	TransmissionCSV *CSVRef
+	Noise           []NoiseInput
+	PassiveGainDBi  *float64
+	Line            int
+	// FromPlan says the beam is one of the spec's beam_plan (its keys
+	// that the run's entry does not set come from there).
+	FromPlan bool
+
+	// given holds the keys the beam's entry sets (beamKey bits), so that
+	// a run's entry inherits the others from the plan; lines are the
+	// lines of its files in the entry's YAML file.
+	given beamKeys
+	lines beamLines
+}
+
+type beamLines struct {
+	transmission int
+	noise        []int
 }
 
 // Run is one run.yaml: one test run of one unit.
@@ -253,7 +342,13 @@ type Run struct {
 	RangePre       string
 	RangePost      string
 	RangeParameter string // S21 unless stated
-	Beams          []Beam
+	// RangePreCSV and RangePostCSV are the csv: of CSV reference
+	// measurements, nil for the contract's form.
+	RangePreCSV  *CSVRef
+	RangePostCSV *CSVRef
+	// Beams are the run's beams as resolved against the spec's beam_plan
+	// (Open and Full resolve them; ParseRun gives them as written).
+	Beams []Beam
 	// Elements and Notes are relative to the archive root, or "".
 	Elements string
 	Notes    string
@@ -273,6 +368,12 @@ type Run struct {
 	// lean marks a run that OpenLean holds without its beams and with only
 	// the key lines discovery reports on; Archive.Full reads it whole.
 	lean bool
+	// noBeams: the run.yaml has no beams key (it measured the plan).
+	noBeams bool
+	// resolved holds what resolving the beams against the plan found
+	// wrong (a glob that matches no file, a beam of the run alone that
+	// is not complete); Load reports it.
+	resolved []keyedProblem
 }
 
 // Lean says whether r is held without its beams (see OpenLean).
@@ -317,6 +418,11 @@ type RunData struct {
 	// and the run.yaml are those discovery parsed (Archive.Documents,
 	// Run.Source): the bytes the reduction used are the bytes hashed.
 	Inputs []InputFile
+	// Causes holds, by run.yaml key path ("beams[0].transmission",
+	// "beams[0].noise[1].file", "range_reference.pre"), the problem that
+	// refused that key's file (or found none), so that reduce names what
+	// follows from it under that problem rather than as another.
+	Causes map[string]*Problem
 	// Absent lists the files the run names that could not be read
 	// (missing, a link out of the archive, not a regular file, no
 	// permission), sorted: a build must redo the unit when one of them

@@ -40,13 +40,15 @@ func (s FileStat) Trusted() bool { return s.ChangeNS != 0 }
 // one before the read would leave every stat field as it was read.
 const racyWindow = 2 * time.Second
 
-// readStable reads the file at full (a path on disk) whole and returns
-// its bytes with the stat taken before the read. A file that changes while
+// readStable reads the file at full (a path on disk) whole, when it holds
+// at most limit bytes (a *tooLargeError otherwise, before it is read or as
+// soon as it grows past), and returns its bytes with the stat taken before
+// the read. A file that changes while
 // it is read (its stat after the read differs from the one before, or the
 // bytes read are not its size) is read again, up to three times, then
 // refused: the bytes returned are always the bytes of one version of the
 // file, and the stat is one that version had.
-func readStable(full string) ([]byte, FileStat, error) {
+func readStable(full string, limit int64) ([]byte, FileStat, error) {
 	for attempt := 0; attempt < 3; attempt++ {
 		now := time.Now()
 		f, err := os.Open(full)
@@ -59,8 +61,12 @@ func readStable(full string) ([]byte, FileStat, error) {
 			return nil, FileStat{}, err
 		}
 		before := statOf(fi)
+		if before.Size > limit {
+			f.Close()
+			return nil, FileStat{}, &tooLargeError{before.Size}
+		}
 		data := make([]byte, 0, before.Size+1)
-		data, err = readAll(f, data)
+		data, err = readAll(f, data, limit)
 		if err != nil {
 			f.Close()
 			return nil, FileStat{}, err
@@ -82,14 +88,18 @@ func readStable(full string) ([]byte, FileStat, error) {
 	return nil, FileStat{}, fmt.Errorf("changed while it was read, three times over; expected it to stay as it is during a build")
 }
 
-// readAll reads r to its end into buf.
-func readAll(r io.Reader, buf []byte) ([]byte, error) {
+// readAll reads r to its end into buf, and stops past limit bytes (a
+// file that grew while it was read).
+func readAll(r io.Reader, buf []byte, limit int64) ([]byte, error) {
 	for {
 		if len(buf) == cap(buf) {
 			buf = append(buf, 0)[:len(buf)]
 		}
 		n, err := r.Read(buf[len(buf):cap(buf)])
 		buf = buf[:len(buf)+n]
+		if int64(len(buf)) > limit {
+			return nil, &tooLargeError{int64(len(buf))}
+		}
 		if err == io.EOF {
 			return buf, nil
 		}
@@ -126,8 +136,8 @@ func (a *Archive) Recheck(in InputFile) (now InputFile, same bool) {
 			return in, true
 		}
 	}
-	data, st, err := readStable(full)
-	if err != nil {
+	data, st, why := readStableLimited(full, in.Path)
+	if why != "" {
 		return InputFile{}, false
 	}
 	now = inputOf(in.Path, data, st)

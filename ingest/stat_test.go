@@ -19,7 +19,7 @@ func TestRecheck(t *testing.T) {
 	if err := os.WriteFile(p, []byte("# Hz S RI R 50\n1e9 1 0 0 0 0 0 1 0\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	data, st, err := readStable(p)
+	data, st, err := readStable(p, 1<<20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -110,7 +110,7 @@ func TestReadStableRefusesAFileThatKeepsChanging(t *testing.T) {
 	deadline := time.Now().Add(5 * time.Second)
 	refused := false
 	for time.Now().Before(deadline) && !refused {
-		data, st, err := readStable(p)
+		data, st, err := readStable(p, 1<<20)
 		if err != nil {
 			refused = true
 			break

@@ -449,11 +449,17 @@ func (t *tsReader) keyword(b []byte) error {
 		if v < 1 {
 			return t.errf(t.line, "[Number of Frequencies] must be at least 1")
 		}
+		if v > MaxTracePoints {
+			return pointLimit(t.name, t.line, v, "[Number of Frequencies]")
+		}
 		t.nfreq, t.nfreqLine = v, t.line
 	case "number of noise frequencies":
 		v, err := count()
 		if err != nil {
 			return err
+		}
+		if v > MaxTracePoints {
+			return pointLimit(t.name, t.line, v, "[Number of Noise Frequencies]")
 		}
 		t.nnoise, t.nnoiseLine = v, t.line
 	case "reference":
@@ -1094,6 +1100,9 @@ func (t *tsReader) completeRecord(v []float64) error {
 		if t.version == 1 {
 			rn *= real(t.z0[0])
 		}
+		if len(n.Noise) >= MaxTracePoints {
+			return pointLimit(t.name, t.recStart, len(n.Noise)+1, "noise point")
+		}
 		n.Noise = append(n.Noise, NoisePoint{
 			FrequencyHz:                 v[0] * t.unit,
 			MinNoiseFigureDB:            v[1],
@@ -1114,13 +1123,20 @@ func (t *tsReader) completeRecord(v []float64) error {
 		return t.errf(t.recStart, "frequency point %d is more than the %d declared by [Number of Frequencies] at line %d", len(n.FrequencyHz)+1, t.nfreq, t.nfreqLine)
 	}
 	N := t.ports
+	if len(n.FrequencyHz) >= MaxTracePoints {
+		return pointLimit(t.name, t.recStart, len(n.FrequencyHz)+1, "frequency point")
+	}
+	if (len(n.FrequencyHz)+1)*N*N > MaxNetworkValues {
+		return t.errf(t.recStart, "frequency point %s of this %d-port file takes it past %s S-parameter values (ports squared times frequencies); expected at most %s, %s points of a %d-port file (the reader holds every value; see the README's limits)",
+			groupDigits(int64(len(n.FrequencyHz)+1)), N, groupDigits(MaxNetworkValues), groupDigits(MaxNetworkValues), groupDigits(int64(MaxNetworkValues/(N*N))), N)
+	}
 	if len(n.FrequencyHz) == 0 && t.sizeHint > 0 && t.nfreq < 0 {
 		// Estimate the point count from the size of this first point. The
 		// estimate is bounded by the input's size: a point takes at least
 		// two bytes a value.
 		per := max(t.consumed-t.recByte, int64(2*len(v)))
 		est := (t.sizeHint-t.recByte)/per + 1
-		est = min(est+est/8, 1<<24/int64(N*N)) // points differ in length a little
+		est = min(est+est/8, int64(MaxNetworkValues/(N*N)), MaxTracePoints) // points differ in length a little
 		if est > 1 {
 			n.FrequencyHz = make([]float64, 0, est)
 			n.S = make([]complex128, 0, est*int64(N*N))

@@ -8,144 +8,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
-	"unicode"
-	"unicode/utf8"
 )
-
-// The CSV files of the archive (traces, elements.csv, reference tables) are
-// deliberately simpler than RFC 4180: comma-separated, no quoting, `#`
-// starts a comment line, blank lines are ignored, CRLF or LF, an optional
-// UTF-8 byte-order mark. Anything else is refused with the line it is on.
-
-// maxLineBytes bounds one CSV line, so that a binary file given by mistake
-// is refused instead of being held in memory whole.
-const maxLineBytes = 1 << 20
-
-// csvLines yields the non-comment, non-blank lines of a CSV file, split
-// into trimmed fields, with their 1-based line numbers. The slice of
-// fields is reused by the next line (the strings in it are not).
-type csvLines struct {
-	sc     *bufio.Scanner
-	name   string
-	line   int
-	fields []string
-}
-
-func newCSVLines(r io.Reader, name string) *csvLines {
-	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 0, 64*1024), maxLineBytes)
-	return &csvLines{sc: sc, name: name}
-}
-
-// next returns the fields of the next data line, or io.EOF.
-func (c *csvLines) next() ([]string, int, error) {
-	for c.sc.Scan() {
-		c.line++
-		text := c.sc.Text()
-		if c.line == 1 {
-			text = strings.TrimPrefix(text, "\ufeff")
-		}
-		text = strings.TrimSuffix(text, "\r")
-		t := strings.TrimSpace(text)
-		if t == "" || strings.HasPrefix(t, "#") {
-			continue
-		}
-		if !utf8.ValidString(t) {
-			return nil, c.line, Problemf(c.name, c.line, "line is not UTF-8 text; expected a comma-separated text line")
-		}
-		// strings.Split, into the slice of the previous line.
-		fields := c.fields[:0]
-		for {
-			f, rest, more := strings.Cut(t, ",")
-			fields = append(fields, strings.TrimSpace(f))
-			if !more {
-				break
-			}
-			t = rest
-		}
-		c.fields = fields
-		return fields, c.line, nil
-	}
-	if err := c.sc.Err(); err != nil {
-		if errors.Is(err, bufio.ErrTooLong) {
-			return nil, c.line + 1, Problemf(c.name, c.line+1, "line longer than %d bytes; expected a comma-separated text line", maxLineBytes)
-		}
-		return nil, c.line, Problemf(c.name, 0, "read error: %v", err)
-	}
-	return nil, c.line, io.EOF
-}
-
-// frequencyUnits maps the header names of the frequency column to the power
-// of ten that turns them into hertz.
-var frequencyUnits = map[string]int{
-	"frequency_hz":  0,
-	"frequency_khz": 3,
-	"frequency_mhz": 6,
-	"frequency_ghz": 9,
-}
-
-// ReadTrace reads a trace CSV of the archive contract: a header
-// `frequency_<hz|khz|mhz|ghz>,<value column>`, then one frequency and one
-// value per line, frequencies positive and strictly increasing. It stops at
-// the first mistake and returns it as a *Problem naming name and the line.
-func ReadTrace(r io.Reader, name string) (*Trace, error) {
-	lines := newCSVLines(r, name)
-	header, hl, err := lines.next()
-	if err == io.EOF {
-		return nil, Problemf(name, 0, "file is empty; expected a header frequency_<hz|khz|mhz|ghz>,<value column> and data lines")
-	}
-	if err != nil {
-		return nil, err
-	}
-	if len(header) != 2 {
-		return nil, Problemf(name, hl, "header %q has %d fields; expected 2: frequency_<hz|khz|mhz|ghz>,<value column>", strings.Join(header, ","), len(header))
-	}
-	exp, ok := frequencyUnits[strings.ToLower(header[0])]
-	if !ok {
-		return nil, Problemf(name, hl, "first header field %q is not a frequency column; expected frequency_hz, frequency_khz, frequency_mhz or frequency_ghz", header[0])
-	}
-	if header[1] == "" {
-		return nil, Problemf(name, hl, "second header field is empty; expected the name of the value column")
-	}
-	if strings.IndexFunc(header[1], unicode.IsControl) >= 0 {
-		return nil, Problemf(name, hl, "value column name %q holds a control character; expected a printable name", header[1])
-	}
-	t := &Trace{File: name, Column: header[1]}
-	var prevText string
-	for {
-		fields, ln, err := lines.next()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, err
-		}
-		if len(fields) != 2 {
-			return nil, Problemf(name, ln, "%s in %q; expected 2: frequency, %s", countFields(len(fields)), strings.Join(fields, ","), t.Column)
-		}
-		f, err := parseScaled(fields[0], exp)
-		if err != nil {
-			return nil, Problemf(name, ln, "frequency %q: %v", fields[0], err)
-		}
-		if f <= 0 {
-			return nil, Problemf(name, ln, "frequency %s is not positive; expected a frequency above 0", fields[0])
-		}
-		if n := len(t.FrequencyHz); n > 0 && f <= t.FrequencyHz[n-1] {
-			return nil, Problemf(name, ln, "frequency %s is not above the previous %s; expected strictly increasing frequencies", fields[0], prevText)
-		}
-		v, err := parseDecimal(fields[1])
-		if err != nil {
-			return nil, Problemf(name, ln, "%s %q: %v", t.Column, fields[1], err)
-		}
-		t.FrequencyHz = append(t.FrequencyHz, f)
-		t.Values = append(t.Values, v)
-		prevText = fields[0]
-	}
-	if len(t.FrequencyHz) == 0 {
-		return nil, Problemf(name, hl, "header but no data lines; expected at least one frequency, value line")
-	}
-	return t, nil
-}
 
 // WriteTrace writes t as a trace CSV with the frequency column in
 // frequencyUnit (hz, khz, mhz or ghz, case-insensitive, with or without
@@ -381,7 +244,18 @@ func formatScaled(v float64, exp int) string {
 // then one element per line, row and column non-negative integers, each
 // (row, col) at most once.
 func ReadElements(r io.Reader, name string) ([]Element, error) {
-	lines := newCSVLines(r, name)
+	data, err := io.ReadAll(io.LimitReader(r, MaxFileBytes+1))
+	if err != nil {
+		return nil, Problemf(name, 0, "read error: %v", err)
+	}
+	return readElements(data, name)
+}
+
+func readElements(data []byte, name string) ([]Element, error) {
+	lines := newCSVReader(data, name, nil)
+	if ln := lines.peekLine(); ln != nil {
+		lines.delim = detectDelimiter(ln)
+	}
 	header, hl, err := lines.next()
 	if err == io.EOF {
 		return nil, Problemf(name, 0, "file is empty; expected a header row,col,amplitude_db,phase_deg and one line per element")
@@ -389,6 +263,7 @@ func ReadElements(r io.Reader, name string) ([]Element, error) {
 	if err != nil {
 		return nil, err
 	}
+	header = append([]string(nil), header...)
 	want := []string{"row", "col", "amplitude_db", "phase_deg"}
 	if !sameFields(header, want) {
 		return nil, Problemf(name, hl, "header %q; expected row,col,amplitude_db,phase_deg", strings.Join(header, ","))
@@ -425,6 +300,10 @@ func ReadElements(r io.Reader, name string) ([]Element, error) {
 			return nil, Problemf(name, ln, "element row %d col %d is already on line %d; expected each element once", e.Row, e.Col, first)
 		}
 		seen[key] = ln
+		if len(out) >= MaxElements {
+			return nil, Problemf(name, ln, "element %s is past the limit of an elements table; expected at most %s elements (see the README's limits)",
+				groupDigits(int64(len(out)+1)), groupDigits(MaxElements))
+		}
 		out = append(out, e)
 	}
 	if len(out) == 0 {
@@ -450,61 +329,4 @@ func sameFields(got, want []string) bool {
 		}
 	}
 	return true
-}
-
-// readReferenceTable reads a reference antenna's table_file: header
-// `frequency_ghz,gain_dbi,uncertainty_db`, frequencies strictly increasing,
-// uncertainties not negative.
-func readReferenceTable(r io.Reader, name string) ([]ReferencePoint, error) {
-	lines := newCSVLines(r, name)
-	header, hl, err := lines.next()
-	if err == io.EOF {
-		return nil, Problemf(name, 0, "file is empty; expected a header frequency_ghz,gain_dbi,uncertainty_db and data lines")
-	}
-	if err != nil {
-		return nil, err
-	}
-	if !sameFields(header, []string{"frequency_ghz", "gain_dbi", "uncertainty_db"}) {
-		return nil, Problemf(name, hl, "header %q; expected frequency_ghz,gain_dbi,uncertainty_db", strings.Join(header, ","))
-	}
-	var out []ReferencePoint
-	var prevText string
-	for {
-		fields, ln, err := lines.next()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, err
-		}
-		if len(fields) != 3 {
-			return nil, Problemf(name, ln, "%s in %q; expected 3: frequency_ghz,gain_dbi,uncertainty_db", countFields(len(fields)), strings.Join(fields, ","))
-		}
-		var p ReferencePoint
-		p.Line = ln
-		if p.FrequencyHz, err = parseScaled(fields[0], 9); err != nil {
-			return nil, Problemf(name, ln, "frequency_ghz %q: %v", fields[0], err)
-		}
-		if p.FrequencyHz <= 0 {
-			return nil, Problemf(name, ln, "frequency_ghz %s is not positive; expected a frequency above 0", fields[0])
-		}
-		if n := len(out); n > 0 && p.FrequencyHz <= out[n-1].FrequencyHz {
-			return nil, Problemf(name, ln, "frequency %s GHz is not above the previous %s GHz; expected strictly increasing frequencies", fields[0], prevText)
-		}
-		if p.GainDBi, err = parseDecimal(fields[1]); err != nil {
-			return nil, Problemf(name, ln, "gain_dbi %q: %v", fields[1], err)
-		}
-		if p.ExpandedUncertaintyDB, err = parseDecimal(fields[2]); err != nil {
-			return nil, Problemf(name, ln, "uncertainty_db %q: %v", fields[2], err)
-		}
-		if p.ExpandedUncertaintyDB < 0 {
-			return nil, Problemf(name, ln, "uncertainty_db %s is negative; expected an expanded uncertainty >= 0 dB", fields[2])
-		}
-		out = append(out, p)
-		prevText = fields[0]
-	}
-	if len(out) == 0 {
-		return nil, Problemf(name, hl, "header but no data lines; expected at least one frequency_ghz,gain_dbi,uncertainty_db line")
-	}
-	return out, nil
 }

@@ -138,14 +138,6 @@ func kindName(n *yaml.Node) string {
 	return "an unexpected YAML node"
 }
 
-// field describes one key of a mapping: whether it must be there and what
-// its value is expected to be (used in messages).
-type field struct {
-	key    string
-	req    bool
-	expect string
-}
-
 // ymap is one YAML mapping being decoded against a list of known keys.
 type ymap struct {
 	p      *yparser
@@ -223,8 +215,10 @@ func (m *ymap) expect(fields ...field) *ymap {
 		if !f.req {
 			continue
 		}
-		if v, ok := m.vals[f.key]; !ok || isNull(v) {
+		if v, ok := m.vals[f.key]; !ok {
 			m.p.errf(m.node.Line, "%s: missing required key %q; expected %s", m.what, f.key, f.expect)
+		} else if isNull(v) {
+			m.p.errf(m.keys[f.key].Line, "%s: %s has no value; expected %s", m.what, f.key, f.expect)
 		}
 	}
 	return m

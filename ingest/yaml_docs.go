@@ -2,26 +2,16 @@ package ingest
 
 import (
 	"fmt"
+	"strings"
 
 	"gopkg.in/yaml.v3"
 )
-
-// Distributions a station's uncertainty term may declare.
-var distributions = []string{"normal", "rectangular", "u-shaped", "triangular"}
 
 // ParseStation reads stations/<id>.yaml. name is the file name used in
 // problems (and stored as Station.File).
 func ParseStation(data []byte, name string) (*Station, error) {
 	p := &yparser{file: name}
-	m := p.document(data, "station").expect(
-		field{"schema", true, "schema: 1"},
-		field{"id", true, "the station's identifier, as runs name it"},
-		field{"description", false, "free text"},
-		field{"receiver_match", true, "the receiver port's residual |Gamma|, 0 <= value < 1"},
-		field{"drift_tolerance_db", true, "the allowed |pre - post| range-loss change in dB, above 0"},
-		field{"method_tolerance_db", true, "the allowed difference between the two noise forms in dB, above 0"},
-		field{"uncertainty", true, "a list of uncertainty terms (name, applies_to, value_db, distribution, coverage_k)"},
-	)
+	m := p.document(data, "station").expect(stationFields...)
 	if m == nil {
 		return nil, p.err()
 	}
@@ -39,6 +29,31 @@ func ParseStation(data []byte, name string) (*Station, error) {
 	}
 	s.DriftToleranceDB, _ = m.positive("drift_tolerance_db")
 	s.MethodToleranceDB, _ = m.positive("method_tolerance_db")
+	if n := m.value("csv_formats"); n != nil {
+		if n.Kind != yaml.MappingNode {
+			m.bad("csv_formats", n)
+		} else if formats := p.mapping(n, "station csv_formats"); formats != nil {
+			s.CSVFormats = map[string]*CSVFormat{}
+			for i := 0; i+1 < len(n.Content); i += 2 {
+				k := resolve(n.Content[i])
+				if k == nil || k.Kind != yaml.ScalarNode || formats.keys[k.Value] != k {
+					continue
+				}
+				if err := CheckIdentifier(k.Value); err != nil {
+					p.errf(k.Line, "station csv_formats: name %v", err)
+					continue
+				}
+				v := resolve(n.Content[i+1])
+				if v == nil || v.Kind != yaml.MappingNode {
+					p.errf(k.Line, "station csv_formats: %s is %s; expected %s", k.Value, kindName(n.Content[i+1]), "a csv: mapping {delimiter, decimal, comment, skip_lines, units_row, frequency_column, frequency_unit, value_column}")
+					continue
+				}
+				if f := m.csvFormat(v, fmt.Sprintf("station csv format %q", k.Value)); f != nil {
+					s.CSVFormats[k.Value] = f
+				}
+			}
+		}
+	}
 	if items, ok := m.seq("uncertainty"); ok {
 		names := map[string]int{}
 		for i, it := range items {
@@ -63,13 +78,7 @@ func ParseStation(data []byte, name string) (*Station, error) {
 func parseTerm(p *yparser, n *yaml.Node, i int) (UncertaintyTerm, bool) {
 	before := len(p.probs)
 	what := fmt.Sprintf("uncertainty term %d", i+1)
-	m := p.mapping(n, what).named("name", "uncertainty term %q").expect(
-		field{"name", true, "the term's name"},
-		field{"applies_to", true, "a list of gain and/or gt"},
-		field{"value_db", true, "the term's value in dB, >= 0 (half-width, or expanded at coverage_k for normal)"},
-		field{"distribution", true, "normal, rectangular, u-shaped or triangular"},
-		field{"coverage_k", false, "the coverage factor of a normal term's value_db, above 0 (normal terms only)"},
-	)
+	m := p.mapping(n, what).named("name", "uncertainty term %q").expect(termFields...)
 	if m == nil {
 		return UncertaintyTerm{}, false
 	}
@@ -106,18 +115,7 @@ func ParseReference(data []byte, name string) (*Reference, error) {
 // parseReference also returns the line of table_file.
 func parseReference(data []byte, name string) (*Reference, int, error) {
 	p := &yparser{file: name}
-	m := p.document(data, "reference").expect(
-		field{"schema", true, "schema: 1"},
-		field{"id", true, "the reference antenna's identifier, as runs name it"},
-		field{"description", false, "free text"},
-		field{"gain_kind", true, "realized or gain"},
-		field{"calibrated", true, "the calibration date, YYYY-MM-DD"},
-		field{"due", true, "the date the calibration is due, YYYY-MM-DD, not before calibrated"},
-		field{"certificate", true, "the calibration certificate's number"},
-		field{"coverage_k", true, "the coverage factor of the table's expanded uncertainties, above 0"},
-		field{"table", false, "a list of [frequency_ghz, gain_dbi, expanded_uncertainty_db] rows, frequencies strictly increasing"},
-		field{"table_file", false, "a CSV file (frequency_ghz,gain_dbi,uncertainty_db) relative to this file's folder"},
-	)
+	m := p.document(data, "reference").expect(referenceFields...)
 	if m == nil {
 		return nil, 0, p.err()
 	}
@@ -149,6 +147,15 @@ func parseReference(data []byte, name string) (*Reference, int, error) {
 		}
 	default:
 		p.errf(m.node.Line, "reference: missing key \"table\" or \"table_file\"; expected the calibration table inline or as a CSV file")
+	}
+	if m.has("csv") {
+		if !m.has("table_file") {
+			m.invalid("csv", "is given without table_file")
+		} else if n := m.value("csv"); n.Kind != yaml.MappingNode {
+			p.errf(n.Line, "reference: csv is %s; expected a csv: mapping of table_file (a name refers to a station's csv_formats, and a reference antenna belongs to no station)", kindName(n))
+		} else {
+			r.TableCSV = m.csvFormat(n, "reference csv")
+		}
 	}
 	if err := p.err(); err != nil {
 		return nil, 0, err
@@ -189,16 +196,7 @@ func parseReferenceRows(p *yparser, rows []*yaml.Node, line int) []ReferencePoin
 // ParseSpec reads specs/<product>.yaml.
 func ParseSpec(data []byte, name string) (*Spec, error) {
 	p := &yparser{file: name}
-	m := p.document(data, "spec").expect(
-		field{"schema", true, "schema: 1"},
-		field{"product", true, "the product code runs refer to"},
-		field{"title", false, "free text"},
-		field{"decision_rule", true, "simple or guarded"},
-		field{"limits", true, "a list of limits (name, quantity, beams, band_ghz, statistic, limit)"},
-		field{"operating_antenna_k", false, "the antenna temperature in K the projected G/T is stated at, above 0"},
-		field{"element_phase_rms_tolerance_deg", false, "the allowed rms of the residual element phase in degrees, above 0"},
-		field{"customer", false, "who the units are tested for: {name, address: [lines], order}"},
-	)
+	m := p.document(data, "spec").expect(specFields...)
 	if m == nil {
 		return nil, p.err()
 	}
@@ -219,6 +217,9 @@ func ParseSpec(data []byte, name string) (*Spec, error) {
 		if v, ok := m.positive("element_phase_rms_tolerance_deg"); ok {
 			s.ElementPhaseRMSToleranceDeg = &v
 		}
+	}
+	if bp := m.sub("beam_plan", "spec beam_plan"); bp != nil {
+		s.BeamPlan = parseBeamPlan(p, bp.expect(beamPlanFields...))
 	}
 	if items, ok := m.seq("limits"); ok {
 		if len(items) == 0 {
@@ -246,15 +247,7 @@ func ParseSpec(data []byte, name string) (*Spec, error) {
 
 func parseLimit(p *yparser, n *yaml.Node, i int) (Limit, bool) {
 	before := len(p.probs)
-	m := p.mapping(n, fmt.Sprintf("limit %d", i+1)).named("name", "limit %q").expect(
-		field{"name", true, "the limit's name"},
-		field{"quantity", true, "gt (dB/K) or gain (dBi)"},
-		field{"beams", true, "{ids: [..]} or {min_theta_deg: .., max_theta_deg: ..}"},
-		field{"band_ghz", true, "[low, high] in GHz with 0 < low < high"},
-		field{"statistic", true, "min or mean"},
-		field{"limit", true, "a list of [frequency_ghz, value] points, frequencies strictly increasing"},
-		field{"scan_exponent", false, "the exponent n of limit(f) + 10*n*log10(cos theta), >= 0"},
-	)
+	m := p.mapping(n, fmt.Sprintf("limit %d", i+1)).named("name", "limit %q").expect(limitFields...)
 	if m == nil {
 		return Limit{}, false
 	}
@@ -320,11 +313,7 @@ func ghz(n *yaml.Node, v float64) float64 {
 
 func parseSelector(b *ymap) BeamSelector {
 	before := len(b.p.probs)
-	b.expect(
-		field{"ids", false, "a list of beam ids"},
-		field{"min_theta_deg", false, "a scan angle in degrees, 0 <= theta < 90"},
-		field{"max_theta_deg", false, "a scan angle in degrees, 0 <= theta < 90"},
-	)
+	b.expect(selectorFields...)
 	var sel BeamSelector
 	if len(b.p.probs) > before {
 		return sel
@@ -364,4 +353,42 @@ func parseSelector(b *ymap) BeamSelector {
 		b.invalid("max_theta_deg", "%v is below min_theta_deg %v", *sel.MaxThetaDeg, *sel.MinThetaDeg)
 	}
 	return sel
+}
+
+// parseBeamPlan reads a spec's beam_plan.
+func parseBeamPlan(p *yparser, m *ymap) *BeamPlan {
+	if m == nil {
+		return nil
+	}
+	plan := &BeamPlan{Line: m.node.Line}
+	if f := m.sub("files", "spec beam_plan files"); f != nil {
+		f.expect(planFilesFields...)
+		plan.FilesLine = f.node.Line
+		if f.has("transmission") {
+			plan.Transmission, plan.TransmissionCSV = f.fileRef("transmission")
+		}
+		if f.has("noise") {
+			plan.Noise, _ = parseNoiseList(p, f, "noise")
+			for _, n := range plan.Noise {
+				if !strings.Contains(n.File, "{beam}") {
+					p.errf(n.Line, "spec beam_plan files: noise file %q has no {beam}; expected a name with {beam} for the beam id, e.g. \"{beam}-noise.csv\"", n.File)
+				}
+			}
+		}
+		if plan.Transmission != "" && !strings.Contains(plan.Transmission, "{beam}") {
+			p.errf(f.line("transmission"), "spec beam_plan files: transmission %q has no {beam}; expected a glob with {beam} for the beam id, e.g. \"{beam}.*\"", plan.Transmission)
+		}
+	}
+	if items, ok := m.seq("beams"); ok {
+		if len(items) == 0 {
+			m.invalid("beams", "is an empty list")
+		}
+		if len(items) > MaxRunBeams {
+			p.errf(items[MaxRunBeams].Line, "spec beam_plan: beam %d of the %d listed from line %d is past the limit of a run; expected at most %d beams (each has its own sheet and charts; see the README's limits)",
+				MaxRunBeams+1, len(items), m.line("beams"), MaxRunBeams)
+			items = items[:MaxRunBeams]
+		}
+		plan.Beams = parseBeams(p, items, "spec beam_plan", planBeamFields)
+	}
+	return plan
 }

@@ -48,14 +48,7 @@ type Approval struct {
 // ParseLab reads lab.yaml.
 func ParseLab(data []byte, name string) (*Lab, error) {
 	p := &yparser{file: name}
-	m := p.document(data, "lab").expect(
-		field{"schema", true, "schema: 1"},
-		field{"name", true, "the laboratory's name"},
-		field{"address", true, "the laboratory's address, a list of lines"},
-		field{"contact", false, "an address or telephone number for questions about reports"},
-		field{"accreditation", false, "free text: the accreditation body and number"},
-		field{"report_prefix", true, "the start of every report number, e.g. EATL-GT (1 to 64 of A-Z a-z 0-9 . _ -)"},
-	)
+	m := p.document(data, "lab").expect(labFields...)
 	if m == nil {
 		return nil, p.err()
 	}
@@ -74,13 +67,6 @@ func ParseLab(data []byte, name string) (*Lab, error) {
 		return nil, err
 	}
 	return l, nil
-}
-
-// customerFields are the keys of a customer: mapping.
-var customerFields = []field{
-	{"name", true, "the customer's name"},
-	{"address", false, "the customer's address, a list of lines"},
-	{"order", false, "the customer's order or contract reference"},
 }
 
 // customer reads the customer: mapping of a spec or a run.
@@ -137,23 +123,11 @@ func (m *ymap) lines(key string) ([]string, bool) {
 	return out, true
 }
 
-// Verdicts an approval may name: those of an issuable unit.
-var approvableVerdicts = []string{"pass", "conditional-pass", "conditional-fail", "fail"}
-
 // ParseApproval reads approvals/<serial>/<name>.yaml. The serial it names
 // must be the folder's.
 func ParseApproval(data []byte, name string) (*Approval, error) {
 	p := &yparser{file: name}
-	m := p.document(data, "approval").expect(
-		field{"schema", true, "schema: 1"},
-		field{"serial", true, "the unit's serial number (the folder's name)"},
-		field{"inputs_sha256", true, "the unit's inputs_sha256, 64 lower-case hex digits, as its report and manifest show it"},
-		field{"verdict", true, "the verdict approved: pass, conditional-pass, conditional-fail or fail"},
-		field{"approved_by", true, "the name of the person who approves"},
-		field{"role", false, "the person's role, e.g. Quality engineer"},
-		field{"date", true, "when it was approved, RFC 3339, e.g. 2026-11-04T10:00:00Z"},
-		field{"comment", false, "free text"},
-	)
+	m := p.document(data, "approval").expect(approvalFields...)
 	if m == nil {
 		return nil, p.err()
 	}

@@ -185,7 +185,7 @@ func TestParseStation(t *testing.T) {
 		{"unknown key in term", "    coverage_k: 2\n", "    coverage_k: 2\n    unit: dB\n", 13, `uncertainty term "Noise receiver calibration": unknown key "unit"`},
 		{"duplicate key", "id: range-a\n", "id: range-a\nid: range-b\n", 3, `key "id" is repeated (first on line 2)`},
 		{"missing id", "id: range-a\n", "", 1, `missing required key "id"`},
-		{"null id", "id: range-a\n", "id:\n", 1, `missing required key "id"`},
+		{"null id", "id: range-a\n", "id:\n", 2, `id has no value`},
 		{"receiver match 1", "receiver_match: 0.03", "receiver_match: 1.0", 4, "1 is outside [0, 1)"},
 		{"receiver match text", "receiver_match: 0.03", "receiver_match: low", 4, `receiver_match is "low"; expected`},
 		{"receiver match quoted", "receiver_match: 0.03", `receiver_match: "0.03"`, 4, `receiver_match is "0.03"`},
@@ -346,7 +346,23 @@ func TestParseRun(t *testing.T) {
 		t.Errorf("parameter/started: %+v %v", r3, err)
 	}
 
-	parse := func(b []byte, n string) error { _, err := ParseRun(b, n); return err }
+	// What ParseRun cannot know (a beam's keys may come from the spec's
+	// beam_plan) is found when the beams are resolved against the spec.
+	parse := func(b []byte, n string) error {
+		r, err := ParseRun(b, n)
+		if err != nil {
+			return err
+		}
+		resolveBeams(t.TempDir(), &Spec{File: "specs/KU-PANEL-16.yaml"}, r)
+		var l ProblemList
+		for _, kp := range r.resolved {
+			l = append(l, kp.p)
+		}
+		if len(l) == 0 {
+			return nil
+		}
+		return l
+	}
 	cases := append([]yamlCase{
 		{"unknown key", "operator: AB\n", "operator: AB\noperater: AB\n", 8, `run: unknown key "operater"; expected one of ambient_c, beams,`},
 		{"unknown beam key", "    passive_gain_dbi: 30.2\n", "    passive_gain_dbi: 30.2\n    gain: 1\n", 26, `beam "b00": unknown key "gain"`},
@@ -368,12 +384,12 @@ func TestParseRun(t *testing.T) {
 		{"ambient text", "ambient_c: 22.8", "ambient_c: warm", 8, `ambient_c is "warm"`},
 		{"parameter reflection", "parameter: S21", "parameter: S11", 13, `parameter "S11" is not a transmission parameter`},
 		{"parameter garbage", "parameter: S21", "parameter: gain", 13, `parameter "gain" is not a transmission parameter`},
-		{"missing transmission", "    transmission: b30.s2p\n", "", 26, `beam "b30": missing required key "transmission"`},
-		{"missing theta", "    theta_deg: 30\n", "", 26, `beam "b30": missing required key "theta_deg"`},
+		{"missing transmission", "    transmission: b30.s2p\n", "", 26, `beam b30 has no transmission; expected a Touchstone or CSV file`},
+		{"missing theta", "    theta_deg: 30\n", "", 26, `beam b30 has no theta_deg; expected the scan angle`},
 		{"missing pre", "  pre: ref-pre.s2p\n", "", 11, `range_reference: missing required key "pre"`},
 		{"missing serial", "serial: KP16-00017\n", "", 1, `run: missing required key "serial"`},
 		{"empty serial", "serial: KP16-00017", `serial: "  "`, 2, "serial is empty"},
-		{"missing beams", "beams:\n  - id: b00\n    theta_deg: 0\n    phi_deg: 0\n    polarization: RHCP\n    transmission: b00.s2p\n    noise:\n      file: b00-noise.csv\n      quantity: noise-density-dbm-hz\n      noise_bandwidth_hz: 1.0e6\n      integration_s: 0.01\n    passive_gain_dbi: 30.2\n  - id: b30\n    theta_deg: 30\n    transmission: b30.s2p\n    noise:\n      - file: b30-noise.csv\n        quantity: noise-density-dbm-hz\n      - file: b30-nf.csv\n        quantity: system-noise-figure-db\n", "", 1, `missing required key "beams"`},
+		{"missing beams", "beams:\n  - id: b00\n    theta_deg: 0\n    phi_deg: 0\n    polarization: RHCP\n    transmission: b00.s2p\n    noise:\n      file: b00-noise.csv\n      quantity: noise-density-dbm-hz\n      noise_bandwidth_hz: 1.0e6\n      integration_s: 0.01\n    passive_gain_dbi: 30.2\n  - id: b30\n    theta_deg: 30\n    transmission: b30.s2p\n    noise:\n      - file: b30-noise.csv\n        quantity: noise-density-dbm-hz\n      - file: b30-nf.csv\n        quantity: system-noise-figure-db\n", "", 1, `run: no beams, and specs/KU-PANEL-16.yaml has no beam_plan`},
 		{"beams a mapping", "", runYAML[:strings.Index(runYAML, "beams:")] + "beams: {id: b00}\n", 14, "beams is a mapping; expected a list"},
 		{"range reference text", "range_reference:\n  pre: ref-pre.s2p\n  post: ref-post.s2p\n  parameter: S21\n", "range_reference: ref-pre.s2p\n", 10, `range_reference is "ref-pre.s2p"; expected a mapping`},
 		{"passive gain text", "passive_gain_dbi: 30.2", "passive_gain_dbi: n/a", 25, `passive_gain_dbi is "n/a"`},

@@ -36,7 +36,13 @@ func KT0WPerHz() float64 { return BoltzmannJPerK * ReferenceTemperatureK }
 
 // KT0DBmPerHz is k*T0 in dBm/Hz (about -173.975), computed from the exact
 // k rather than the rounded rule of thumb.
-func KT0DBmPerHz() float64 { return 10 * math.Log10(KT0WPerHz()*1e3) }
+func KT0DBmPerHz() float64 { return kt0DBmPerHz }
 
 // ReferenceTemperatureDBK is 10*log10(T0 / 1 K), about 24.624 dB.
-func ReferenceTemperatureDBK() float64 { return 10 * math.Log10(ReferenceTemperatureK) }
+func ReferenceTemperatureDBK() float64 { return t0DBK }
+
+// The two logarithms every G/T point needs, computed once.
+var (
+	kt0DBmPerHz = 10 * math.Log10(KT0WPerHz()*1e3)
+	t0DBK       = 10 * math.Log10(ReferenceTemperatureK)
+)

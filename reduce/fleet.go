@@ -27,6 +27,9 @@ type UnitSummary struct {
 	// verdict (a retested unit's first verdict differs from the last).
 	Runs         int    `json:"runs,omitempty"`
 	FirstVerdict string `json:"first_verdict,omitempty"`
+	// RangeChecks are the range checks of the unit's runs, oldest first
+	// (range health: fleet.json's stations).
+	RangeChecks []RangeCheck `json:"range_checks,omitempty"`
 	// IssueState, Revision and ReportNumber are the report's issue state
 	// (see Issue).
 	IssueState   string `json:"issue_state,omitempty"`
@@ -47,6 +50,11 @@ type Fleet struct {
 	Schema   int            `json:"schema"`
 	Units    []FleetUnit    `json:"units"` // sorted by serial
 	Products []ProductFleet `json:"products"`
+	// Stations are the range charts of each station and reference antenna
+	// (range health), References each reference antenna's dates and the
+	// runs that used it past its due date.
+	Stations   []RangeChart      `json:"stations"`
+	References []ReferenceHealth `json:"references"`
 	// Notices say what the pages do not show as they should (units a
 	// build could not write); empty when all is well.
 	Notices []string `json:"notices,omitempty"`
@@ -63,6 +71,14 @@ type FleetUnit struct {
 	Limits   []FleetUnitLimit `json:"limits"`              // in the order of the names' first results
 	Stale    string           `json:"stale,omitempty"`     // see UnitSummary.Stale
 	NoReport bool             `json:"no_report,omitempty"` // see UnitSummary.NoReport
+	// Runs is how many runs the unit had and FirstVerdict its first run's
+	// verdict (contract, "Site layout": fleet.json's units).
+	Runs         int    `json:"runs"`
+	FirstVerdict string `json:"first_verdict"`
+	// IssueState, Revision and ReportNumber: see UnitSummary.
+	IssueState   string `json:"issue_state,omitempty"`
+	Revision     int    `json:"revision,omitempty"`
+	ReportNumber string `json:"report_number,omitempty"`
 }
 
 // FleetUnitLimit is a unit's result for one limit name over all the beams
@@ -87,6 +103,26 @@ type ProductFleet struct {
 	Limits        []LimitStats   `json:"limits"`
 	Band          *GoldenBand    `json:"band,omitempty"`
 	Watch         []WatchEntry   `json:"watch"`
+	// FirstPassYield is the share of units whose first run passed
+	// (conditional pass included), FinalYield the share whose acceptance
+	// run did, over the units judged (method.md section 10).
+	FirstPassYield float64 `json:"first_pass_yield"`
+	FinalYield     float64 `json:"final_yield"`
+	// Months has one entry per calendar month of acceptance runs, oldest
+	// first (contract, "Site layout").
+	Months []MonthYield `json:"months"`
+}
+
+// MonthYield is one calendar month of a product's acceptance runs.
+type MonthYield struct {
+	Month         string         `json:"month"` // YYYY-MM, of the acceptance run's start (UTC)
+	Units         int            `json:"units"`
+	VerdictCounts map[string]int `json:"verdict_counts"`
+	// FirstPassYield and FinalYield as ProductFleet's, over the month's
+	// judged units; NaN (null) when it has none.
+	FirstPassYield float64 `json:"first_pass_yield"`
+	FinalYield     float64 `json:"final_yield"`
+	Retested       int     `json:"retested"` // units with more than one run
 }
 
 // LimitStats is the fleet's view of one limit: per unit its worst margin
@@ -99,9 +135,13 @@ type LimitStats struct {
 	MeanMarginDB float64 `json:"mean_margin_db"`
 	StdMarginDB  float64 `json:"std_margin_db"`
 	// Cpk is (mean - 0)/(3*sigma) on margins; 0 with fewer than two units.
-	Cpk      float64      `json:"cpk"`
-	Chart    ControlChart `json:"control_chart"`
-	Outliers []Outlier    `json:"outliers"`
+	Cpk float64 `json:"cpk"`
+	// Indicative marks statistics from fewer than MinCapabilityUnits
+	// units: a capability index from few units says little (method.md
+	// section 10).
+	Indicative bool         `json:"indicative,omitempty"`
+	Chart      ControlChart `json:"control_chart"`
+	Outliers   []Outlier    `json:"outliers"`
 }
 
 // ControlChart is an individuals chart of worst margins in test order.
@@ -113,8 +153,10 @@ type ControlChart struct {
 	UpperDB         float64   `json:"upper_db"`
 	LowerDB         float64   `json:"lower_db"`
 	MeanMovingRange float64   `json:"mean_moving_range_db"`
-	// Beyond lists the indexes of points outside the limits.
+	// Beyond lists the indexes of points outside the limits; empty while
+	// the chart has fewer than MinChartPoints points (TooFew).
 	Beyond []int `json:"beyond"`
+	TooFew bool  `json:"too_few,omitempty"`
 }
 
 // Outlier is a unit whose worst margin has a modified z-score above 3.5.
@@ -147,4 +189,11 @@ type WatchEntry struct {
 	// RangesHz groups FrequenciesHz into runs of neighbouring grid points,
 	// [first, last] each.
 	RangesHz [][2]float64 `json:"ranges_hz"`
+	// SpanHz is [first, last] of FrequenciesHz; Points their number;
+	// WorstExcursionDB the largest distance outside the band, signed
+	// (below the band negative), and WorstAtHz where it is.
+	SpanHz           [2]float64 `json:"span_hz"`
+	Points           int        `json:"points"`
+	WorstExcursionDB float64    `json:"worst_excursion_db"`
+	WorstAtHz        float64    `json:"worst_at_hz"`
 }

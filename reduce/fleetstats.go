@@ -14,6 +14,12 @@ const (
 	// chartFactor is 3/d2 with d2 = 1.128 for moving ranges of two: the
 	// Shewhart individuals chart (general knowledge).
 	chartFactor = 2.66
+	// MinChartPoints is the fewest points before a control chart calls a
+	// point out of control, and MinCapabilityUnits the fewest units
+	// before a capability index is more than indicative (method.md
+	// section 10: common practice).
+	MinChartPoints     = 10
+	MinCapabilityUnits = 30
 	// modifiedZScale and modifiedZLimit are from Iglewicz and Hoaglin (1993):
 	// z = 0.6745*(x - median)/MAD, an outlier above 3.5.
 	modifiedZScale = 0.6745
@@ -46,7 +52,8 @@ const (
 // 3.5 (Iglewicz and Hoaglin 1993); none when the MAD is 0.
 //
 // Golden band: the units of the product with a boresight trace, in serial
-// order; the grid is the first one's; every other trace is interpolated
+// order; the grid is the first one's (every k-th of its frequencies when
+// it has more than maxBandGridPoints, bandGrid); every other trace is interpolated
 // (piecewise linear) at the grid frequencies inside its own span. At each
 // frequency covered by at least 5 units the band is the median and
 // low/high = median -/+ 3*1.4826*MAD (1.4826*MAD estimates a normal sigma,
@@ -91,6 +98,7 @@ func ComputeFleet(units []UnitSummary) *Fleet {
 // 754): far below the 1e-6 dB to which fleet.json writes the band.
 type FleetBuilder struct {
 	units    []fleetRecord
+	checks   map[string][]RangeCheck // by serial: the range checks of its runs
 	products map[string]*fleetProductAcc
 	last     string
 }
@@ -123,7 +131,7 @@ type fleetProductAcc struct {
 
 // NewFleetBuilder returns an empty builder.
 func NewFleetBuilder() *FleetBuilder {
-	return &FleetBuilder{products: map[string]*fleetProductAcc{}}
+	return &FleetBuilder{products: map[string]*fleetProductAcc{}, checks: map[string][]RangeCheck{}}
 }
 
 // Add takes one unit's summary; it keeps none of u's lists. Units must
@@ -148,7 +156,12 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 		return s
 	}
 	rec := fleetRecord{FleetUnit: FleetUnit{Serial: u.Serial, Product: u.Product, Started: u.Started,
-		Verdict: u.Verdict, Limits: []FleetUnitLimit{}, Stale: u.Stale, NoReport: u.NoReport}}
+		Verdict: u.Verdict, Limits: []FleetUnitLimit{}, Stale: u.Stale, NoReport: u.NoReport,
+		Runs: max(u.Runs, 1), FirstVerdict: u.FirstVerdict,
+		IssueState: u.IssueState, Revision: u.Revision, ReportNumber: u.ReportNumber}}
+	if rec.FirstVerdict == "" {
+		rec.FirstVerdict = u.Verdict // a summary of 0.3.0 or before: one run known
+	}
 	for _, l := range u.Limits {
 		j := -1
 		for k := range rec.Limits {
@@ -177,6 +190,9 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 			jd.rank = max(jd.rank, r)
 		}
 	}
+	if len(u.RangeChecks) > 0 {
+		b.checks[u.Serial] = append(b.checks[u.Serial], u.RangeChecks...)
+	}
 	idx := len(b.units)
 	b.units = append(b.units, rec)
 	p.units = append(p.units, idx)
@@ -190,7 +206,7 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 // trace's), smooths it and keeps it as float32 differences from the first.
 func (p *fleetProductAcc) addTrace(idx int, fs, gt []float64) {
 	if p.grid == nil {
-		p.grid = append([]float64(nil), fs...)
+		p.grid = bandGrid(fs)
 		p.smooth = bandSmoothingPoints(len(p.grid))
 	}
 	grid := p.grid
@@ -243,6 +259,7 @@ func (b *FleetBuilder) Finish() *Fleet {
 	for i := range b.units {
 		f.Units[i] = b.units[i].FleetUnit
 	}
+	f.Stations, f.References = RangeCharts(b.checks), ReferencesHealth(b.checks)
 	return f
 }
 
@@ -303,7 +320,71 @@ func (b *FleetBuilder) product(name string, acc *fleetProductAcc) ProductFleet {
 		p.Limits = append(p.Limits, fleetLimit(ln, inTestOrder))
 	}
 	p.Band, p.Watch = b.band(acc)
+	p.FirstPassYield, p.FinalYield, p.Months = yields(inTestOrder)
 	return p
+}
+
+// passed says whether a verdict counts towards yield: pass or
+// conditional pass.
+func passed(v string) bool { return v == VerdictPass || v == VerdictConditionalPass }
+
+// judged says whether a verdict is a judgement (not incomplete).
+func judged(v string) bool { _, ok := fleetVerdictRank(v); return ok }
+
+// yields are the first-pass and final yields of units (in test order),
+// overall and per calendar month of the acceptance run.
+func yields(units []*fleetRecord) (firstPass, final float64, months []MonthYield) {
+	months = []MonthYield{}
+	type acc struct{ n, first, final int }
+	var all acc
+	byMonth := map[string]*MonthYield{}
+	counts := map[string]*acc{}
+	for _, u := range units {
+		m := "unknown"
+		if t, err := time.Parse(time.RFC3339, u.Started); err == nil {
+			m = t.UTC().Format("2006-01")
+		}
+		my := byMonth[m]
+		if my == nil {
+			my = &MonthYield{Month: m, VerdictCounts: map[string]int{}}
+			byMonth[m] = my
+			counts[m] = &acc{}
+		}
+		my.Units++
+		my.VerdictCounts[u.Verdict]++
+		if u.Runs > 1 {
+			my.Retested++
+		}
+		if !judged(u.Verdict) {
+			continue
+		}
+		for _, a := range []*acc{&all, counts[m]} {
+			a.n++
+			if passed(u.FirstVerdict) {
+				a.first++
+			}
+			if passed(u.Verdict) {
+				a.final++
+			}
+		}
+	}
+	ratio := func(k, n int) float64 {
+		if n == 0 {
+			return math.NaN()
+		}
+		return float64(k) / float64(n)
+	}
+	keys := make([]string, 0, len(byMonth))
+	for k := range byMonth {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys) // "unknown" sorts after the digits
+	for _, k := range keys {
+		my, a := byMonth[k], counts[k]
+		my.FirstPassYield, my.FinalYield = ratio(a.first, a.n), ratio(a.final, a.n)
+		months = append(months, *my)
+	}
+	return ratio(all.first, all.n), ratio(all.final, all.n), months
 }
 
 // fleetVerdictRank ranks a judged verdict, best first; ok is false for
@@ -366,8 +447,10 @@ func fleetLimit(name string, us []*fleetRecord) LimitStats {
 	ls.Chart.CentreDB = ls.MeanMarginDB
 	ls.Chart.UpperDB = ls.MeanMarginDB + chartFactor*ls.Chart.MeanMovingRange
 	ls.Chart.LowerDB = ls.MeanMarginDB - chartFactor*ls.Chart.MeanMovingRange
+	ls.Indicative = len(x) < MinCapabilityUnits
+	ls.Chart.TooFew = len(x) < MinChartPoints
 	for i, v := range x {
-		if v > ls.Chart.UpperDB || v < ls.Chart.LowerDB {
+		if !ls.Chart.TooFew && (v > ls.Chart.UpperDB || v < ls.Chart.LowerDB) {
 			ls.Chart.Beyond = append(ls.Chart.Beyond, i)
 		}
 	}
@@ -433,10 +516,18 @@ func (b *FleetBuilder) band(acc *fleetProductAcc) (*GoldenBand, []WatchEntry) {
 		}
 		var out []float64
 		var ranges [][2]float64
+		worst, worstAt := 0.0, 0.0
 		prev := -2
 		for j, k := range kept {
 			v := acc.at(i, k)
 			if !math.IsNaN(v) && (v < band.LowDB[j] || v > band.HighDB[j]) {
+				ex := v - band.HighDB[j]
+				if v < band.LowDB[j] {
+					ex = v - band.LowDB[j]
+				}
+				if math.Abs(ex) > math.Abs(worst) {
+					worst, worstAt = ex, grid[k]
+				}
 				out = append(out, grid[k])
 				if j == prev+1 {
 					ranges[len(ranges)-1][1] = grid[k]
@@ -447,7 +538,8 @@ func (b *FleetBuilder) band(acc *fleetProductAcc) (*GoldenBand, []WatchEntry) {
 			}
 		}
 		if len(out) > 0 {
-			watch = append(watch, WatchEntry{Serial: u.Serial, FrequenciesHz: out, RangesHz: ranges})
+			watch = append(watch, WatchEntry{Serial: u.Serial, FrequenciesHz: out, RangesHz: ranges,
+				SpanHz: [2]float64{out[0], out[len(out)-1]}, Points: len(out), WorstExcursionDB: worst, WorstAtHz: worstAt})
 		}
 	}
 	return band, watch
@@ -511,6 +603,31 @@ func fleetTestBefore(a, b string) bool {
 		return false
 	}
 	return a < b
+}
+
+// maxBandGridPoints bounds the golden band's grid: the builder keeps every
+// traced unit's trace on it (4 bytes a point), so that a product whose
+// traces have the most points a trace may have (ingest.MaxTracePoints,
+// 100,001) would take 400 kB a unit, 4 GB at 10,000 units. 1,601 points,
+// the most of a usual acceptance sweep (general knowledge), keep such
+// grids as they are and 10,000 units within 64 MB.
+const maxBandGridPoints = 1601
+
+// bandGrid is the golden band's grid for a product whose first traced
+// unit has the frequencies fs: fs itself up to maxBandGridPoints, else
+// every k-th frequency of fs (k the smallest that gives no more than
+// maxBandGridPoints), with the last frequency kept, so that the band spans
+// the trace.
+func bandGrid(fs []float64) []float64 {
+	if len(fs) <= maxBandGridPoints {
+		return append([]float64(nil), fs...)
+	}
+	step := (len(fs) - 1 + maxBandGridPoints - 2) / (maxBandGridPoints - 1)
+	grid := make([]float64, 0, maxBandGridPoints)
+	for k := 0; k < len(fs)-1; k += step {
+		grid = append(grid, fs[k])
+	}
+	return append(grid, fs[len(fs)-1])
 }
 
 // bandSmoothingPoints is the moving-average width used for the golden

@@ -264,7 +264,7 @@ func TestFleetDeterministic(t *testing.T) {
 		t.Error("fleet JSON depends on the order of units")
 	}
 	empty, err := json.Marshal(ComputeFleet(nil))
-	if err != nil || string(empty) != `{"schema":2,"units":[],"products":[]}` {
+	if err != nil || string(empty) != `{"schema":2,"units":[],"products":[],"stations":[],"references":[]}` {
 		t.Errorf("empty fleet: %s %v", empty, err)
 	}
 }
@@ -429,5 +429,106 @@ func TestFleetBuilderBandPrecision(t *testing.T) {
 	// at 2..4 is 1.2e-7 (IEEE 754 binary32); fleet.json writes 1e-6.
 	if worst > 2.4e-7 {
 		t.Errorf("band median off the float64 median by %.3g dB, want within 2.4e-7", worst)
+	}
+}
+
+// The golden band's grid holds at most maxBandGridPoints frequencies: a
+// product whose traces have 100,001 points (ingest.MaxTracePoints) gets
+// every 63rd of them and the last, so the band spans the trace; a grid of
+// 1,601 points or fewer is the trace's own.
+func TestFleetBandGridBounded(t *testing.T) {
+	for _, c := range []struct{ points, want int }{{1601, 1601}, {1602, 802}, {100001, 1589}} {
+		fs := make([]float64, c.points)
+		for k := range fs {
+			fs[k] = 10.7e9 + float64(k)*2.05e9/float64(c.points-1)
+		}
+		g := bandGrid(fs)
+		if len(g) != c.want || g[0] != fs[0] || g[len(g)-1] != fs[len(fs)-1] {
+			t.Errorf("%d points: grid of %d from %g to %g, want %d from %g to %g", c.points, len(g), g[0], g[len(g)-1], c.want, fs[0], fs[len(fs)-1])
+		}
+		for k := 1; k < len(g); k++ {
+			if !(g[k] > g[k-1]) {
+				t.Fatalf("%d points: grid not increasing at %d", c.points, k)
+			}
+		}
+	}
+	us := bandFleet()
+	for _, u := range us {
+		tr := u.Boresight
+		tr.FrequencyHz, tr.GTdBPerK = make([]float64, 100001), make([]float64, 100001)
+		for k := range tr.FrequencyHz {
+			tr.FrequencyHz[k] = 11e9 + float64(k)*1e4
+			tr.GTdBPerK[k] = 3
+		}
+	}
+	p := ComputeFleet(us).Products[0]
+	if p.Band == nil || len(p.Band.FrequencyHz) != 1589 || p.Band.FrequencyHz[1588] != 12e9 {
+		t.Errorf("band of 100,001-point traces: %v", p.Band)
+	}
+}
+
+// First-pass and final yield by month (method.md section 10: first-pass
+// yield counts units whose first run passed; the final yield each unit at
+// its acceptance run), worked by hand:
+//
+//	November: U01 pass (1 run), U02 fail, then pass on retest (2 runs),
+//	          U03 conditional pass (1 run), U04 incomplete (not judged),
+//	          U05 fail (1 run; started 00:30 on 1 December at +01:00,
+//	          which is 30 November in UTC): judged 4; first pass U01, U03
+//	          = 2/4; final U01, U02, U03 = 3/4; retested 1.
+//	December: U06 fail then fail (2 runs): 0/1 and 0/1; retested 1.
+//	Overall:  first pass 2/5 = 0.4, final 3/5 = 0.6.
+func TestFleetYieldByMonth(t *testing.T) {
+	mk := func(serial, started, first, final string, runs int) UnitSummary {
+		return UnitSummary{Serial: serial, Product: "P", Started: started, Verdict: final, FirstVerdict: first, Runs: runs,
+			Limits: []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: 1, Verdict: final}}}
+	}
+	us := []UnitSummary{
+		mk("U01", "2026-11-02T09:00:00Z", VerdictPass, VerdictPass, 1),
+		mk("U02", "2026-11-10T09:00:00Z", VerdictFail, VerdictPass, 2),
+		mk("U03", "2026-11-20T09:00:00Z", VerdictConditionalPass, VerdictConditionalPass, 1),
+		mk("U04", "2026-11-30T23:00:00Z", VerdictIncomplete, VerdictIncomplete, 1),
+		mk("U05", "2026-12-01T00:30:00+01:00", VerdictFail, VerdictFail, 1), // 2026-11-30 23:30 UTC
+		mk("U06", "2026-12-05T09:00:00Z", VerdictFail, VerdictFail, 2),
+	}
+	p := ComputeFleet(us).Products[0]
+	if len(p.Months) != 2 {
+		t.Fatalf("months %+v", p.Months)
+	}
+	nov, dec := p.Months[0], p.Months[1]
+	// U05 started 00:30 at +01:00: November in UTC.
+	if nov.Month != "2026-11" || nov.Units != 5 || nov.Retested != 1 || nov.VerdictCounts[VerdictIncomplete] != 1 {
+		t.Errorf("November: %+v", nov)
+	}
+	if math.Abs(nov.FirstPassYield-2.0/4) > 1e-12 || math.Abs(nov.FinalYield-3.0/4) > 1e-12 {
+		t.Errorf("November yields %v %v, want 2/4 and 3/4 (U05 is November's in UTC)", nov.FirstPassYield, nov.FinalYield)
+	}
+	if dec.Month != "2026-12" || dec.Units != 1 || dec.FirstPassYield != 0 || dec.FinalYield != 0 || dec.Retested != 1 {
+		t.Errorf("December: %+v", dec)
+	}
+	if math.Abs(p.FirstPassYield-0.4) > 1e-12 || math.Abs(p.FinalYield-0.6) > 1e-12 {
+		t.Errorf("overall %v %v, want 0.4 and 0.6", p.FirstPassYield, p.FinalYield)
+	}
+	for _, u := range ComputeFleet(us).Units {
+		if u.Serial == "U02" && (u.Runs != 2 || u.FirstVerdict != VerdictFail) {
+			t.Errorf("U02: %+v", u)
+		}
+	}
+}
+
+// Small samples (method.md section 10): below 10 points no point is
+// called out of control, below 30 units the capability is indicative.
+func TestFleetSmallSamples(t *testing.T) {
+	ls := ComputeFleet(marginUnits([]float64{0, 0, 0, 0, 0, 0, 0, 0, 5})).Products[0].Limits[0]
+	if !ls.Chart.TooFew || len(ls.Chart.Beyond) != 0 || !ls.Indicative {
+		t.Errorf("nine points: too few %v beyond %v indicative %v", ls.Chart.TooFew, ls.Chart.Beyond, ls.Indicative)
+	}
+	many := make([]float64, 30)
+	for i := range many {
+		many[i] = 1 + 0.01*float64(i%3)
+	}
+	ls = ComputeFleet(marginUnits(many)).Products[0].Limits[0]
+	if ls.Chart.TooFew || ls.Indicative {
+		t.Errorf("thirty units: too few %v indicative %v", ls.Chart.TooFew, ls.Indicative)
 	}
 }

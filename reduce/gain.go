@@ -16,6 +16,9 @@ func GainDBi(s21DB, rangeLossDB float64) float64 { return s21DB + rangeLossDB }
 type beamContext struct {
 	run *ingest.Run
 	rl  *RangeLoss
+	// rlCause is the unit problem the missing range loss follows from,
+	// -1 when there is none (see consequences).
+	rlCause int
 	// referenceK is the coverage factor of the reference certificate.
 	referenceK  float64
 	certificate string
@@ -78,6 +81,8 @@ type beamOutcome struct {
 	// noAUTMatch is true when the beam has gain but its transmission file
 	// holds no AUT reflection coefficient (mismatch term left out).
 	noAUTMatch bool
+	// noGT: the beam has no G/T.
+	noGT bool
 }
 
 // noiseUse is one checked noise trace of a beam.
@@ -277,9 +282,8 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	if density != nil {
 		nRel = onto(density.trace.FrequencyHz, density.trace.Values, "noise of "+density.in.File)
 		if density.in.Quantity == NoiseDensityDBmPerHz {
-			kt0 := KT0DBmPerHz()
 			for i := range nRel {
-				nRel[i] -= kt0 // NoiseRelativeFromDensityDB, with kT0 computed once
+				nRel[i] = NoiseRelativeFromDensityDB(nRel[i])
 			}
 		}
 	}
@@ -289,16 +293,14 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 	var gtDensity, gtFigure []float64
 	if nRel != nil && b.GainDBi != nil {
 		gtDensity = make([]float64, n)
-		t0 := ReferenceTemperatureDBK()
 		for i := range gtDensity {
-			gtDensity[i] = b.GainDBi[i] - nRel[i] - t0 // GTNoiseDensity, with 10log10(T0) computed once
+			gtDensity[i] = GTNoiseDensity(b.GainDBi[i], nRel[i])
 		}
 	}
 	if nf != nil && b.RangeLossDB != nil {
 		gtFigure = make([]float64, n)
-		t0 := ReferenceTemperatureDBK()
 		for i := range gtFigure {
-			gtFigure[i] = b.RangeLossDB[i] - nf[i] - t0 // GTSystemNoiseFigure, 10log10(T0) computed once
+			gtFigure[i] = GTSystemNoiseFigure(b.RangeLossDB[i], nf[i])
 		}
 	}
 	var scatterFile string
@@ -355,6 +357,7 @@ func reduceBeam(ctx *beamContext, rb *ingest.Beam, bd *ingest.BeamData) (Beam, b
 			}
 			problem(runFile, rb.Line, "beam %s: no G/T, because %s", rb.ID, why)
 		}
+		out.noGT = true
 	}
 	if scatterFile != "" {
 		scatterDB = scatterOf(scatterFile)

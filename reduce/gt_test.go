@@ -3,6 +3,8 @@ package reduce
 import (
 	"math"
 	"testing"
+
+	"gtpack.example/gtpack/ingest"
 )
 
 func TestGTForms(t *testing.T) {
@@ -71,4 +73,35 @@ func TestAmbientHalfWidth(t *testing.T) {
 	near(t, "290 K", AmbientHalfWidthDB(290), 0, 1e-15)
 	// Symmetric in the sense of magnitude: 270 K -> |10log10(270/290)| = 0.31034 dB (by hand).
 	near(t, "270 K", AmbientHalfWidthDB(270), 0.3103423, 1e-6)
+}
+
+// The G/T a reduced unit carries is exactly what the named functions of
+// method.md section 4 give for its own gain, range loss and noise: the
+// reduction calls them, there is no other copy of the formula.
+func TestReducedGTIsTheNamedFormula(t *testing.T) {
+	a, err := ingest.Open("../sample-archive")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, u := range a.Units {
+		r := u.Acceptance()
+		data, probs := a.Load(r)
+		res := ReduceUnit(Input{Run: r, Data: data, Station: a.Stations[r.Station], Reference: a.References[r.Reference],
+			Spec: a.Specs[r.Product], Problems: probs})
+		for _, b := range res.Beams {
+			if b.GTForm != FormNoiseDensity || len(b.NoiseRelativeKT0DB) != len(b.GTdBPerK) {
+				continue
+			}
+			for i, gt := range b.GTdBPerK {
+				if want := GTNoiseDensity(b.GainDBi[i], b.NoiseRelativeKT0DB[i]); gt != want {
+					t.Fatalf("%s %s point %d: G/T %v, GTNoiseDensity gives %v", u.Serial, b.ID, i, gt, want)
+				}
+				checked++
+			}
+		}
+	}
+	if checked < 1000 {
+		t.Fatalf("only %d points checked", checked)
+	}
 }

@@ -58,6 +58,10 @@ type Unit struct {
 	// Lab and Customer are who issues the report and for whom (nil when
 	// not stated); Issue is the report's issue state, set by the caller
 	// (IssueOf) once every input of the unit is known.
+	// RangeCheck is the run's check of its range: the range loss at band
+	// centre and its drift (nil when there is no range loss).
+	RangeCheck *RangeCheck `json:"range_check,omitempty"`
+
 	Lab      *LabInfo      `json:"lab,omitempty"`
 	Customer *CustomerInfo `json:"customer,omitempty"`
 	Issue    Issue         `json:"issue"`
@@ -275,11 +279,13 @@ type HistoryEntry struct {
 	WorstBeam     string   `json:"worst_beam,omitempty"`
 	WorstMarginDB *float64 `json:"worst_margin_db,omitempty"`
 	Notes         string   `json:"notes_markdown,omitempty"`
+	// RangeCheck is that run's range check (range health).
+	RangeCheck *RangeCheck `json:"range_check,omitempty"`
 }
 
 // HistoryOf is what the report of a later run shows of this one.
 func (u *Unit) HistoryOf() HistoryEntry {
-	h := HistoryEntry{Run: u.Run, Started: u.Started, Verdict: u.Verdict, Notes: u.Notes}
+	h := HistoryEntry{Run: u.Run, Started: u.Started, Verdict: u.Verdict, Notes: u.Notes, RangeCheck: u.RangeCheck}
 	for _, l := range u.Limits {
 		if math.IsNaN(l.WorstMarginDB) || math.IsInf(l.WorstMarginDB, 0) {
 			continue

@@ -25,6 +25,14 @@ func (u *Unit) Summary() UnitSummary {
 	if len(u.History) > 0 {
 		s.FirstVerdict = u.History[0].Verdict
 	}
+	for _, h := range u.History {
+		if h.RangeCheck != nil {
+			s.RangeChecks = append(s.RangeChecks, *h.RangeCheck)
+		}
+	}
+	if u.RangeCheck != nil {
+		s.RangeChecks = append(s.RangeChecks, *u.RangeCheck)
+	}
 	for i, l := range u.Limits {
 		l.LimitCurve = nil
 		s.Limits[i] = l

@@ -41,6 +41,30 @@ func ReduceUnit(in Input) (u *Unit) {
 			u.Problems = append(u.Problems, *p)
 		}
 	}
+	// causes: what ingest refused, by pointer, so that what follows from
+	// it is named under it (see explain).
+	var causes map[*ingest.Problem]int
+	for i, p := range in.Problems {
+		if p != nil {
+			if causes == nil {
+				causes = map[*ingest.Problem]int{}
+			}
+			if _, seen := causes[p]; !seen {
+				causes[p] = i
+			}
+		}
+	}
+	if in.Data != nil {
+		// A run's beams are reduced, charted and written point by point:
+		// the beams past ingest.MaxRunBeamPoints are refused, so that a
+		// unit's memory stays bounded. in.Data is the caller's: a copy is
+		// limited.
+		d := *in.Data
+		for _, p := range ingest.LimitBeamPoints(in.Run, &d) {
+			u.Problems = append(u.Problems, *p)
+		}
+		in.Data = &d
+	}
 	defer func() {
 		if r := recover(); r != nil {
 			file := ""
@@ -52,11 +76,72 @@ func ReduceUnit(in Input) (u *Unit) {
 			u.Verdict = VerdictIncomplete
 		}
 	}()
-	reduceInto(u, in)
+	c := &consequences{u: u, index: causes}
+	reduceInto(u, in, c)
+	c.write()
 	return u
 }
 
-func reduceInto(u *Unit, in Input) {
+// consequences holds what follows from a problem (a beam without G/T, a
+// limit that cannot judge it), to be said once, under that problem, and
+// never as a problem of its own against another file: "...; so: beam b00
+// has no G/T; limit "G/T at boresight" cannot judge beam b00".
+type consequences struct {
+	u     *Unit
+	index map[*ingest.Problem]int // ingest's problems, by pointer, to their place in u.Problems
+	of    map[int][]string
+}
+
+// explain notes text under problem i; false when i is not a problem.
+func (c *consequences) explain(i int, text string) bool {
+	if i < 0 || i >= len(c.u.Problems) {
+		return false
+	}
+	if c.of == nil {
+		c.of = map[int][]string{}
+	}
+	for _, t := range c.of[i] {
+		if t == text {
+			return true
+		}
+	}
+	c.of[i] = append(c.of[i], text)
+	return true
+}
+
+// cause returns the place of ingest's problem p, -1 when p is nil or not
+// among the unit's problems.
+func (c *consequences) cause(p *ingest.Problem) int {
+	if p == nil {
+		return -1
+	}
+	if i, ok := c.index[p]; ok {
+		return i
+	}
+	return -1
+}
+
+// at returns the first problem at file and line (line > 0), or -1.
+func (c *consequences) at(file string, line int) int {
+	if line <= 0 {
+		return -1
+	}
+	for i, p := range c.u.Problems {
+		if p.File == file && p.Line == line {
+			return i
+		}
+	}
+	return -1
+}
+
+// write appends each problem's consequences to its message.
+func (c *consequences) write() {
+	for i, texts := range c.of {
+		c.u.Problems[i].Message += " (so: " + strings.Join(texts, "; ") + ")"
+	}
+}
+
+func reduceInto(u *Unit, in Input, cons *consequences) {
 	run := in.Run
 	if run == nil {
 		u.Problems = append(u.Problems, ingest.Problem{Message: "no run description: nothing to reduce"})
@@ -96,10 +181,19 @@ func reduceInto(u *Unit, in Input) {
 		addProblem(ingest.Problemf(run.File, 0, "the run's data files were not read: no beam can be reduced"), false)
 		data = &ingest.RunData{}
 	}
+	causeOf := func(key string) int { return cons.cause(data.Causes[key]) }
+	// The discovery problem at a run.yaml key (an unknown station), or -1.
+	keyCause := func(key string) int { return cons.at(run.File, run.KeyLines[key]) }
+	// explainOr says text under the cause, or adds p when there is none.
+	explainOr := func(cause int, text string, p *ingest.Problem, dedupe bool) {
+		if !cons.explain(cause, text) {
+			addProblem(p, dedupe)
+		}
+	}
 	u.Notes = data.Notes
 	u.Inputs = append(u.Inputs, data.Inputs...)
 
-	ctx := &beamContext{run: run, referenceK: ExpandedCoverageK}
+	ctx := &beamContext{run: run, referenceK: ExpandedCoverageK, rlCause: -1}
 	ctx.ambientK = run.AmbientC + CelsiusOffsetK
 	ctx.ambientOK = ctx.ambientK > 0 && !math.IsNaN(ctx.ambientK) && !math.IsInf(ctx.ambientK, 0)
 	if !ctx.ambientOK {
@@ -119,8 +213,9 @@ func reduceInto(u *Unit, in Input) {
 		ctx.stationGain, ctx.stationGT = stationTerms(st, func(p *ingest.Problem) { addProblem(p, false) })
 	} else {
 		u.Station = StationInfo{ID: run.Station}
-		addProblem(ingest.Problemf(run.File, 0, "station %q is unknown or was refused: no receiver match, "+
-			"tolerances or station terms in the budgets", run.Station), false)
+		explainOr(keyCause("station"), "no receiver match, tolerances or station terms in the budgets",
+			ingest.Problemf(run.File, 0, "station %q is unknown or was refused: no receiver match, "+
+				"tolerances or station terms in the budgets", run.Station), false)
 	}
 
 	if ref := in.Reference; ref != nil {
@@ -141,20 +236,41 @@ func reduceInto(u *Unit, in Input) {
 		}
 		pre, post := data.RangePre, data.RangePost
 		if pre == nil && run.RangePre != "" {
-			addProblem(ingest.Problemf(run.RangePre, 0, "the pre reference measurement was refused or is missing"), true)
+			explainOr(causeOf("range_reference.pre"), "the pre reference measurement is not used",
+				ingest.Problemf(run.RangePre, 0, "the pre reference measurement was refused or is missing"), true)
 		}
 		if post == nil && run.RangePost != "" {
-			addProblem(ingest.Problemf(run.RangePost, 0, "the post reference measurement was refused or is missing"), true)
+			explainOr(causeOf("range_reference.post"), "the post reference measurement is not used",
+				ingest.Problemf(run.RangePost, 0, "the post reference measurement was refused or is missing"), true)
 		}
 		if pre == nil && post == nil {
-			addProblem(ingest.Problemf(run.File, 0, "no usable reference measurement: no range loss, so no gain and no G/T"), false)
+			ctx.rlCause = causeOf("range_reference.pre")
+			if ctx.rlCause < 0 {
+				ctx.rlCause = causeOf("range_reference.post")
+			}
+			explainOr(ctx.rlCause, "no range loss, so no gain and no G/T",
+				ingest.Problemf(run.File, 0, "no usable reference measurement: no range loss, so no gain and no G/T"), false)
 		}
 		rl, probs, flags := ComputeRangeLoss(ref, pre, post)
 		for _, p := range probs {
 			addProblem(p, false)
 		}
 		u.Flags = append(u.Flags, flags...)
+		if rl != nil {
+			// method.md section 13: a range loss no antenna range has is a
+			// wrong file or parameter, not a measurement.
+			for i, v := range rl.RangeLossDB {
+				if v < minPlausibleRangeLossDB || v > maxPlausibleRangeLossDB {
+					addProblem(ingest.Problemf(joinList(rl.Files), 0, "range loss %.1f dB at %s is outside %g to %g dB, which no antenna range produces (method.md section 13): the reference measurement is refused; expected the reference antenna's transmission in the range (is it the right file and parameter?)",
+						v, formatGHz(rl.FrequencyHz[i]), minPlausibleRangeLossDB, maxPlausibleRangeLossDB), false)
+					ctx.rlCause = len(u.Problems) - 1
+					rl = nil
+					break
+				}
+			}
+		}
 		ctx.rl = rl
+		u.RangeCheck = RangeCheckOf(run, in.Station, ref, rl)
 		if rl != nil {
 			if rl.ReferenceMatch == nil && ctx.haveStation {
 				u.Flags = append(u.Flags, Flag{Kind: "budget", Message: fmt.Sprintf(
@@ -177,8 +293,10 @@ func reduceInto(u *Unit, in Input) {
 		}
 	} else {
 		u.Reference = ReferenceInfo{ID: run.Reference}
-		addProblem(ingest.Problemf(run.File, 0, "reference %q is unknown or was refused: no range loss, so no gain and no G/T",
-			run.Reference), false)
+		ctx.rlCause = keyCause("reference")
+		explainOr(ctx.rlCause, "no range loss, so no gain and no G/T",
+			ingest.Problemf(run.File, 0, "reference %q is unknown or was refused: no range loss, so no gain and no G/T",
+				run.Reference), false)
 	}
 
 	if sp := in.Spec; sp != nil {
@@ -188,23 +306,79 @@ func reduceInto(u *Unit, in Input) {
 		}
 		ctx.operatingK = sp.OperatingAntennaK
 	} else {
-		addProblem(ingest.Problemf(run.File, 0, "spec for product %q is unknown or was refused: nothing can be judged",
-			run.Product), false)
+		explainOr(keyCause("product"), "nothing can be judged",
+			ingest.Problemf(run.File, 0, "spec for product %q is unknown or was refused: nothing can be judged",
+				run.Product), false)
 	}
 
 	var noMatch []string
+	beamCause := map[string]int{} // the problem a beam's missing results follow from
 	for i := range run.Beams {
 		var bd *ingest.BeamData
 		if i < len(data.Beams) {
 			bd = &data.Beams[i]
 		}
-		b, out := reduceBeam(ctx, &run.Beams[i], bd)
+		rb := &run.Beams[i]
+		b, out := reduceBeam(ctx, rb, bd)
+		// A refused file of the beam is said by ingest; what follows from
+		// it for the beam is said under it.
+		key := fmt.Sprintf("beams[%d]", i)
+		bcause := -1
+		note := func(c int, text string) bool {
+			// Said under its cause, the beam's consequence is short.
+			switch {
+			case strings.Contains(text, ": no G/T, because"), strings.Contains(text, "has no noise trace: no G/T"):
+				text = fmt.Sprintf("beam %s has no G/T", rb.ID)
+			case strings.Contains(text, "names no transmission file"):
+				text = fmt.Sprintf("beam %s has no gain", rb.ID)
+			}
+			if cons.explain(c, text) {
+				if bcause < 0 {
+					bcause = c
+				}
+				return true
+			}
+			return false
+		}
 		for _, p := range out.refused {
-			addProblem(p, true)
+			c := -1
+			text := ""
+			if p.File == rb.Transmission {
+				c, text = causeOf(key+".transmission"), fmt.Sprintf("beam %s has no gain", rb.ID)
+			}
+			for k, n := range rb.Noise {
+				if c < 0 && p.File == n.File {
+					c, text = causeOf(fmt.Sprintf("%s.noise[%d].file", key, k)), fmt.Sprintf("beam %s: its %s trace is not used", rb.ID, n.Quantity)
+				}
+			}
+			if !note(c, text) {
+				addProblem(p, true)
+			}
 		}
 		for _, p := range out.problems {
+			if p.File == run.File && p.Line == rb.Line && strings.HasPrefix(p.Message, "beam "+rb.ID) {
+				// The beam's own consequences: no transmission, no noise,
+				// no G/T. Their cause is a refused file of the beam, what
+				// resolving it against the plan found missing, or the range.
+				c := bcause
+				for _, k := range []string{".transmission", ".noise", ".theta_deg"} {
+					if c < 0 {
+						c = causeOf(key + k)
+					}
+				}
+				if c < 0 && strings.Contains(p.Message, "there is no range loss") {
+					c = ctx.rlCause
+				}
+				if note(c, p.Message) {
+					continue
+				}
+			}
 			addProblem(p, false)
 		}
+		if bcause < 0 && out.noGT {
+			bcause = ctx.rlCause
+		}
+		beamCause[rb.ID] = bcause
 		u.Flags = append(u.Flags, out.flags...)
 		if out.noAUTMatch && ctx.haveStation {
 			noMatch = append(noMatch, b.ID)
@@ -216,6 +390,16 @@ func reduceInto(u *Unit, in Input) {
 	}
 	if len(run.Beams) == 0 {
 		addProblem(ingest.Problemf(run.File, 0, "the run has no beams"), false)
+	}
+	for _, b := range u.Beams {
+		for i, v := range b.GTdBPerK {
+			if v < minPlausibleGTdBPerK || v > maxPlausibleGTdBPerK {
+				u.Flags = append(u.Flags, Flag{Kind: "implausible", Beam: b.ID, Message: fmt.Sprintf(
+					"G/T %.1f dB/K at %s is outside %g to %g dB/K, which is implausible for an antenna (method.md section 13): check the declared noise quantity and the files",
+					v, formatGHz(b.FrequencyHz[i]), minPlausibleGTdBPerK, maxPlausibleGTdBPerK)})
+				break
+			}
+		}
 	}
 	if len(noMatch) > 0 {
 		u.Flags = append(u.Flags, Flag{Kind: "budget", Message: fmt.Sprintf(
@@ -229,6 +413,20 @@ func reduceInto(u *Unit, in Input) {
 		res, probs := EvaluateLimits(in.Spec, u.Beams)
 		u.Limits = res
 		for _, p := range probs {
+			// "limit X cannot judge beam b00: the beam has no G/T" follows
+			// from the beam's cause, when it has one.
+			if _, rest, ok := strings.Cut(p.Message, " cannot judge beam "); ok {
+				id, why, _ := strings.Cut(rest, ":")
+				if c, ok := beamCause[id]; ok && strings.HasPrefix(strings.TrimSpace(why), "the beam has no") &&
+					cons.explain(c, strings.TrimSuffix(p.Message, ":"+why)) {
+					continue
+				}
+			}
+			// A limit that selects none of the run's beams is about the
+			// run (its beams), not the spec.
+			if strings.HasSuffix(p.Message, "selects no beam of this run") && p.File == in.Spec.File {
+				p = ingest.Problemf(run.File, run.KeyLines["beams"], "%s (%s:%d); expected the run to measure a beam it selects", p.Message, p.File, p.Line)
+			}
 			addProblem(p, false)
 		}
 	}
@@ -259,6 +457,14 @@ func unitVerdict(u *Unit) string {
 	}
 	return v
 }
+
+// Plausibility ranges of method.md section 13 (common practice).
+const (
+	minPlausibleRangeLossDB = 0.0
+	maxPlausibleRangeLossDB = 150.0
+	minPlausibleGTdBPerK    = -60.0
+	maxPlausibleGTdBPerK    = 60.0
+)
 
 // ReferenceExpired reports whether a run started on a calendar day (UTC)
 // after the reference's due date. A zero due date never expires.

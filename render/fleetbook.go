@@ -117,7 +117,7 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*red
 	b.addBulk(sheet, t)
 	if len(f.Units) > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("D2:D%d", len(f.Units)+1))
-		first := xlCol(len(cols) - len(fleetIssueColumns) + 2)
+		first := b.colName(len(cols) - len(fleetIssueColumns) + 2)
 		b.verdictRules(sheet, fmt.Sprintf("%s2:%s%d", first, first, len(f.Units)+1))
 	}
 }
@@ -217,10 +217,10 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 			if r-first >= 2 {
 				var series []chartSeries
 				for col := 6; col <= 9; col++ {
-					series = append(series, chartSeries{name: xlRef(sheet, col, 1, 1), values: xlRef(sheet, col, first, r-1), dash: col > 6})
+					series = append(series, chartSeries{name: b.ref(sheet, col, 1, 1), values: b.ref(sheet, col, first, r-1), dash: col > 6})
 				}
-				b.lineChart(sheet, xlCell(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin in test order", p.Product, l.Name),
-					"Test order", "Worst margin (dB)", xlRef(sheet, 3, first, r-1), chartX{points: r - first, format: "0"}, series)
+				b.lineChart(sheet, b.cellName(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin in test order", p.Product, l.Name),
+					"Test order", "Worst margin (dB)", b.ref(sheet, 3, first, r-1), chartX{points: r - first, format: "0"}, series)
 				charts++
 			}
 		}
@@ -278,12 +278,12 @@ func writeBand(b *xlBook, sheet string, f *reduce.Fleet) {
 			r++
 		}
 		series := []chartSeries{
-			{name: xlRef(sheet, 3, 1, 1), values: xlRef(sheet, 3, first, r-1)},
-			{name: xlRef(sheet, 4, 1, 1), values: xlRef(sheet, 4, first, r-1), dash: true},
-			{name: xlRef(sheet, 5, 1, 1), values: xlRef(sheet, 5, first, r-1), dash: true},
+			{name: b.ref(sheet, 3, 1, 1), values: b.ref(sheet, 3, first, r-1)},
+			{name: b.ref(sheet, 4, 1, 1), values: b.ref(sheet, 4, first, r-1), dash: true},
+			{name: b.ref(sheet, 5, 1, 1), values: b.ref(sheet, 5, first, r-1), dash: true},
 		}
-		b.lineChart(sheet, xlCell(8, 2+charts*22), fmt.Sprintf("%s: boresight G/T band over %d units", p.Product, g.Units),
-			"Frequency (GHz)", "G/T (dB/K)", xlRef(sheet, 2, first, r-1), chartX{points: r - first, numeric: true,
+		b.lineChart(sheet, b.cellName(8, 2+charts*22), fmt.Sprintf("%s: boresight G/T band over %d units", p.Product, g.Units),
+			"Frequency (GHz)", "G/T (dB/K)", b.ref(sheet, 2, first, r-1), chartX{points: r - first, numeric: true,
 				min: bandEdge(g.FrequencyHz, false), max: bandEdge(g.FrequencyHz, true)}, series)
 		charts++
 	}

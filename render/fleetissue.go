@@ -17,17 +17,9 @@ func (fi fleetIssue) Retested() bool { return fi.Runs > 1 }
 // known is true when the fleet has the unit's issue state.
 func (fi fleetIssue) known() bool { return fi.State != "" || fi.Runs > 0 }
 
-// fleetIssueOf is a unit's issue state and runs as the fleet keeps them.
-//
-// reduce.UnitSummary carries them (Runs, FirstVerdict, IssueState,
-// Revision, ReportNumber), but reduce.FleetUnit, which the fleet pages are
-// made from, does not yet: until FleetBuilder.Add copies them into it, the
-// fleet pages know none and leave them out (the workbook keeps its
-// columns, empty). With those five fields on FleetUnit this is
-//
-//	return fleetIssue{State: u.IssueState, Revision: u.Revision, ReportNumber: u.ReportNumber,
-//		Runs: u.Runs, FirstVerdict: u.FirstVerdict}
+// fleetIssueOf is a unit's issue state and runs as the fleet keeps them
+// (reduce.FleetUnit, from the unit's summary).
 func fleetIssueOf(u *reduce.FleetUnit) fleetIssue {
-	_ = u
-	return fleetIssue{}
+	return fleetIssue{State: u.IssueState, Revision: u.Revision, ReportNumber: u.ReportNumber,
+		Runs: u.Runs, FirstVerdict: u.FirstVerdict}
 }

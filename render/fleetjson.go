@@ -52,6 +52,18 @@ func WriteFleetJSON(w io.Writer, f *reduce.Fleet) error {
 	if b, err = appendJSON(b, reflect.ValueOf(f.Products), 1); err != nil {
 		return err
 	}
+	for _, part := range []struct {
+		name string
+		v    any
+	}{{"stations", f.Stations}, {"references", f.References}} {
+		b = append(b, ',')
+		b = appendNewline(b, 1)
+		b = appendJSONString(b, part.name)
+		b = append(b, ':', ' ')
+		if b, err = appendJSON(b, reflect.ValueOf(part.v), 1); err != nil {
+			return err
+		}
+	}
 	if len(f.Notices) > 0 {
 		b = append(b, ',')
 		b = appendNewline(b, 1)

@@ -145,13 +145,30 @@ var unitFormats = []string{nfDB, nfGHz, nfDeg, nfTemp, nfDiv, nfInt}
 
 // skeletons holds the skeletons made so far, by shape. A build sees a few
 // shapes (one per product and specification); when more than
-// maxSkeletons have been made the store starts again.
+// maxSkeletons have been made, or they would hold more than
+// maxSkeletonBytes, the store starts again. A skeleton takes some 4 kB a
+// beam (67 kB for 16 beams, 0.85 MB for 256, measured), so that the store
+// stays within a few megabytes even when every unit has a shape of its
+// own with many beams.
 var skeletons struct {
 	sync.Mutex
-	m map[string]*unitSkeleton
+	m     map[string]*unitSkeleton
+	bytes int
 }
 
-const maxSkeletons = 32
+const (
+	maxSkeletons     = 32
+	maxSkeletonBytes = 8 << 20
+)
+
+// size is about what the skeleton holds, in bytes.
+func (sk *unitSkeleton) size() int {
+	n := 0
+	for _, p := range sk.parts {
+		n += len(p.name) + len(p.xml) + len(p.stored) + 64
+	}
+	return n
+}
 
 // skeletonFor returns the skeleton of shape s, made when it is new. Two
 // workers meeting a new shape at once both make it; they make the same.
@@ -167,11 +184,15 @@ func skeletonFor(s *unitShape) (*unitSkeleton, error) {
 	if err != nil {
 		return nil, err
 	}
+	size := sk.size()
 	skeletons.Lock()
-	if skeletons.m == nil || len(skeletons.m) >= maxSkeletons {
-		skeletons.m = map[string]*unitSkeleton{}
+	if skeletons.m == nil || len(skeletons.m) >= maxSkeletons || skeletons.bytes+size > maxSkeletonBytes {
+		skeletons.m, skeletons.bytes = map[string]*unitSkeleton{}, 0
 	}
-	skeletons.m[k] = sk
+	if _, kept := skeletons.m[k]; !kept {
+		skeletons.m[k] = sk
+		skeletons.bytes += size
+	}
 	skeletons.Unlock()
 	return sk, nil
 }
@@ -248,7 +269,10 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	}
 	// The shared parts are compressed once, at the best level.
 	var z bytes.Buffer
-	d, _ := flate.NewWriter(&z, flate.BestCompression) // a valid level never fails
+	d, err := flate.NewWriter(&z, flate.BestCompression)
+	if err != nil {
+		return nil, err
+	}
 	for _, e := range c.entries {
 		data := e.data.Bytes()
 		p := skeletonPart{name: e.name}
@@ -298,7 +322,11 @@ func (sk *unitSkeleton) write(tables map[string]*bulkSheet, title, subject strin
 	var out bytes.Buffer
 	out.Grow(size + bulkSize(tables))
 	zw := zip.NewWriter(&out)
-	defer useDeflater(zw)()
+	release, err := useDeflater(zw)
+	if err != nil {
+		return nil, err
+	}
+	defer release()
 	byPart := make(map[string]*bulkSheet, len(tables))
 	for name, t := range tables {
 		p, ok := sk.sheetPart[name]
@@ -324,7 +352,10 @@ func (sk *unitSkeleton) write(tables map[string]*bulkSheet, title, subject strin
 		}
 		switch t := byPart[p.name]; {
 		case p.name == corePart:
-			_, err = w.Write(fillCore(p.xml, title, subject, created.UTC().Format(time.RFC3339)))
+			var core []byte
+			if core, err = fillCore(p.xml, title, subject, created.UTC().Format(time.RFC3339)); err == nil {
+				_, err = w.Write(core)
+			}
 		case t != nil:
 			err = writeBulkSheet(w, p.xml, t)
 		default:
@@ -364,13 +395,13 @@ func rawHeader(p skeletonPart, modified time.Time) *zip.FileHeader {
 
 // fillCore fills the slots of docProps/core.xml, each value escaped as
 // encoding/xml escapes text.
-func fillCore(core []byte, title, subject, stamp string) []byte {
-	esc := func(s string) []byte {
+func fillCore(core []byte, title, subject, stamp string) ([]byte, error) {
+	for _, slot := range [][2]string{{slotTitle, title}, {slotSubject, subject}, {slotStamp, stamp}} {
 		var b bytes.Buffer
-		xml.EscapeText(&b, []byte(s)) // writes to memory: cannot fail
-		return b.Bytes()
+		if err := xml.EscapeText(&b, []byte(slot[1])); err != nil {
+			return nil, err
+		}
+		core = bytes.ReplaceAll(core, []byte(slot[0]), b.Bytes())
 	}
-	core = bytes.ReplaceAll(core, []byte(slotTitle), esc(title))
-	core = bytes.ReplaceAll(core, []byte(slotSubject), esc(subject))
-	return bytes.ReplaceAll(core, []byte(slotStamp), esc(stamp))
+	return core, nil
 }

@@ -11,7 +11,7 @@ import (
 // forgetSkeletons empties the store of workbook skeletons.
 func forgetSkeletons() {
 	skeletons.Lock()
-	skeletons.m = nil
+	skeletons.m, skeletons.bytes = nil, 0
 	skeletons.Unlock()
 }
 
@@ -107,6 +107,28 @@ func TestBandEdge(t *testing.T) {
 	} {
 		if lo, hi := bandEdge(c.hz, false), bandEdge(c.hz, true); math.Abs(lo-c.lo) > 1e-12 || math.Abs(hi-c.hi) > 1e-12 {
 			t.Errorf("%s: %v to %v, want %v to %v", c.describe, lo, hi, c.lo, c.hi)
+		}
+	}
+}
+
+// The store of skeletons holds at most maxSkeletonBytes, however large and
+// many the shapes: eleven shapes of 256 beams (some 0.85 MB each) do not
+// all stay.
+func TestSkeletonStoreBounded(t *testing.T) {
+	forgetSkeletons()
+	defer forgetSkeletons()
+	for points := 11; points < 22; points++ {
+		if _, err := UnitWorkbook(fixtureUnit(t, 256, points)); err != nil {
+			t.Fatal(err)
+		}
+		skeletons.Lock()
+		n, size := len(skeletons.m), skeletons.bytes
+		skeletons.Unlock()
+		if size > maxSkeletonBytes || n == 0 {
+			t.Fatalf("after %d shapes: %d skeletons of %d bytes, more than %d", points-10, n, size, maxSkeletonBytes)
+		}
+		if points == 21 && n == 11 {
+			t.Errorf("all eleven skeletons of %d bytes are kept", size)
 		}
 	}
 }

@@ -16,6 +16,7 @@ import (
 	"github.com/klauspost/compress/flate"
 	"github.com/xuri/excelize/v2"
 
+	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
 )
 
@@ -117,28 +118,38 @@ func (z *zipParts) sorted() error {
 		}
 		if fixed := numericXValues(e.name, e.data.Bytes()); fixed != nil {
 			e.data.Reset()
-			e.data.Write(fixed)
+			if _, err := e.data.Write(fixed); err != nil {
+				return err
+			}
 		}
 	}
 	return nil
 }
 
 // deflaters holds compressors between workbooks: a new one costs more to
-// set up (some 1 MB of tables) than most parts cost to compress.
+// set up (some 1 MB of tables) than most parts cost to compress. Its New
+// returns the error of flate.NewWriter, if any (none for a valid level).
 var deflaters = sync.Pool{New: func() any {
-	w, _ := flate.NewWriter(io.Discard, flate.BestSpeed) // a valid level never fails
+	w, err := flate.NewWriter(io.Discard, flate.BestSpeed)
+	if err != nil {
+		return err
+	}
 	return w
 }}
 
 // useDeflater gives zw a pooled compressor for its deflated parts and
 // returns the function that gives it back, once zw is closed.
-func useDeflater(zw *zip.Writer) (release func()) {
-	d := deflaters.Get().(*flate.Writer)
+func useDeflater(zw *zip.Writer) (release func(), err error) {
+	v := deflaters.Get()
+	d, ok := v.(*flate.Writer)
+	if !ok {
+		return nil, fmt.Errorf("render: no compressor for the workbook: %v", v)
+	}
 	zw.RegisterCompressor(zip.Deflate, func(out io.Writer) (io.WriteCloser, error) {
 		d.Reset(out)
 		return reusedDeflater{d}, nil
 	})
-	return func() { deflaters.Put(d) }
+	return func() { deflaters.Put(d) }, nil
 }
 
 // reusedDeflater is one compressor reset for each part in turn: zip.Writer
@@ -152,7 +163,11 @@ func (z *sortedZip) Close() error {
 	// BestSpeed took 82 ms, and its output is smaller (1.46 MB against
 	// 1.57 MB); compress/flate's default level was 3.4 times slower than
 	// its BestSpeed for 15 % less.
-	defer useDeflater(z.w)()
+	release, err := useDeflater(z.w)
+	if err != nil {
+		return err
+	}
+	defer release()
 	if err := z.sorted(); err != nil {
 		return err
 	}
@@ -315,20 +330,32 @@ func truncateRunes(s string, n int) string {
 	return string(r)
 }
 
-// xlRef is an absolute range reference to column col (1-based) rows r0..r1
-// of sheet, for chart series.
-func xlRef(sheet string, col, r0, r1 int) string {
-	c, _ := excelize.ColumnNumberToName(col)
+// ref is an absolute range reference to column col (1-based) rows r0..r1
+// of sheet, for chart series. A column or row outside the sheet is the
+// book's error (and the reference is not valid).
+func (b *xlBook) ref(sheet string, col, r0, r1 int) string {
+	c := b.colName(col)
+	for _, r := range []int{r0, r1} {
+		if r < 1 || r > ingest.MaxSheetRows {
+			b.check(fmt.Errorf("render: sheet %q: row %d is outside the sheet's rows 1 to %d", sheet, r, ingest.MaxSheetRows))
+		}
+	}
 	return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", sheet, c, r0, c, r1)
 }
 
-func xlCell(col, row int) string {
-	s, _ := excelize.CoordinatesToCellName(col, row)
+// cellName is the name of the cell at col and row (1-based), e.g. B7; a
+// cell outside a sheet is the book's error.
+func (b *xlBook) cellName(col, row int) string {
+	s, err := excelize.CoordinatesToCellName(col, row)
+	b.check(err)
 	return s
 }
 
-func xlCol(col int) string {
-	s, _ := excelize.ColumnNumberToName(col)
+// colName is the name of column col (1-based), e.g. AB; a column outside
+// a sheet is the book's error.
+func (b *xlBook) colName(col int) string {
+	s, err := excelize.ColumnNumberToName(col)
+	b.check(err)
 	return s
 }
 
@@ -348,7 +375,9 @@ func (b *xlBook) numStyle(format string) int {
 	return id
 }
 
-// set writes one cell: a float64 that is not finite stays empty, as does nil.
+// set writes one cell: a float64 that is not finite stays empty, as does nil;
+// a text longer than a cell holds is cut with a note (cellText), where
+// excelize would cut it without one.
 func (b *xlBook) set(sheet string, col, row int, v any) {
 	switch x := v.(type) {
 	case nil:
@@ -357,8 +386,10 @@ func (b *xlBook) set(sheet string, col, row int, v any) {
 		if math.IsNaN(x) || math.IsInf(x, 0) {
 			return
 		}
+	case string:
+		v = cellText(x)
 	}
-	b.check(b.f.SetCellValue(sheet, xlCell(col, row), v))
+	b.check(b.f.SetCellValue(sheet, b.cellName(col, row), v))
 }
 
 // setRow writes values from column 1 of row.
@@ -374,7 +405,7 @@ func (b *xlBook) setNum(sheet string, col, row int, v float64, format string) {
 		return
 	}
 	b.set(sheet, col, row, v)
-	c := xlCell(col, row)
+	c := b.cellName(col, row)
 	b.check(b.f.SetCellStyle(sheet, c, c, b.numStyle(format)))
 }
 
@@ -392,7 +423,7 @@ type xlColumn struct {
 // written later takes them.
 func (b *xlBook) table(sheet string, row int, cols []xlColumn, freeze bool) {
 	for i, c := range cols {
-		name := xlCol(i + 1)
+		name := b.colName(i + 1)
 		if c.format != "" && freeze {
 			b.check(b.f.SetColStyle(sheet, name, b.numStyle(c.format)))
 		}
@@ -402,12 +433,12 @@ func (b *xlBook) table(sheet string, row int, cols []xlColumn, freeze bool) {
 		b.set(sheet, i+1, row, c.header)
 	}
 	if len(cols) > 0 {
-		b.check(b.f.SetCellStyle(sheet, xlCell(1, row), xlCell(len(cols), row), b.header))
+		b.check(b.f.SetCellStyle(sheet, b.cellName(1, row), b.cellName(len(cols), row), b.header))
 	}
 	if freeze {
 		b.check(b.f.SetPanes(sheet, &excelize.Panes{
-			Freeze: true, YSplit: row, TopLeftCell: xlCell(1, row+1), ActivePane: "bottomLeft",
-			Selection: []excelize.Selection{{SQRef: xlCell(1, row+1), ActiveCell: xlCell(1, row+1), Pane: "bottomLeft"}},
+			Freeze: true, YSplit: row, TopLeftCell: b.cellName(1, row+1), ActivePane: "bottomLeft",
+			Selection: []excelize.Selection{{SQRef: b.cellName(1, row+1), ActiveCell: b.cellName(1, row+1), Pane: "bottomLeft"}},
 		}))
 	}
 }
@@ -684,7 +715,7 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 	b.check(b.f.SetColWidth(sheet, "B", "B", 34))
 	b.check(b.f.SetColWidth(sheet, "C", "F", 14))
 	verdictRow, limitsHeader, beamsHeader := summaryLayout(s.limits)
-	b.verdictRules(sheet, xlCell(2, verdictRow))
+	b.verdictRules(sheet, b.cellName(2, verdictRow))
 	if s.limits > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", limitsHeader+1, limitsHeader+s.limits))
 	}
@@ -692,12 +723,12 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 	for i, bm := range s.beams {
 		if gtValues[i] != "" && bm.firstGrid {
 			row := beamsHeader + 1 + i
-			series = append(series, chartSeries{name: xlRef(sheet, 1, row, row), values: gtValues[i]})
+			series = append(series, chartSeries{name: b.ref(sheet, 1, row, row), values: gtValues[i]})
 		}
 	}
 	if len(series) > 0 {
 		b.lineChart(sheet, "H2", "G/T of the beams", "Frequency (GHz)", "G/T (dB/K)",
-			xlRef(beamSheets[0], 1, 2, s.beams[0].n+1), s.beams[0].axis(), series)
+			b.ref(beamSheets[0], 1, 2, s.beams[0].n+1), s.beams[0].axis(), series)
 	}
 }
 
@@ -817,15 +848,15 @@ func beamSheetFrame(b *xlBook, sheet string, bm *beamShape) string {
 	gt := ""
 	if n := bm.n; n > 0 {
 		// Series names are formulas: they point at the header cells.
-		categories := xlRef(sheet, 1, 2, n+1)
-		series := []chartSeries{{name: xlRef(sheet, 7, 1, 1), values: xlRef(sheet, 7, 2, n+1)}}
+		categories := b.ref(sheet, 1, 2, n+1)
+		series := []chartSeries{{name: b.ref(sheet, 7, 1, 1), values: b.ref(sheet, 7, 2, n+1)}}
 		for ci, c := range bm.cols {
 			if strings.HasPrefix(c.header, "Limit ") && strings.HasSuffix(c.header, "(dB/K)") {
-				series = append(series, chartSeries{name: xlRef(sheet, ci+1, 1, 1), values: xlRef(sheet, ci+1, 2, n+1), dash: true})
+				series = append(series, chartSeries{name: b.ref(sheet, ci+1, 1, 1), values: b.ref(sheet, ci+1, 2, n+1), dash: true})
 			}
 		}
 		title := fmt.Sprintf("G/T, beam %s (theta %g deg, phi %g deg)", bm.id, bm.theta, bm.phi)
-		b.lineChart(sheet, xlCell(len(bm.cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, bm.axis(), series)
+		b.lineChart(sheet, b.cellName(len(bm.cols)+2, 2), title, "Frequency (GHz)", "G/T (dB/K)", categories, bm.axis(), series)
 		gt = series[0].values
 	}
 	b.check(b.f.SetPanes(sheet, &excelize.Panes{

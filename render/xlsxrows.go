@@ -15,6 +15,8 @@ import (
 	"unicode/utf8"
 
 	"github.com/xuri/excelize/v2"
+
+	"gtpack.example/gtpack/ingest"
 )
 
 // The frequency tables of the beam sheets are most of a unit workbook (16
@@ -179,9 +181,34 @@ func sheetParts(entries []*zipEntry) (map[string]string, error) {
 	return sheets, nil
 }
 
+// checkBounds returns an error when t would not fit a sheet: a row past
+// the row limit (ingest.MaxSheetRows) or a column past the column limit
+// (excelize.MaxColumns, 16,384: column XFD). Such a sheet is not written:
+// its dimension could not be stated, and a spreadsheet application would
+// refuse or cut the file.
+func (t *bulkSheet) checkBounds() error {
+	last := t.first + len(t.rows) + t.n - 1
+	if len(t.rows)+t.n > 0 && (t.first < 1 || last > ingest.MaxSheetRows) {
+		return fmt.Errorf("render: a table of %d rows from row %d would end at row %d, past the %d rows of a sheet", len(t.rows)+t.n, t.first, last, ingest.MaxSheetRows)
+	}
+	width := max(t.width, len(t.cols))
+	for _, r := range t.rows {
+		width = max(width, len(r))
+	}
+	if width > excelize.MaxColumns {
+		return fmt.Errorf("render: a table of %d columns is wider than the %d columns of a sheet", width, excelize.MaxColumns)
+	}
+	return nil
+}
+
 // writeBulkSheet writes the sheet XML that excelize made, with the rows of
 // t added at the end of its sheetData and the dimension set to cover them.
+// A table that does not fit a sheet is an error, before anything is
+// written.
 func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
+	if err := t.checkBounds(); err != nil {
+		return err
+	}
 	head, tail, ok := bytes.Cut(sheetXML, []byte("</sheetData>"))
 	if ok {
 		tail = sheetXML[len(head):]
@@ -194,7 +221,10 @@ func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
 	if d := bytes.Index(head, []byte(`<dimension ref="`)); d >= 0 {
 		d += len(`<dimension ref="`)
 		if q := bytes.IndexByte(head[d:], '"'); q >= 0 {
-			last, _ := excelize.CoordinatesToCellName(max(t.width, 1), max(t.first+len(t.rows)+t.n-1, 1))
+			last, err := excelize.CoordinatesToCellName(max(t.width, 1), max(t.first+len(t.rows)+t.n-1, 1))
+			if err != nil {
+				return err
+			}
 			if _, err := w.Write(head[:d]); err != nil {
 				return err
 			}
@@ -230,21 +260,27 @@ func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
 // colsXML is the cols element of the widths, one col for each run of
 // equal widths; "" when every width is the default.
 func colsXML(widths []float64) string {
-	var b strings.Builder
+	var b []byte
 	for i := 0; i < len(widths); {
 		j := i + 1
 		for j < len(widths) && widths[j] == widths[i] {
 			j++
 		}
 		if widths[i] > 0 {
-			fmt.Fprintf(&b, `<col min="%d" max="%d" width="%s" customWidth="1"/>`, i+1, j, strconv.FormatFloat(widths[i], 'f', -1, 64))
+			b = append(b, `<col min="`...)
+			b = strconv.AppendInt(b, int64(i+1), 10)
+			b = append(b, `" max="`...)
+			b = strconv.AppendInt(b, int64(j), 10)
+			b = append(b, `" width="`...)
+			b = strconv.AppendFloat(b, widths[i], 'f', -1, 64)
+			b = append(b, `" customWidth="1"/>`...)
 		}
 		i = j
 	}
-	if b.Len() == 0 {
+	if len(b) == 0 {
 		return ""
 	}
-	return "<cols>" + b.String() + "</cols>"
+	return "<cols>" + string(b) + "</cols>"
 }
 
 // cellWriter appends the cells of one row, stating a cell's reference
@@ -252,14 +288,21 @@ func colsXML(widths []float64) string {
 type cellWriter struct {
 	names []string // column names, from A
 	row   int
-	next  int // index of the column that follows without a reference
+	next  int   // index of the column that follows without a reference
+	err   error // a column without a name (checkBounds prevents it)
 }
 
 func (c *cellWriter) open(buf []byte, col, style int, text bool) []byte {
 	buf = append(buf, `<c`...)
 	if col != c.next {
 		for len(c.names) <= col {
-			name, _ := excelize.ColumnNumberToName(len(c.names) + 1)
+			name, err := excelize.ColumnNumberToName(len(c.names) + 1)
+			if err != nil {
+				if c.err == nil {
+					c.err = err
+				}
+				name = "A"
+			}
 			c.names = append(c.names, name)
 		}
 		buf = append(buf, ` r="`...)
@@ -297,6 +340,9 @@ func writeBulkRows(w io.Writer, t *bulkSheet) error {
 		cw.row, cw.next = row, 0
 	}
 	flush := func() error {
+		if cw.err != nil {
+			return cw.err
+		}
 		if len(buf) < 64<<10 {
 			return nil
 		}
@@ -374,24 +420,54 @@ func writeBulkRows(w io.Writer, t *bulkSheet) error {
 // text reads back as written.
 var xlEscapedChar = regexp.MustCompile(`_x[0-9A-Fa-f]{4}_`)
 
+// cellText is s as a cell holds it: s itself when it fits a cell
+// (ingest.MaxCellChars UTF-16 units), else its beginning and a note that
+// says how much is not shown, within the limit, so that a cut text never
+// reads as the whole. The texts of a workbook come from the results,
+// which the report and result.json show whole.
+func cellText(s string) string {
+	if len(s) <= ingest.MaxCellChars { // at most one UTF-16 unit a byte
+		return s
+	}
+	units := 0
+	for _, r := range s {
+		units += utf16.RuneLen(r)
+	}
+	if units <= ingest.MaxCellChars {
+		return s
+	}
+	// The note with the widest count it could need (the whole text's).
+	note := func(n int) string { return fmt.Sprintf(" … [cut: %d characters not shown; see the report]", n) }
+	keep := ingest.MaxCellChars - utf16Len(note(utf8.RuneCountInString(s)))
+	kept, cut := 0, len(s)
+	for i, r := range s {
+		if kept+utf16.RuneLen(r) > keep {
+			cut = i
+			break
+		}
+		kept += utf16.RuneLen(r)
+	}
+	return s[:cut] + note(utf8.RuneCountInString(s[cut:]))
+}
+
+// utf16Len is the length of s in UTF-16 units.
+func utf16Len(s string) int {
+	n := 0
+	for _, r := range s {
+		n += utf16.RuneLen(r)
+	}
+	return n
+}
+
 // appendXLText writes the closing of a <t> start tag and s as its text:
-// XML-escaped, characters XML 1.0 does not allow replaced by U+FFFD (as
-// encoding/xml does), spaces kept at either end, at most 32,767 UTF-16
-// units (a cell's limit).
+// cut with a note past a cell's limit (cellText), XML-escaped, characters
+// XML 1.0 does not allow replaced by U+FFFD (as encoding/xml does), spaces
+// kept at either end.
 func appendXLText(b []byte, s string) []byte {
 	if s == "" {
 		return append(b, '>')
 	}
-	if len(s) > 32767 {
-		units := 0
-		for i, r := range s {
-			units += utf16.RuneLen(r)
-			if units > 32767 {
-				s = s[:i]
-				break
-			}
-		}
-	}
+	s = cellText(s)
 	if strings.Contains(s, "_x") {
 		s = xlEscapedChar.ReplaceAllString(s, "_x005F$0")
 	}

@@ -101,6 +101,10 @@
       if (g.heat) {
         return 'row ' + esc(v[1] + (g.firstRow || 0)) + ', column ' + esc(v[0] + (g.firstCol || 0)) + ': ' + esc(num(v[2], 1)) + ' deg';
       }
+      if (g.dates) {
+        return '<b>' + esc(p.name || p.seriesName) + '</b><br>' + esc(p.seriesName) + ', ' + esc(String(v[0]).slice(0, 10)) + ': ' +
+          esc(num(v[1], 3)) + ' ' + esc(g.unit || '');
+      }
       if (g.categories) {
         return esc(g.categories[p.dataIndex] || p.name) + ': ' + esc(num(v[1] !== undefined ? v[1] : v, 3)) + ' ' + esc(g.unit || '');
       }

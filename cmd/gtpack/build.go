@@ -148,10 +148,6 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	}
 	defer site.close()
 	refused := false
-	for _, p := range archive.Problems {
-		fmt.Fprintln(stderr, p.Error())
-		refused = true
-	}
 	// What the fleet pages were made from, before this build changes a
 	// unit: if they cannot be made again, they stay only while it holds.
 	statesBefore, err := site.statesDigest()
@@ -178,6 +174,16 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	}
 	if o.only != "" && len(units) == 0 {
 		return exitUsage, usageError("no unit with serial %q in %s", o.only, o.archive)
+	}
+	// Discovery's problems, but those of the runs built here: they are
+	// printed with their unit. With --only, only those about that unit.
+	withUnit := goodRunFiles(units)
+	for _, p := range archive.Problems {
+		if withUnit[p.File] || (o.only != "" && !concerns(units[0], p)) {
+			continue
+		}
+		fmt.Fprintln(stderr, p.Error())
+		refused = true
 	}
 	// Units that left the archive leave the site, unless the build is
 	// restricted to one serial (the rest of the archive was not looked at
@@ -222,7 +228,7 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	thisBuild := map[string]bool{}
 	for out := range outcomes {
 		thisBuild[out.serial] = true
-		for _, p := range out.problems {
+		for _, p := range ingest.SortProblems(out.problems) {
 			prog.println(fmt.Sprintf("%s (unit %s)", p.Error(), out.serial))
 			refused = true
 		}
@@ -401,8 +407,14 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		out.err = &siteError{fmt.Errorf("%v; expected the state gtpack wrote (remove it and the unit's files by hand to start the unit afresh)", err)}
 		return out
 	}
+	// The files its refused runs name are checked as check does.
+	for _, rr := range u.Refused {
+		out.problems = append(out.problems, a.RefusedProblems(rr)...)
+	}
 	if r := u.AcceptanceRefused(); r != nil {
-		return keepStale(site, u, r, old)
+		stale := keepStale(site, u, r, old)
+		stale.problems = out.problems
+		return stale
 	}
 	if !force {
 		if ok, refreshed := site.current(a, u, old); ok {
@@ -423,10 +435,7 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		return out
 	}
 	res := w.unit
-	for i := range res.Problems {
-		p := res.Problems[i]
-		out.problems = append(out.problems, &p)
-	}
+	out.problems = append(out.problems, w.problems...)
 
 	files, err := renderUnit(res)
 	if err != nil {
@@ -503,7 +512,9 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 // result with the earlier runs as its history and its issue state, and
 // every file read for it.
 type wholeUnit struct {
-	unit      *reduce.Unit
+	unit *reduce.Unit
+	// problems are those of every run, the history's too.
+	problems  []*ingest.Problem
 	runs      []*ingest.Run // whole, oldest first
 	inputs    []ingest.InputFile
 	absent    []string
@@ -538,6 +549,9 @@ func reduceWhole(a *ingest.Archive, u *ingest.Unit) (*wholeUnit, error) {
 			h = history
 		}
 		reduced, data := reduceRun(a, r, h)
+		for i := range reduced.Problems {
+			w.problems = append(w.problems, &reduced.Problems[i])
+		}
 		for _, in := range data.Inputs {
 			inputs[in.Path] = in
 		}
@@ -576,9 +590,11 @@ func reduceRun(a *ingest.Archive, r *ingest.Run, history []reduce.HistoryEntry) 
 		Station:   a.Stations[r.Station],
 		Reference: a.References[r.Reference],
 		Spec:      a.Specs[r.Product],
-		Problems:  problems,
-		History:   history,
-		Lab:       a.Lab,
+		// The run's discovery problems (an unknown station) are its own:
+		// reduce says what follows from them under them.
+		Problems: append(a.ProblemsOf(r), problems...),
+		History:  history,
+		Lab:      a.Lab,
 	}
 	return reduce.ReduceUnit(in), data
 }

@@ -357,8 +357,8 @@ func TestSampleArchiveBuildsAreIdentical(t *testing.T) {
 	}
 	runQuiet(t, "build", "../../sample-archive", "-o", b, "--quiet")
 	da := siteDigest(t, a)
-	if len(da) != 8*4+6 {
-		t.Errorf("sample site has %d files, want 8 units x 4 files (report, workbook, result.json, manifest) + 6 (fleet pages, results.csv, manifest.json, SHA256SUMS)", len(da))
+	if len(da) != 8*4+7 {
+		t.Errorf("sample site has %d files, want 8 units x 4 files (report, workbook, result.json, manifest) + 7 (index, health, fleet.json, fleet.xlsx, results.csv, manifest.json, SHA256SUMS)", len(da))
 	}
 	sameSite(t, "two builds of sample-archive", da, siteDigest(t, b))
 }
@@ -458,5 +458,76 @@ func TestFleetPagesKeptWhenNothingChanged(t *testing.T) {
 	runQuiet(t, "build", archive, "-o", site, "--quiet")
 	if got := rewritten(); len(got) != len(pages) {
 		t.Errorf("after a unit changed the build rewrote only %v of %v", got, pages)
+	}
+}
+
+// The gtpack demo command writes sample-archive/ byte for byte: the
+// files of ingest/demo and the approvals it makes (one unit issued and
+// co-signed, one approved before its retest, one more issued).
+func TestDemoCommandIsTheSampleArchive(t *testing.T) {
+	if testing.Short() {
+		t.Skip("reduces four units")
+	}
+	dir := filepath.Join(t.TempDir(), "demo")
+	if code, out := runOut("demo", dir, "--units", "8", "--seed", "1"); code != exitOK || !strings.Contains(out, "with 4 approval(s)") {
+		t.Fatalf("demo: %d\n%s", code, out)
+	}
+	want, got := siteDigest(t, "../../sample-archive"), siteDigest(t, dir)
+	sameSite(t, "gtpack demo --units 8 --seed 1 and sample-archive/", want, got)
+	n := 0
+	for p := range got {
+		if strings.HasPrefix(p, "approvals/") {
+			n++
+		}
+	}
+	if n != 4 {
+		t.Errorf("%d approval files, want 4", n)
+	}
+}
+
+// The sample archive's runs written both ways, naming the spec's beam
+// plan (as sample-archive is) and with every beam in full, reduce to the
+// same results: the same beams, numbers, limits and verdicts.
+func TestBeamPlanAndExplicitRunsAgree(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the sample archive twice")
+	}
+	results := func(explicit bool) map[string]map[string]any {
+		dir := t.TempDir()
+		archive, site := filepath.Join(dir, "archive"), filepath.Join(dir, "site")
+		if _, err := demo.Write(archive, demo.Options{Units: 8, Seed: 1, ExplicitBeams: explicit}); err != nil {
+			t.Fatal(err)
+		}
+		if code, out := runOut("build", archive, "-o", site, "--quiet"); code != exitOK {
+			t.Fatalf("build (explicit %v): %d\n%s", explicit, code, out)
+		}
+		files, _ := filepath.Glob(filepath.Join(site, "units", "*", "result.json"))
+		if len(files) != 8 {
+			t.Fatalf("%d results", len(files))
+		}
+		out := map[string]map[string]any{}
+		for _, f := range files {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var r map[string]any
+			if err := json.Unmarshal(data, &r); err != nil {
+				t.Fatal(err)
+			}
+			out[filepath.Base(filepath.Dir(f))] = r
+		}
+		return out
+	}
+	plan, explicit := results(false), results(true)
+	for serial, p := range plan {
+		e := explicit[serial]
+		for _, k := range []string{"verdict", "beams", "limits", "scan", "elements", "flags", "history"} {
+			a, _ := json.Marshal(p[k])
+			b, _ := json.Marshal(e[k])
+			if !bytes.Equal(a, b) {
+				t.Errorf("%s: %s differ between the plan and the explicit runs (%d and %d bytes)", serial, k, len(a), len(b))
+			}
+		}
 	}
 }

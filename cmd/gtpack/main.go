@@ -37,6 +37,9 @@ usage:
                                           approve the unit's report as it is now (adds approvals/SERIAL/*.yaml)
   gtpack inspect FILE [--json]            what the tool reads from one input file
   gtpack demo DIR [--units N] [--seed S]  write a synthetic archive from a physical model
+  gtpack schema run|station|reference|spec|lab|approval
+                                          print the JSON Schema of a YAML kind (for editors)
+  gtpack init DIR                         a new archive: commented templates, schemas, no runs
   gtpack version
 
 exit codes: 0 done; 1 done, but some inputs were refused; 2 usage error;
@@ -83,6 +86,10 @@ func run(args []string, stdout, stderr io.Writer) int {
 		code, err = cmdInspect(args[1:], stdout, stderr)
 	case "demo":
 		code, err = cmdDemo(args[1:], stdout, stderr)
+	case "schema":
+		code, err = cmdSchema(args[1:], stdout, stderr)
+	case "init":
+		code, err = cmdInit(args[1:], stdout, stderr)
 	case "version", "--version", "-version":
 		code, err = cmdVersion(args[1:], stdout, stderr)
 	case "help", "-h", "--help", "-help":

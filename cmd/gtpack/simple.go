@@ -7,9 +7,11 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"time"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/ingest/demo"
+	"gtpack.example/gtpack/reduce"
 	"gtpack.example/gtpack/render"
 )
 
@@ -31,9 +33,32 @@ func cmdCheck(args []string, stdout, _ io.Writer) (int, error) {
 	if isSite(pos[0]) {
 		return exitUsage, usageError("%s is a site that gtpack build wrote, not an archive; gtpack verify %s checks a site", pos[0], pos[0])
 	}
-	problems := ingest.Check(pos[0])
+	// What build would print, in one pass: discovery's problems, and every
+	// unit reduced as build reduces it (not rendered).
+	a, err := ingest.OpenLean(pos[0])
+	if err != nil {
+		fmt.Fprintf(stdout, "%s: %v\n1 problem(s)\n", pos[0], err)
+		return exitRefused, nil
+	}
+	withUnit := goodRunFiles(a.Units)
+	var problems []*ingest.Problem
+	for _, p := range a.Problems {
+		if !withUnit[p.File] {
+			problems = append(problems, p)
+		}
+	}
+	for _, rr := range a.Orphans {
+		problems = append(problems, a.RefusedProblems(rr)...)
+	}
+	for _, u := range a.Units {
+		problems = append(problems, unitProblems(a, u)...)
+	}
+	problems = ingest.SortProblems(problems)
 	for _, p := range problems {
 		fmt.Fprintln(stdout, p.Error())
+	}
+	if len(a.Units) == 0 && len(a.Orphans) == 0 {
+		fmt.Fprintln(stdout, "no runs yet: a run is a folder anywhere in the archive with a run.yaml and its data files")
 	}
 	if len(problems) > 0 {
 		fmt.Fprintf(stdout, "%d problem(s)\n", len(problems))
@@ -80,8 +105,68 @@ func cmdDemo(args []string, stdout, _ io.Writer) (int, error) {
 	if _, err := demo.Write(pos[0], demo.Options{Units: *units, Seed: *seed}); err != nil {
 		return exitRefused, err
 	}
-	fmt.Fprintf(stdout, "wrote a synthetic archive of %d unit(s) to %s\n", *units, pos[0])
+	n, err := demoApprovals(pos[0])
+	if err != nil {
+		return exitRefused, err
+	}
+	fmt.Fprintf(stdout, "wrote a synthetic archive of %d unit(s) with %d approval(s) to %s\n", *units, n, pos[0])
 	return exitOK, nil
+}
+
+// demoApprovals approves some reports of a demo archive as a laboratory
+// would: the first unit is issued and co-signed, the first retested unit
+// was approved before its retest (so the retest made that approval void),
+// and the last unit is issued; the others stay drafts. Each approval is
+// dated a day after the run it approves, and names the inputs and verdict
+// gtpack reduces for the unit as it was then.
+func demoApprovals(dir string) (int, error) {
+	a, err := ingest.OpenLean(dir)
+	if err != nil {
+		return 0, err
+	}
+	if len(a.Units) == 0 {
+		return 0, nil
+	}
+	type approval struct {
+		unit     *ingest.Unit
+		by, role string
+		after    time.Duration
+	}
+	first := a.Units[0]
+	plan := []approval{
+		{first, "A. Tester", "Test engineer", 24 * time.Hour},
+		{first, "Q. Reviewer", "Quality engineer", 26 * time.Hour},
+	}
+	for _, u := range a.Units {
+		if len(u.Runs) > 1 {
+			before := &ingest.Unit{Serial: u.Serial, Runs: u.Runs[:1]}
+			plan = append(plan, approval{before, "Q. Reviewer", "Quality engineer", 24 * time.Hour})
+			break
+		}
+	}
+	if last := a.Units[len(a.Units)-1]; len(a.Units) > 2 && len(last.Runs) == 1 {
+		plan = append(plan, approval{last, "Q. Reviewer", "Quality engineer", 24 * time.Hour})
+	}
+	n := 0
+	for _, p := range plan {
+		w, err := reduceWhole(a, p.unit)
+		if err != nil {
+			return n, err
+		}
+		res := w.unit
+		if res.Verdict == reduce.VerdictIncomplete || len(res.Problems) > 0 {
+			continue
+		}
+		acceptance := p.unit.Runs[len(p.unit.Runs)-1]
+		when := acceptance.Started.UTC().Add(p.after).Truncate(time.Hour)
+		ap := &ingest.Approval{Schema: 1, Serial: p.unit.Serial, InputsSHA256: res.Issue.InputsSHA256, Verdict: res.Verdict,
+			ApprovedBy: p.by, Role: p.role, Date: when}
+		if _, err := writeApproval(dir, p.unit.Serial, when, p.by, ingest.ApprovalYAML(ap)); err != nil {
+			return n, err
+		}
+		n++
+	}
+	return n, nil
 }
 
 // isSite says whether dir looks like a site gtpack wrote: its cache
@@ -93,4 +178,46 @@ func isSite(dir string) bool {
 	_, err1 := os.Stat(filepath.Join(dir, "SHA256SUMS"))
 	_, err2 := os.Stat(filepath.Join(dir, "manifest.json"))
 	return err1 == nil && err2 == nil
+}
+
+func cmdSchema(args []string, stdout, _ io.Writer) (int, error) {
+	fs := flag.NewFlagSet("schema", flag.ContinueOnError)
+	pos, err := parseArgs(fs, args, "KIND")
+	if err != nil {
+		return exitUsage, err
+	}
+	s, err := ingest.Schema(pos[0])
+	if err != nil {
+		return exitUsage, usageError("%v", err)
+	}
+	stdout.Write(s)
+	return exitOK, nil
+}
+
+func cmdInit(args []string, stdout, _ io.Writer) (int, error) {
+	fs := flag.NewFlagSet("init", flag.ContinueOnError)
+	pos, err := parseArgs(fs, args, "DIR")
+	if err != nil {
+		return exitUsage, err
+	}
+	dir := pos[0]
+	if entries, err := os.ReadDir(dir); err == nil && len(entries) > 0 {
+		return exitUsage, usageError("%s is not empty; gtpack init writes a new archive into a new or empty folder", dir)
+	}
+	files, err := ingest.NewArchiveFiles()
+	if err != nil {
+		return exitRefused, err
+	}
+	for _, rel := range ingest.NewArchivePaths(files) {
+		p := filepath.Join(dir, filepath.FromSlash(rel))
+		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+			return exitRefused, err
+		}
+		if err := os.WriteFile(p, files[rel], 0o644); err != nil {
+			return exitRefused, err
+		}
+	}
+	fmt.Fprintf(stdout, "wrote a new archive to %s: fill in the templates (see %s), then gtpack check %s lists what is still to do\n",
+		dir, filepath.Join(dir, "README.md"), dir)
+	return exitOK, nil
 }

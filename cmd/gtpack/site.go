@@ -1045,6 +1045,7 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 	}{
 		{"fleet.json", func(w io.Writer) error { return render.WriteFleetJSON(w, fleet) }},
 		{"fleet.xlsx", writeBytes(func() ([]byte, error) { return render.FleetWorkbook(fleet) })},
+		{"health.html", writeBytes(func() ([]byte, error) { return render.Health(fleet) })},
 		{"index.html", writeBytes(func() ([]byte, error) { return render.Index(fleet) })},
 	}
 	for _, p := range pages {
@@ -1170,8 +1171,11 @@ func (s *site) readFleetStamp() (*fleetStamp, bool) {
 }
 
 // statesDigest is a SHA-256 over the tool version and the serial, size and
-// modification time of every unit state: a unit built, rebuilt or removed
-// changes it.
+// modification time of every unit's summary (its record's, for a unit of
+// an older site that has none): a unit built, rebuilt, made stale or
+// removed changes it, since each of those writes or removes the summary
+// with the record. A record written alone (new stats of unchanged inputs,
+// index's damaged mark) leaves it, and so the fleet pages, as they are.
 func (s *site) statesDigest() (string, error) {
 	serials, err := s.serials()
 	if err != nil {
@@ -1180,7 +1184,10 @@ func (s *site) statesDigest() (string, error) {
 	h := sha256.New()
 	fmt.Fprintf(h, "%s\n", render.Version)
 	for _, serial := range serials {
-		fi, err := s.root.Stat(s.statePath(serial))
+		fi, err := s.root.Stat(s.summaryPath(serial))
+		if errors.Is(err, fs.ErrNotExist) {
+			fi, err = s.root.Stat(s.statePath(serial))
+		}
 		if err != nil {
 			return "", err
 		}

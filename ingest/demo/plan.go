@@ -14,6 +14,10 @@ type Options struct {
 	Seed   int64 // default 1
 	Beams  int   // beams per run, default 16 (at most 16)
 	Points int   // frequency points per file, default 801
+	// ExplicitBeams writes every beam of every run.yaml in full, as
+	// archives did before beam plans; by default the runs name the spec's
+	// beam_plan (each beam by id, with the unit's own passive gain).
+	ExplicitBeams bool
 }
 
 // Limits of the options: more beams than the scenario's 16 beam states

@@ -40,6 +40,7 @@ func WriteTruth(dir string, t *Truth) error {
 	w.file("stations/"+t.Station+".yaml", w.stationYAML())
 	w.file("references/"+t.Reference+".yaml", w.referenceYAML())
 	w.file("specs/"+t.Product+".yaml", w.specYAML())
+	w.file("lab.yaml", w.labYAML())
 	for i := range t.Runs {
 		w.run(&t.Runs[i])
 		if w.err != nil {
@@ -98,6 +99,15 @@ func (w *writer) stationYAML() []byte {
 	fmt.Fprintf(&b, "receiver_match: %s\n", num(t.ReceiverMatch))
 	fmt.Fprintf(&b, "drift_tolerance_db: %s\n", num(t.DriftToleranceDB))
 	fmt.Fprintf(&b, "method_tolerance_db: %s\n", num(t.MethodToleranceDB))
+	b.WriteString(`csv_formats:                  # how this range's noise figure analyser exports a trace
+  ` + nfaFormat + `:
+    delimiter: ";"
+    decimal: ","
+    skip_lines: 3                 # the analyser's preamble
+    units_row: true               # the frequency unit is in the row under the header
+    frequency_column: Frequency
+    value_column: NF sys
+`)
 	b.WriteString(`uncertainty:
   - name: Noise receiver calibration
     applies_to: [gt]
@@ -139,6 +149,33 @@ func (w *writer) referenceYAML() []byte {
 	return b.Bytes()
 }
 
+// The laboratory and the customer of the demo's scenario (invented).
+const (
+	demoLabName       = "Quarrydown Arrays acceptance test laboratory"
+	demoLabContact    = "acceptance@quarrydown.example"
+	demoReportPrefix  = "QDA-GT"
+	demoCustomer      = "Tern Valley Satellite Services"
+	demoOrder         = "TVS-PO-2026-014"
+	demoLabAccredited = "not accredited (demonstration archive)"
+)
+
+var (
+	demoLabAddress      = []string{"Unit 7, Quarry Road", "Stonebridge Industrial Park", "Stonebridge"}
+	demoCustomerAddress = []string{"12 Harbour Lane", "Tern Valley"}
+)
+
+// labYAML is the issuing laboratory of the scenario.
+func (w *writer) labYAML() []byte {
+	var b bytes.Buffer
+	b.WriteString("schema: 1\n")
+	fmt.Fprintf(&b, "name: %s\n", demoLabName)
+	fmt.Fprintf(&b, "address: [%s]\n", strings.Join(demoLabAddress, ", "))
+	fmt.Fprintf(&b, "contact: %s\n", demoLabContact)
+	fmt.Fprintf(&b, "accreditation: %s\n", demoLabAccredited)
+	fmt.Fprintf(&b, "report_prefix: %s\n", demoReportPrefix)
+	return b.Bytes()
+}
+
 func (w *writer) specYAML() []byte {
 	t := w.t
 	lo, hi := num(t.StartHz/1e9), num(t.StopHz/1e9)
@@ -150,8 +187,23 @@ func (w *writer) specYAML() []byte {
 	fmt.Fprintf(&b, "product: %s\n", t.Product)
 	fmt.Fprintf(&b, "title: %s\n", t.ProductTitle)
 	b.WriteString("decision_rule: guarded\n")
+	fmt.Fprintf(&b, "customer:\n  name: %s\n  address: [%s]\n  order: %s\n", demoCustomer, strings.Join(demoCustomerAddress, ", "), demoOrder)
 	fmt.Fprintf(&b, "operating_antenna_k: %s\n", num(t.OperatingAntennaK))
 	fmt.Fprintf(&b, "element_phase_rms_tolerance_deg: %s\n", num(t.ElementToleranceDeg))
+	b.WriteString("beam_plan:                  # the beams every unit is measured in\n")
+	b.WriteString("  files:                    # where a run finds each beam's files ({beam} is the beam id)\n")
+	b.WriteString("    transmission: \"{beam}.*\"\n")
+	b.WriteString("    noise:\n")
+	for _, q := range []string{QuantityNoiseDensity, QuantitySystemNF, QuantityNoiseRelative} {
+		fmt.Fprintf(&b, "      - {file: \"{beam}-%s.csv\", quantity: %s, noise_bandwidth_hz: %s, integration_s: %s%s}\n",
+			noiseColumns[q].suffix, q, num(t.NoiseBandwidthHz), num(t.IntegrationS), csvOf(q, ", csv: "))
+	}
+	b.WriteString("  beams:\n")
+	if len(t.Runs) > 0 {
+		for _, bm := range t.Runs[0].Beams {
+			fmt.Fprintf(&b, "    - {id: %s, theta_deg: %s, phi_deg: %s, polarization: %s}\n", bm.ID, num(bm.ThetaDeg), num(bm.PhiDeg), bm.Polarization)
+		}
+	}
 	b.WriteString("limits:\n")
 	fmt.Fprintf(&b, `  - name: G/T at boresight
     quantity: gt
@@ -230,10 +282,18 @@ func (w *writer) run(r *RunTruth) {
 			name, trace := w.noiseTrace(r, b, q, quantity, nf)
 			bm.NoiseFiles = append(bm.NoiseFiles, name)
 			var buf bytes.Buffer
-			if err := ingest.WriteTrace(&buf, trace, traceUnits[(r.Order+b+q)%len(traceUnits)]); err != nil && w.err == nil {
+			unit := traceUnits[(r.Order+b+q)%len(traceUnits)]
+			if quantity == QuantitySystemNF {
+				unit = "ghz"
+			}
+			if err := ingest.WriteTrace(&buf, trace, unit); err != nil && w.err == nil {
 				w.err = fmt.Errorf("demo: %s/%s: %w", r.Dir, name, err)
 			}
-			w.file(r.Dir+"/"+name, buf.Bytes())
+			data := buf.Bytes()
+			if quantity == QuantitySystemNF {
+				data = w.analyserExport(r, data)
+			}
+			w.file(r.Dir+"/"+name, data)
 		}
 	}
 	w.file(r.Dir+"/elements.csv", elementsCSV(w.elementTable(r)))
@@ -400,6 +460,35 @@ func elementsCSV(els []ingest.Element) []byte {
 	return b.Bytes()
 }
 
+// nfaFormat is the station's csv_formats name of the noise figure
+// analyser's export, in which the system-noise-figure traces are written.
+const nfaFormat = "nfa-export"
+
+// csvOf is the csv: of a noise quantity's files after prefix, "" for the
+// contract's form.
+func csvOf(quantity, prefix string) string {
+	if quantity == QuantitySystemNF {
+		return prefix + nfaFormat
+	}
+	return ""
+}
+
+// analyserExport rewrites a trace CSV of the contract's form in GHz as the
+// station's noise figure analyser exports it (nfaFormat): a preamble of
+// three key;value lines, semicolons, decimal commas, a units row. The
+// numbers are the same text, so they read back to the same values.
+func (w *writer) analyserExport(r *RunTruth, contract []byte) []byte {
+	lines := strings.Split(strings.TrimSuffix(string(contract), "\n"), "\n")
+	var b bytes.Buffer
+	fmt.Fprintf(&b, "Instrument;Noise figure analyser (synthetic)\nDate;%s\nPoints;%d\n", r.Started.Format("2006-01-02"), len(lines)-1)
+	b.WriteString("Frequency;NF sys\nGHz;dB\n")
+	for _, ln := range lines[1:] {
+		f, v, _ := strings.Cut(ln, ",")
+		b.WriteString(strings.Replace(f, ".", ",", 1) + ";" + strings.Replace(v, ".", ",", 1) + "\n")
+	}
+	return b.Bytes()
+}
+
 func (w *writer) runYAML(r *RunTruth, pre, post string) []byte {
 	t := w.t
 	var b bytes.Buffer
@@ -415,6 +504,19 @@ func (w *writer) runYAML(r *RunTruth, pre, post string) []byte {
 	b.WriteString("range_reference:\n")
 	fmt.Fprintf(&b, "  pre: %s\n  post: %s\n  parameter: S21\n", pre, post)
 	b.WriteString("beams:\n")
+	if !t.Options.ExplicitBeams {
+		// The spec's beam_plan says the rest of each beam.
+		for _, bm := range r.Beams {
+			if bm.DeclaredPassiveGainDBi != nil {
+				fmt.Fprintf(&b, "  - {id: %s, passive_gain_dbi: %.2f}\n", bm.ID, *bm.DeclaredPassiveGainDBi)
+			} else {
+				fmt.Fprintf(&b, "  - {id: %s}\n", bm.ID)
+			}
+		}
+		b.WriteString("elements: elements.csv\n")
+		b.WriteString("notes: notes.md\n")
+		return b.Bytes()
+	}
 	for _, bm := range r.Beams {
 		fmt.Fprintf(&b, "  - id: %s\n", bm.ID)
 		fmt.Fprintf(&b, "    theta_deg: %s\n", num(bm.ThetaDeg))
@@ -426,6 +528,9 @@ func (w *writer) runYAML(r *RunTruth, pre, post string) []byte {
 			fmt.Fprintf(&b, "%squantity: %s\n", indent, bm.NoiseQuantities[q])
 			fmt.Fprintf(&b, "%snoise_bandwidth_hz: %s\n", indent, num(t.NoiseBandwidthHz))
 			fmt.Fprintf(&b, "%sintegration_s: %s\n", indent, num(t.IntegrationS))
+			if c := csvOf(bm.NoiseQuantities[q], ""); c != "" {
+				fmt.Fprintf(&b, "%scsv: %s\n", indent, c)
+			}
 		}
 		if len(bm.NoiseQuantities) == 1 {
 			b.WriteString("    noise:\n      ")
@@ -485,7 +590,12 @@ func (w *writer) readme() []byte {
 	fmt.Fprintf(&b, "(package ingest/demo, Options{Units: %d, Seed: %d, Beams: %d, Points: %d}). The same\n", o.Units, o.Seed, o.Beams, o.Points)
 	b.WriteString("options always give byte-identical files. The sample-archive folder of the gtpack source is\n")
 	b.WriteString("this output for `--units 8 --seed 1`; a test (ingest/demo TestSampleArchive) checks it byte\n")
-	b.WriteString("for byte, and `go test ./ingest/demo -run TestSampleArchive -update` rewrites it.\n\n")
+	b.WriteString("for byte; `rm -rf sample-archive && go run ./cmd/gtpack demo sample-archive --units 8 --seed 1`\n")
+	b.WriteString("rewrites it.\n")
+	b.WriteString("The `gtpack demo` command also approves some reports, as a laboratory would, into\n")
+	b.WriteString("approvals/ (the first unit issued and co-signed, the first retested unit approved before\n")
+	b.WriteString("its retest, so that the retest made that approval void, and the last unit issued);\n")
+	b.WriteString("the others are drafts. A test of the command checks that folder too.\n\n")
 	b.WriteString("## Model\n\n")
 	b.WriteString("- Range loss about 50.8 dB at 11.725 GHz, rising as 20*log10(f), with a 0.05 dB quiet-zone\n")
 	b.WriteString("  ripple common to the reference and the unit; the reference horn (realized gain, about 20 dBi)\n")

@@ -1,0 +1,231 @@
+package reduce
+
+import (
+	"math"
+	"sort"
+	"time"
+
+	"gtpack.example/gtpack/ingest"
+)
+
+// RangeCheck is one run's check of its range (method.md section 12): the
+// range loss at the centre of its reference measurement's grid, the
+// pre/post drift there, and what the run used.
+type RangeCheck struct {
+	Run       string `json:"run"`
+	Started   string `json:"started"`
+	Station   string `json:"station"`
+	Reference string `json:"reference"`
+	// FrequencyHz is where it is read: the grid point nearest the centre
+	// of the range-loss grid.
+	FrequencyHz float64 `json:"frequency_hz"`
+	RangeLossDB float64 `json:"range_loss_db"`
+	// DriftDB is |RL_pre - RL_post| there; nil with one measurement.
+	DriftDB *float64 `json:"drift_db,omitempty"`
+	// DriftToleranceDB is the station's allowed drift (0 when unknown).
+	DriftToleranceDB float64 `json:"drift_tolerance_db,omitempty"`
+	// ReferenceCertificate, ReferenceCalibrated and ReferenceDue are the
+	// reference antenna's (dates YYYY-MM-DD); PastDue says whether the run
+	// started after the due date.
+	ReferenceCertificate string `json:"reference_certificate,omitempty"`
+	ReferenceCalibrated  string `json:"reference_calibrated,omitempty"`
+	ReferenceDue         string `json:"reference_due,omitempty"`
+	PastDue              bool   `json:"past_due,omitempty"`
+}
+
+// ReferenceHealth is a reference antenna as the runs used it.
+type ReferenceHealth struct {
+	ID          string `json:"id"`
+	Certificate string `json:"certificate"`
+	Calibrated  string `json:"calibrated"`
+	Due         string `json:"due"`
+	// RunsAfterDue are the runs that used it after its due date, in time
+	// order.
+	RunsAfterDue []RangePoint `json:"runs_after_due"`
+}
+
+// ReferencesHealth lists each reference antenna the checks name, by id,
+// with the runs that used it past its due date (method.md section 12).
+// The dates are those of the latest run's record of it.
+func ReferencesHealth(checks map[string][]RangeCheck) []ReferenceHealth {
+	byID := map[string]*ReferenceHealth{}
+	latest := map[string]string{}
+	serials := make([]string, 0, len(checks))
+	for s := range checks {
+		serials = append(serials, s)
+	}
+	sort.Strings(serials)
+	for _, serial := range serials {
+		for _, c := range checks[serial] {
+			r := byID[c.Reference]
+			if r == nil {
+				r = &ReferenceHealth{ID: c.Reference, RunsAfterDue: []RangePoint{}}
+				byID[c.Reference] = r
+			}
+			if c.Started >= latest[c.Reference] {
+				latest[c.Reference] = c.Started
+				r.Certificate, r.Calibrated, r.Due = c.ReferenceCertificate, c.ReferenceCalibrated, c.ReferenceDue
+			}
+			if c.PastDue {
+				r.RunsAfterDue = append(r.RunsAfterDue, RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB})
+			}
+		}
+	}
+	out := []ReferenceHealth{}
+	for _, r := range byID {
+		sort.SliceStable(r.RunsAfterDue, func(i, j int) bool { return r.RunsAfterDue[i].Started < r.RunsAfterDue[j].Started })
+		out = append(out, *r)
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].ID < out[j].ID })
+	return out
+}
+
+// RangeCheckOf is the range check of a run from its range loss; nil
+// without one.
+func RangeCheckOf(run *ingest.Run, st *ingest.Station, ref *ingest.Reference, rl *RangeLoss) *RangeCheck {
+	if run == nil || rl == nil || len(rl.FrequencyHz) == 0 || len(rl.RangeLossDB) != len(rl.FrequencyHz) {
+		return nil
+	}
+	f := rl.FrequencyHz
+	centre := (f[0] + f[len(f)-1]) / 2
+	k := sort.SearchFloat64s(f, centre)
+	if k == len(f) || k > 0 && centre-f[k-1] <= f[k]-centre {
+		k--
+	}
+	if !finite(rl.RangeLossDB[k]) {
+		return nil
+	}
+	c := &RangeCheck{Run: run.Dir, Station: run.Station, Reference: run.Reference, FrequencyHz: f[k], RangeLossDB: rl.RangeLossDB[k]}
+	if !run.Started.IsZero() {
+		c.Started = run.Started.UTC().Format(time.RFC3339)
+	}
+	if len(rl.DriftDB) == len(f) && finite(rl.DriftDB[k]) {
+		d := rl.DriftDB[k]
+		c.DriftDB = &d
+	}
+	if st != nil {
+		c.DriftToleranceDB = st.DriftToleranceDB
+	}
+	if ref != nil {
+		c.ReferenceCertificate, c.ReferenceCalibrated = ref.Certificate, formatDate(ref.Calibrated)
+		if !ref.Due.IsZero() {
+			c.ReferenceDue = formatDate(ref.Due)
+			c.PastDue = !run.Started.IsZero() && run.Started.After(ref.Due)
+		}
+	}
+	return c
+}
+
+// RangeBaselineRuns is how many runs of a station and reference antenna
+// set the control limits of their range check; each later run is judged
+// against them (method.md section 12: the usual two phases of control
+// charting, common practice).
+const RangeBaselineRuns = 20
+
+// RangeChart is the individuals control chart of one station and
+// reference antenna's range loss at band centre, run by run.
+type RangeChart struct {
+	Station     string  `json:"station"`
+	Reference   string  `json:"reference"`
+	FrequencyHz float64 `json:"frequency_hz"`
+	// DriftToleranceDB is the station's allowed pre/post drift, as the
+	// latest run recorded it (0 when unknown).
+	DriftToleranceDB float64 `json:"drift_tolerance_db"`
+	// Points are the runs in time order (then by serial and run).
+	Points []RangePoint `json:"points"`
+	// Baseline is the number of first points the limits are set on
+	// (at most RangeBaselineRuns).
+	Baseline int     `json:"baseline"`
+	CentreDB float64 `json:"centre_db"`
+	LCLDB    float64 `json:"lcl_db"`
+	UCLDB    float64 `json:"ucl_db"`
+	// OutOfControl are the indexes of the points beyond the limits; none
+	// while the baseline has fewer than MinChartPoints points (TooFew).
+	OutOfControl []int `json:"out_of_control"`
+	TooFew       bool  `json:"too_few,omitempty"`
+}
+
+// RangePoint is one run on a range chart.
+type RangePoint struct {
+	Serial      string   `json:"serial"`
+	Run         string   `json:"run"`
+	Started     string   `json:"started"`
+	RangeLossDB float64  `json:"range_loss_db"`
+	DriftDB     *float64 `json:"drift_db"`
+}
+
+// RangeCharts groups the range checks of every run of every unit by
+// station and reference antenna and charts each pair: centre line the
+// mean of the baseline, limits the centre -/+ 2.66 times its mean moving
+// range (method.md section 10). checks maps serial to its runs' checks.
+func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
+	out := []RangeChart{}
+	type key struct{ station, reference string }
+	type point struct {
+		RangePoint
+		t   time.Time
+		hz  float64
+		tol float64
+	}
+	byPair := map[key][]point{}
+	for serial, cs := range checks {
+		for _, c := range cs {
+			t, _ := time.Parse(time.RFC3339, c.Started)
+			k := key{c.Station, c.Reference}
+			byPair[k] = append(byPair[k], point{RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB}, t, c.FrequencyHz, c.DriftToleranceDB})
+		}
+	}
+	keys := make([]key, 0, len(byPair))
+	for k := range byPair {
+		keys = append(keys, k)
+	}
+	sort.Slice(keys, func(i, j int) bool {
+		if keys[i].station != keys[j].station {
+			return keys[i].station < keys[j].station
+		}
+		return keys[i].reference < keys[j].reference
+	})
+	for _, k := range keys {
+		ps := byPair[k]
+		sort.Slice(ps, func(i, j int) bool {
+			if !ps[i].t.Equal(ps[j].t) {
+				return ps[i].t.Before(ps[j].t)
+			}
+			if ps[i].Serial != ps[j].Serial {
+				return ps[i].Serial < ps[j].Serial
+			}
+			return ps[i].Run < ps[j].Run
+		})
+		c := RangeChart{Station: k.station, Reference: k.reference, FrequencyHz: ps[0].hz, DriftToleranceDB: ps[len(ps)-1].tol, OutOfControl: []int{}}
+		for _, p := range ps {
+			c.Points = append(c.Points, p.RangePoint)
+		}
+		c.Baseline = min(len(ps), RangeBaselineRuns)
+		base := make([]float64, c.Baseline)
+		for i := range base {
+			base[i] = ps[i].RangeLossDB
+		}
+		mean, mr := 0.0, 0.0
+		for _, v := range base {
+			mean += v
+		}
+		mean /= float64(len(base))
+		for i := 1; i < len(base); i++ {
+			mr += math.Abs(base[i] - base[i-1])
+		}
+		if len(base) > 1 {
+			mr /= float64(len(base) - 1)
+		}
+		c.CentreDB, c.LCLDB, c.UCLDB = mean, mean-chartFactor*mr, mean+chartFactor*mr
+		c.TooFew = c.Baseline < MinChartPoints
+		if !c.TooFew {
+			for i, p := range ps {
+				if p.RangeLossDB > c.UCLDB || p.RangeLossDB < c.LCLDB {
+					c.OutOfControl = append(c.OutOfControl, i)
+				}
+			}
+		}
+		out = append(out, c)
+	}
+	return out
+}

@@ -1,0 +1,217 @@
+package render
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"net/url"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// Health renders health.html: the checks of the measuring system
+// (method.md section 12). Per station and reference antenna, the range
+// loss at band centre run by run as an individuals control chart against
+// the run date, the pre/post drift of each run against the station's
+// tolerance and the runs out of control; the reference antennas with their
+// dates and the runs that used one past due.
+func Health(f *reduce.Fleet) ([]byte, error) {
+	if f == nil {
+		return nil, errors.New("render: health page of a nil fleet")
+	}
+	if _, err := loadPages(); err != nil {
+		return nil, err
+	}
+	v := &healthView{pageAssets: inlineAssets(), Version: Version, Cautions: cautions}
+	for i, c := range f.Stations {
+		cv, err := rangeChartView(fmt.Sprintf("range-%d", i), c)
+		if err != nil {
+			return nil, err
+		}
+		v.Charts = append(v.Charts, cv)
+	}
+	for _, r := range f.References {
+		rv := referenceView{ReferenceHealth: r}
+		for _, p := range r.RunsAfterDue {
+			rv.Runs = append(rv.Runs, pointRow(p, math.NaN()))
+		}
+		v.References = append(v.References, rv)
+	}
+	return execute("health.tmpl", v)
+}
+
+type healthView struct {
+	pageAssets
+	Version    string
+	Cautions   string
+	Charts     []rangeView
+	References []referenceView
+}
+
+type rangeView struct {
+	reduce.RangeChart
+	Runs       int
+	Range      chartSpec
+	Drift      *chartSpec
+	Out        []runRow
+	DriftOver  []runRow
+	HasLimits  bool
+	BaselineTo string // date of the last baseline run
+}
+
+type referenceView struct {
+	reduce.ReferenceHealth
+	Runs []runRow
+}
+
+// runRow is a run as the page lists it, linked to its unit's report.
+type runRow struct {
+	reduce.RangePoint
+	Date        string
+	ReportHref  string
+	DeviationDB float64 // from the centre line; NaN when not shown
+}
+
+func pointRow(p reduce.RangePoint, centre float64) runRow {
+	r := runRow{RangePoint: p, Date: dateOf(p.Started), ReportHref: "units/" + url.PathEscape(p.Serial) + "/report.html", DeviationDB: math.NaN()}
+	if finite(centre) {
+		r.DeviationDB = p.RangeLossDB - centre
+	}
+	return r
+}
+
+// dateOf is the date part of an RFC 3339 time.
+func dateOf(s string) string {
+	if len(s) >= 10 {
+		return s[:10]
+	}
+	return s
+}
+
+func rangeChartView(id string, c reduce.RangeChart) (rangeView, error) {
+	v := rangeView{RangeChart: c, Runs: len(c.Points), HasLimits: c.Baseline >= 2}
+	if c.Baseline > 0 {
+		v.BaselineTo = dateOf(c.Points[c.Baseline-1].Started)
+	}
+	for _, i := range c.OutOfControl {
+		v.Out = append(v.Out, pointRow(c.Points[i], c.CentreDB))
+	}
+	for _, p := range c.Points {
+		if p.DriftDB != nil && c.DriftToleranceDB > 0 && *p.DriftDB > c.DriftToleranceDB {
+			v.DriftOver = append(v.DriftOver, pointRow(p, math.NaN()))
+		}
+	}
+	spec, err := rangeLossChart(id, c)
+	if err != nil {
+		return v, err
+	}
+	v.Range = spec
+	if d, ok, err := driftChart(id+"-drift", c); err != nil {
+		return v, err
+	} else if ok {
+		v.Drift = &d
+	}
+	return v, nil
+}
+
+// timePoint is a [date, value] pair of a chart on a time axis, named
+// after its unit.
+func timePoint(serial, started string, v float64) opts.LineData {
+	return opts.LineData{Name: serial, Value: []any{started, r3(v)}}
+}
+
+// rangeLossChart is the individuals chart of the range loss against the
+// run date: every run, the centre line and the limits of the baseline,
+// and the runs beyond them marked.
+func rangeLossChart(id string, c reduce.RangeChart) (chartSpec, error) {
+	beyond := map[int]bool{}
+	for _, i := range c.OutOfControl {
+		beyond[i] = true
+	}
+	var pts, out []opts.LineData
+	for i, p := range c.Points {
+		pts = append(pts, timePoint(p.Serial, p.Started, p.RangeLossDB))
+		if beyond[i] {
+			out = append(out, timePoint(p.Serial, p.Started, p.RangeLossDB))
+		}
+	}
+	first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
+	flat := func(v float64) []opts.LineData {
+		return []opts.LineData{timePoint("", first, v), timePoint("", last, v)}
+	}
+	ch := charts.NewLine()
+	ch.SetGlobalOptions(
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
+			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "Range loss (dB)", Scale: opts.Bool(true)}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
+		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "64", Bottom: "48"}),
+		charts.WithDataZoomOpts(opts.DataZoom{Type: "inside", XAxisIndex: []int{0}}),
+	)
+	ch.AddSeries("range loss", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
+	if c.Baseline >= 2 {
+		ch.AddSeries("centre", flat(c.CentreDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#17202a"}))
+		ch.AddSeries("upper control limit", flat(c.UCLDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+		ch.AddSeries("lower control limit", flat(c.LCLDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	}
+	if len(out) > 0 {
+		ch.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
+			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	}
+	opt, err := finish(ch, map[string]any{"unit": "dB", "dates": true}, nil)
+	caption := fmt.Sprintf("Range loss at %s GHz, run by run (%d runs). ", fmtGHz(c.FrequencyHz), len(c.Points))
+	switch {
+	case c.Baseline < 2:
+		caption += "One run: no control limits yet."
+	default:
+		caption += fmt.Sprintf("Centre %s dB and limits %s to %s dB (centre ± 2.66 × mean moving range) from the first %d runs (the baseline); each later run is judged against them.",
+			fmtFixed(c.CentreDB, 3), fmtFixed(c.LCLDB, 3), fmtFixed(c.UCLDB, 3), c.Baseline)
+		if c.TooFew {
+			caption += fmt.Sprintf(" Fewer than %d runs: no run is called out of control yet.", reduce.MinChartPoints)
+		} else {
+			caption += " Runs beyond the limits are marked in red."
+		}
+	}
+	return chartSpec{ID: id, Title: fmt.Sprintf("Range check: %s with %s", c.Station, c.Reference), Height: 300, Option: opt, Caption: caption}, err
+}
+
+// driftChart is the pre/post drift of each run against the station's
+// tolerance; ok is false when no run has a post measurement.
+func driftChart(id string, c reduce.RangeChart) (chartSpec, bool, error) {
+	var pts []opts.LineData
+	for _, p := range c.Points {
+		if p.DriftDB != nil {
+			pts = append(pts, timePoint(p.Serial, p.Started, *p.DriftDB))
+		}
+	}
+	if len(pts) == 0 {
+		return chartSpec{}, false, nil
+	}
+	ch := charts.NewLine()
+	ch.SetGlobalOptions(
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
+			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "|pre − post| (dB)", Min: 0}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
+		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "48", Bottom: "48"}),
+	)
+	ch.AddSeries("drift", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
+	if c.DriftToleranceDB > 0 {
+		first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
+		ch.AddSeries("station tolerance", []opts.LineData{timePoint("", first, c.DriftToleranceDB), timePoint("", last, c.DriftToleranceDB)},
+			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	}
+	opt, err := finish(ch, map[string]any{"unit": "dB", "dates": true}, nil)
+	return chartSpec{ID: id, Title: "Pre/post drift: " + c.Station + " with " + c.Reference, Height: 220, Option: opt,
+		Caption: fmt.Sprintf("The change of the range loss at %s GHz between the reference measurements before and after each unit; the dashed line is the station's tolerance (%s dB).",
+			fmtGHz(c.FrequencyHz), fmtFixed(c.DriftToleranceDB, 3))}, true, err
+}

@@ -1,0 +1,91 @@
+package render
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"gtpack.example/gtpack/reduce"
+)
+
+// healthFleet is a fleet of 26 units on one range whose range loss steps
+// up by 0.4 dB from the 21st run on (a moved feed), one run a week from
+// 2027-01-01; the reference is due on 2027-06-01, so the runs from the
+// 23rd on (2027-06-04) used it past due.
+func healthFleet() *reduce.Fleet {
+	var us []reduce.UnitSummary
+	day0 := time.Date(2027, 1, 1, 9, 0, 0, 0, time.UTC)
+	due := time.Date(2027, 6, 1, 0, 0, 0, 0, time.UTC)
+	for i := 0; i < 26; i++ {
+		serial := fmt.Sprintf("KP16-%05d", i+1)
+		v := 50.0 + 0.1*float64(i%2)
+		if i >= 20 {
+			v += 0.4
+		}
+		drift := 0.05
+		if i == 7 {
+			drift = 0.4
+		}
+		t := day0.AddDate(0, 0, 7*i)
+		started := t.Format(time.RFC3339)
+		us = append(us, reduce.UnitSummary{Serial: serial, Product: "KU-PANEL-16", Started: started, Verdict: reduce.VerdictPass,
+			RangeChecks: []reduce.RangeCheck{{Run: "runs/" + serial + "/a", Started: started, Station: "range-b", Reference: "horn-0042",
+				FrequencyHz: 11.725e9, RangeLossDB: v, DriftDB: &drift, DriftToleranceDB: 0.25,
+				ReferenceCertificate: "LAB-26-0211", ReferenceCalibrated: "2026-02-10", ReferenceDue: "2027-06-01", PastDue: t.After(due)}}})
+	}
+	return reduce.ComputeFleet(us)
+}
+
+// health.html lists what the range charts find: the runs beyond the
+// control limits (method.md section 12; the limits are reduce's, worked
+// by hand in its tests), the run whose drift exceeds the station's
+// tolerance, and the runs that used the reference past due, each linked to
+// its unit's report.
+func TestHealthPage(t *testing.T) {
+	f := healthFleet()
+	html, err := Health(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(html)
+	out := page[strings.Index(page, "Runs out of control"):strings.Index(page, "Pre/post drift")]
+	for i := 21; i <= 26; i++ {
+		if !strings.Contains(out, fmt.Sprintf(`<a href="units/KP16-%05d/report.html">KP16-%05d</a>`, i, i)) {
+			t.Errorf("run %d is not listed out of control", i)
+		}
+	}
+	if strings.Contains(out, "KP16-00020<") {
+		t.Error("a baseline run is listed out of control")
+	}
+	drift := page[strings.Index(page, "drift exceeds"):strings.Index(page, "Reference antennas")]
+	if !strings.Contains(drift, "KP16-00008") || strings.Count(drift, "<tr>") != 2 {
+		t.Errorf("drift table: %s", drift)
+	}
+	refs := page[strings.Index(page, "Reference antennas"):]
+	if !strings.Contains(refs, "LAB-26-0211") || !strings.Contains(refs, "KP16-00023</a> (2027-06-04)") || !strings.Contains(refs, "KP16-00026</a> (2027-06-25)") || strings.Contains(refs, "KP16-00022") {
+		t.Errorf("references: %s", refs[:min(len(refs), 800)])
+	}
+	if !strings.Contains(page, `http-equiv="Content-Security-Policy"`) || !strings.Contains(page, `href="index.html"`) {
+		t.Error("the page lacks its policy or its link to the overview")
+	}
+}
+
+// health.html in a real browser: its charts draw, nothing is loaded from
+// outside and no error is reported.
+func TestBrowserHealth(t *testing.T) {
+	bctx := browser(t)
+	html, err := Health(healthFleet())
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "health.html")
+	if err := os.WriteFile(path, html, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ctx, pl := openPage(t, bctx, path)
+	checkPage(t, ctx, pl, []string{"range-0", "range-0-drift"})
+	shot(t, ctx, "health.png")
+}
