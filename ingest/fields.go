@@ -231,6 +231,7 @@ var stationFields = []field{
 	{"method_tolerance_db", true, "the allowed difference between the two noise forms in dB, above 0", sPositive},
 	{"uncertainty", true, "a list of uncertainty terms (name, applies_to, value_db, distribution, coverage_k)", listOf(mapOf(termFields, termRule...), 0)},
 	{"csv_formats", false, "named csv: mappings of the files this station's instruments write, e.g. {analyser-export: {delimiter: \";\", decimal: \",\"}}", &shape{kind: kDict, values: sCSVMapping}},
+	{"check_units", false, "serial numbers of the check units (golden units) measured on this range, e.g. [KP16-GOLD-01]", listOf(sIdent, 1)},
 }
 
 var referenceFields = []field{

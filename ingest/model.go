@@ -133,6 +133,10 @@ type Station struct {
 	// CSVFormats are the station's named csv: mappings (csv_formats), which
 	// a run on this station names with csv: NAME.
 	CSVFormats map[string]*CSVFormat `yaml:"-"`
+	// CheckUnits are the serials of the check units (golden units)
+	// measured on this range: range health shows them, and they are not
+	// counted in their product's yield and capability.
+	CheckUnits []string `yaml:"-"`
 }
 
 // CSVFormat is a csv: mapping: how an instrument's or a spreadsheet's CSV

@@ -28,6 +28,17 @@ func ParseStation(data []byte, name string) (*Station, error) {
 		s.ReceiverMatch = v
 	}
 	s.DriftToleranceDB, _ = m.positive("drift_tolerance_db")
+	if m.has("check_units") {
+		if list, ok := m.strList("check_units"); ok {
+			for _, serial := range list {
+				if err := CheckIdentifier(serial); err != nil {
+					m.invalid("check_units", "%q: %v", serial, err)
+					continue
+				}
+				s.CheckUnits = append(s.CheckUnits, serial)
+			}
+		}
+	}
 	s.MethodToleranceDB, _ = m.positive("method_tolerance_db")
 	if n := m.value("csv_formats"); n != nil {
 		if n.Kind != yaml.MappingNode {

@@ -30,6 +30,8 @@ type UnitSummary struct {
 	// RangeChecks are the range checks of the unit's runs, oldest first
 	// (range health: fleet.json's stations).
 	RangeChecks []RangeCheck `json:"range_checks,omitempty"`
+	// CheckUnit: see Unit.CheckUnit.
+	CheckUnit bool `json:"check_unit,omitempty"`
 	// IssueState, Revision and ReportNumber are the report's issue state
 	// (see Issue).
 	IssueState   string `json:"issue_state,omitempty"`
@@ -55,6 +57,8 @@ type Fleet struct {
 	// runs that used it past its due date.
 	Stations   []RangeChart      `json:"stations"`
 	References []ReferenceHealth `json:"references"`
+	// CheckUnits are the check units' G/T at band centre over time.
+	CheckUnits []CheckUnitChart `json:"check_units"`
 	// Notices say what the pages do not show as they should (units a
 	// build could not write); empty when all is well.
 	Notices []string `json:"notices,omitempty"`
@@ -75,6 +79,8 @@ type FleetUnit struct {
 	// verdict (contract, "Site layout": fleet.json's units).
 	Runs         int    `json:"runs"`
 	FirstVerdict string `json:"first_verdict"`
+	// CheckUnit marks a check unit: it is in no product's statistics.
+	CheckUnit bool `json:"check_unit,omitempty"`
 	// IssueState, Revision and ReportNumber: see UnitSummary.
 	IssueState   string `json:"issue_state,omitempty"`
 	Revision     int    `json:"revision,omitempty"`

@@ -97,10 +97,11 @@ func ComputeFleet(units []UnitSummary) *Fleet {
 // within about 1e-8 dB of the float64 value (float32 keeps 24 bits, IEEE
 // 754): far below the 1e-6 dB to which fleet.json writes the band.
 type FleetBuilder struct {
-	units    []fleetRecord
-	checks   map[string][]RangeCheck // by serial: the range checks of its runs
-	products map[string]*fleetProductAcc
-	last     string
+	units      []fleetRecord
+	checks     map[string][]RangeCheck // by serial: the range checks of its runs
+	checkUnits map[string]bool         // serials of check units
+	products   map[string]*fleetProductAcc
+	last       string
 }
 
 // fleetRecord is one unit as the builder keeps it.
@@ -131,7 +132,7 @@ type fleetProductAcc struct {
 
 // NewFleetBuilder returns an empty builder.
 func NewFleetBuilder() *FleetBuilder {
-	return &FleetBuilder{products: map[string]*fleetProductAcc{}, checks: map[string][]RangeCheck{}}
+	return &FleetBuilder{products: map[string]*fleetProductAcc{}, checks: map[string][]RangeCheck{}, checkUnits: map[string]bool{}}
 }
 
 // Add takes one unit's summary; it keeps none of u's lists. Units must
@@ -157,7 +158,7 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 	}
 	rec := fleetRecord{FleetUnit: FleetUnit{Serial: u.Serial, Product: u.Product, Started: u.Started,
 		Verdict: u.Verdict, Limits: []FleetUnitLimit{}, Stale: u.Stale, NoReport: u.NoReport,
-		Runs: max(u.Runs, 1), FirstVerdict: u.FirstVerdict,
+		Runs: max(u.Runs, 1), FirstVerdict: u.FirstVerdict, CheckUnit: u.CheckUnit,
 		IssueState: u.IssueState, Revision: u.Revision, ReportNumber: u.ReportNumber}}
 	if rec.FirstVerdict == "" {
 		rec.FirstVerdict = u.Verdict // a summary of 0.3.0 or before: one run known
@@ -192,9 +193,19 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 	}
 	if len(u.RangeChecks) > 0 {
 		b.checks[u.Serial] = append(b.checks[u.Serial], u.RangeChecks...)
+		if u.CheckUnit {
+			b.checkUnits[u.Serial] = true
+		}
 	}
 	idx := len(b.units)
 	b.units = append(b.units, rec)
+	if u.CheckUnit {
+		// A check standard, not production: range health shows it.
+		if len(p.units) == 0 {
+			delete(b.products, u.Product)
+		}
+		return nil
+	}
 	p.units = append(p.units, idx)
 	if t := u.Boresight; t != nil && diagTraceUsable(t.FrequencyHz, t.GTdBPerK) {
 		p.addTrace(idx, t.FrequencyHz, t.GTdBPerK)
@@ -260,6 +271,11 @@ func (b *FleetBuilder) Finish() *Fleet {
 		f.Units[i] = b.units[i].FleetUnit
 	}
 	f.Stations, f.References = RangeCharts(b.checks), ReferencesHealth(b.checks)
+	only := map[string][]RangeCheck{}
+	for s := range b.checkUnits {
+		only[s] = b.checks[s]
+	}
+	f.CheckUnits = CheckUnitCharts(only)
 	return f
 }
 

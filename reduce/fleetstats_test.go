@@ -264,7 +264,7 @@ func TestFleetDeterministic(t *testing.T) {
 		t.Error("fleet JSON depends on the order of units")
 	}
 	empty, err := json.Marshal(ComputeFleet(nil))
-	if err != nil || string(empty) != `{"schema":2,"units":[],"products":[],"stations":[],"references":[]}` {
+	if err != nil || string(empty) != `{"schema":2,"units":[],"products":[],"stations":[],"references":[],"check_units":[]}` {
 		t.Errorf("empty fleet: %s %v", empty, err)
 	}
 }

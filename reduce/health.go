@@ -24,6 +24,11 @@ type RangeCheck struct {
 	DriftDB *float64 `json:"drift_db,omitempty"`
 	// DriftToleranceDB is the station's allowed drift (0 when unknown).
 	DriftToleranceDB float64 `json:"drift_tolerance_db,omitempty"`
+	// Beam and GTdBPerK are the G/T of the beam nearest boresight at the
+	// grid point nearest FrequencyHz (what a check unit's chart shows);
+	// nil when no beam has a G/T.
+	Beam     string   `json:"beam,omitempty"`
+	GTdBPerK *float64 `json:"gt_db_per_k,omitempty"`
 	// ReferenceCertificate, ReferenceCalibrated and ReferenceDue are the
 	// reference antenna's (dates YYYY-MM-DD); PastDue says whether the run
 	// started after the due date.
@@ -200,32 +205,119 @@ func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
 		for _, p := range ps {
 			c.Points = append(c.Points, p.RangePoint)
 		}
-		c.Baseline = min(len(ps), RangeBaselineRuns)
-		base := make([]float64, c.Baseline)
-		for i := range base {
-			base[i] = ps[i].RangeLossDB
+		values := make([]float64, len(ps))
+		for i, p := range ps {
+			values[i] = p.RangeLossDB
 		}
-		mean, mr := 0.0, 0.0
-		for _, v := range base {
-			mean += v
-		}
-		mean /= float64(len(base))
-		for i := 1; i < len(base); i++ {
-			mr += math.Abs(base[i] - base[i-1])
-		}
-		if len(base) > 1 {
-			mr /= float64(len(base) - 1)
-		}
-		c.CentreDB, c.LCLDB, c.UCLDB = mean, mean-chartFactor*mr, mean+chartFactor*mr
-		c.TooFew = c.Baseline < MinChartPoints
-		if !c.TooFew {
-			for i, p := range ps {
-				if p.RangeLossDB > c.UCLDB || p.RangeLossDB < c.LCLDB {
-					c.OutOfControl = append(c.OutOfControl, i)
-				}
+		ch := baselineChart(values)
+		c.Baseline, c.CentreDB, c.LCLDB, c.UCLDB, c.OutOfControl, c.TooFew = ch.baseline, ch.centre, ch.lcl, ch.ucl, ch.out, ch.tooFew
+		out = append(out, c)
+	}
+	return out
+}
+
+// individuals is an individuals control chart with limits set on a
+// baseline (method.md sections 10 and 12).
+type individuals struct {
+	baseline         int
+	centre, lcl, ucl float64
+	out              []int
+	tooFew           bool
+}
+
+// baselineChart sets the centre line on the mean of the first
+// RangeBaselineRuns values and the limits at -/+ 2.66 times their mean
+// moving range, and lists the values beyond them (none while the baseline
+// has fewer than MinChartPoints values).
+func baselineChart(values []float64) individuals {
+	ch := individuals{baseline: min(len(values), RangeBaselineRuns), out: []int{}}
+	if ch.baseline == 0 {
+		ch.tooFew = true
+		return ch
+	}
+	base := values[:ch.baseline]
+	mean, mr := 0.0, 0.0
+	for _, v := range base {
+		mean += v
+	}
+	mean /= float64(len(base))
+	for i := 1; i < len(base); i++ {
+		mr += math.Abs(base[i] - base[i-1])
+	}
+	if len(base) > 1 {
+		mr /= float64(len(base) - 1)
+	}
+	ch.centre, ch.lcl, ch.ucl = mean, mean-chartFactor*mr, mean+chartFactor*mr
+	ch.tooFew = ch.baseline < MinChartPoints
+	if !ch.tooFew {
+		for i, v := range values {
+			if v > ch.ucl || v < ch.lcl {
+				ch.out = append(ch.out, i)
 			}
 		}
-		out = append(out, c)
+	}
+	return ch
+}
+
+// CheckUnitChart is a check unit's G/T at band centre run by run, as an
+// individuals chart with limits set on its first runs.
+type CheckUnitChart struct {
+	Serial      string  `json:"serial"`
+	Station     string  `json:"station"`
+	Beam        string  `json:"beam"`
+	FrequencyHz float64 `json:"frequency_hz"`
+	// Points are its runs in time order.
+	Points       []CheckPoint `json:"points"`
+	Baseline     int          `json:"baseline"`
+	CentreDB     float64      `json:"centre_db_per_k"`
+	LCLDB        float64      `json:"lcl_db_per_k"`
+	UCLDB        float64      `json:"ucl_db_per_k"`
+	OutOfControl []int        `json:"out_of_control"`
+	TooFew       bool         `json:"too_few,omitempty"`
+}
+
+// CheckPoint is one run of a check unit.
+type CheckPoint struct {
+	Run      string  `json:"run"`
+	Started  string  `json:"started"`
+	GTdBPerK float64 `json:"gt_db_per_k"`
+}
+
+// CheckUnitCharts charts every check unit's runs that have a G/T at band
+// centre, by station and serial. checks maps serial to its runs' checks.
+func CheckUnitCharts(checks map[string][]RangeCheck) []CheckUnitChart {
+	out := []CheckUnitChart{}
+	serials := make([]string, 0, len(checks))
+	for s := range checks {
+		serials = append(serials, s)
+	}
+	sort.Strings(serials)
+	for _, serial := range serials {
+		byStation := map[string][]RangeCheck{}
+		var stations []string
+		for _, c := range checks[serial] {
+			if c.GTdBPerK == nil {
+				continue
+			}
+			if _, ok := byStation[c.Station]; !ok {
+				stations = append(stations, c.Station)
+			}
+			byStation[c.Station] = append(byStation[c.Station], c)
+		}
+		sort.Strings(stations)
+		for _, st := range stations {
+			cs := byStation[st]
+			sort.SliceStable(cs, func(i, j int) bool { return cs[i].Started < cs[j].Started })
+			ch := CheckUnitChart{Serial: serial, Station: st, Beam: cs[len(cs)-1].Beam, FrequencyHz: cs[len(cs)-1].FrequencyHz}
+			values := make([]float64, len(cs))
+			for i, c := range cs {
+				ch.Points = append(ch.Points, CheckPoint{Run: c.Run, Started: c.Started, GTdBPerK: *c.GTdBPerK})
+				values[i] = *c.GTdBPerK
+			}
+			ind := baselineChart(values)
+			ch.Baseline, ch.CentreDB, ch.LCLDB, ch.UCLDB, ch.OutOfControl, ch.TooFew = ind.baseline, ind.centre, ind.lcl, ind.ucl, ind.out, ind.tooFew
+			out = append(out, ch)
+		}
 	}
 	return out
 }

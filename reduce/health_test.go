@@ -73,3 +73,51 @@ func TestRangeChartsPlantedStep(t *testing.T) {
 		t.Errorf("two runs: %+v", g)
 	}
 }
+
+// A check unit (a station's golden unit) is counted in no product's yield
+// or capability and gets a chart of its own G/T at band centre; a product
+// made of check units only is not listed.
+func TestCheckUnitsLeaveTheYield(t *testing.T) {
+	gt := func(v float64) *float64 { return &v }
+	var us []UnitSummary
+	for i := 0; i < 3; i++ {
+		us = append(us, UnitSummary{Serial: fmt.Sprintf("U%02d", i+1), Product: "P", Started: fmt.Sprintf("2027-01-%02dT09:00:00Z", i+1), Verdict: VerdictPass,
+			Runs: 1, FirstVerdict: VerdictPass, Limits: []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: 1, Verdict: VerdictPass}}})
+	}
+	golden := UnitSummary{Serial: "GOLD-01", Product: "P", Started: "2027-01-20T09:00:00Z", Verdict: VerdictFail, Runs: 12, FirstVerdict: VerdictFail,
+		CheckUnit: true, Limits: []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: -1, Verdict: VerdictFail}}}
+	for k := 0; k < 12; k++ {
+		golden.RangeChecks = append(golden.RangeChecks, RangeCheck{Run: fmt.Sprintf("runs/GOLD-01/%02d", k), Station: "chamber-2", Reference: "horn-r7",
+			Started: fmt.Sprintf("2027-01-%02dT08:00:00Z", k+5), FrequencyHz: 11.7e9, RangeLossDB: 50, Beam: "b00", GTdBPerK: gt(3.0 + 0.01*float64(k%2))})
+	}
+	other := UnitSummary{Serial: "GOLD-02", Product: "GOLDEN-ONLY", Started: "2027-01-21T09:00:00Z", Verdict: VerdictPass, CheckUnit: true}
+	f := ComputeFleet(append(us, golden, other))
+	if len(f.Products) != 1 {
+		t.Fatalf("products %+v, want P alone", f.Products)
+	}
+	p := f.Products[0]
+	if p.Units != 3 || p.VerdictCounts[VerdictFail] != 0 || p.FinalYield != 1 || p.Limits[0].Units != 3 {
+		t.Errorf("the check unit counted in P: %d units, counts %v, yield %v", p.Units, p.VerdictCounts, p.FinalYield)
+	}
+	marked := 0
+	for _, u := range f.Units {
+		if u.CheckUnit != (u.Serial == "GOLD-01" || u.Serial == "GOLD-02") {
+			t.Errorf("unit %s: check unit %v", u.Serial, u.CheckUnit)
+		}
+		if u.CheckUnit {
+			marked++
+		}
+	}
+	if len(f.Units) != 5 || marked != 2 {
+		t.Errorf("%d units, %d marked as check units; want 5 and 2", len(f.Units), marked)
+	}
+	if len(f.CheckUnits) != 1 || f.CheckUnits[0].Serial != "GOLD-01" || len(f.CheckUnits[0].Points) != 12 || f.CheckUnits[0].TooFew {
+		t.Fatalf("check unit charts %+v", f.CheckUnits)
+	}
+	// Twelve values alternating 3.00 and 3.01: centre 3.005, mean moving
+	// range 0.01, limits 3.005 -/+ 0.0266 (hand-worked).
+	c := f.CheckUnits[0]
+	if math.Abs(c.CentreDB-3.005) > 1e-9 || math.Abs(c.UCLDB-3.0316) > 1e-9 || len(c.OutOfControl) != 0 {
+		t.Errorf("check unit chart: centre %v UCL %v out %v", c.CentreDB, c.UCLDB, c.OutOfControl)
+	}
+}

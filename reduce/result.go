@@ -61,6 +61,9 @@ type Unit struct {
 	// RangeCheck is the run's check of its range: the range loss at band
 	// centre and its drift (nil when there is no range loss).
 	RangeCheck *RangeCheck `json:"range_check,omitempty"`
+	// CheckUnit is set for a check unit (golden unit) of its station:
+	// range health shows it, and its product's yield leaves it out.
+	CheckUnit bool `json:"check_unit,omitempty"`
 
 	Lab      *LabInfo      `json:"lab,omitempty"`
 	Customer *CustomerInfo `json:"customer,omitempty"`

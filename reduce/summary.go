@@ -10,12 +10,13 @@ import "math"
 // which the fleet stage reads back for every unit.
 func (u *Unit) Summary() UnitSummary {
 	s := UnitSummary{
-		Serial:  u.Serial,
-		Product: u.Product,
-		Started: u.Started,
-		Verdict: u.Verdict,
-		Limits:  make([]LimitResult, len(u.Limits)),
-		Runs:    len(u.History) + 1,
+		Serial:    u.Serial,
+		Product:   u.Product,
+		Started:   u.Started,
+		Verdict:   u.Verdict,
+		Limits:    make([]LimitResult, len(u.Limits)),
+		Runs:      len(u.History) + 1,
+		CheckUnit: u.CheckUnit,
 
 		IssueState:   u.Issue.State,
 		Revision:     u.Issue.Revision,

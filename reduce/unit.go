@@ -3,6 +3,7 @@ package reduce
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"time"
 
@@ -443,6 +444,42 @@ func reduceInto(u *Unit, in Input, cons *consequences) {
 		}
 	}
 	u.Verdict = unitVerdict(u)
+	if st := in.Station; st != nil && slices.Contains(st.CheckUnits, u.Serial) {
+		u.CheckUnit = true
+	}
+	if c := u.RangeCheck; c != nil {
+		c.Beam, c.GTdBPerK = boresightGTAt(u.Beams, c.FrequencyHz)
+	}
+}
+
+// boresightGTAt is the G/T of the beam nearest boresight at the grid
+// point nearest f (a check unit's G/T over time); nil when no beam has one.
+func boresightGTAt(beams []Beam, f float64) (string, *float64) {
+	best := -1
+	for i := range beams {
+		b := &beams[i]
+		if len(b.GTdBPerK) == 0 || len(b.GTdBPerK) != len(b.FrequencyHz) {
+			continue
+		}
+		if best < 0 || math.Abs(b.ThetaDeg) < math.Abs(beams[best].ThetaDeg) {
+			best = i
+		}
+	}
+	if best < 0 {
+		return "", nil
+	}
+	b := &beams[best]
+	k := 0
+	for i, x := range b.FrequencyHz {
+		if math.Abs(x-f) < math.Abs(b.FrequencyHz[k]-f) {
+			k = i
+		}
+	}
+	if !finite(b.GTdBPerK[k]) {
+		return "", nil
+	}
+	v := b.GTdBPerK[k]
+	return b.ID, &v
 }
 
 // unitVerdict is the worst verdict of the limits, or incomplete when a

@@ -55,7 +55,7 @@ func WriteFleetJSON(w io.Writer, f *reduce.Fleet) error {
 	for _, part := range []struct {
 		name string
 		v    any
-	}{{"stations", f.Stations}, {"references", f.References}} {
+	}{{"stations", f.Stations}, {"references", f.References}, {"check_units", f.CheckUnits}} {
 		b = append(b, ',')
 		b = appendNewline(b, 1)
 		b = appendJSONString(b, part.name)

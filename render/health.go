@@ -33,6 +33,13 @@ func Health(f *reduce.Fleet) ([]byte, error) {
 		}
 		v.Charts = append(v.Charts, cv)
 	}
+	for i, c := range f.CheckUnits {
+		cv, err := checkUnitView(fmt.Sprintf("check-%d", i), c)
+		if err != nil {
+			return nil, err
+		}
+		v.CheckUnits = append(v.CheckUnits, cv)
+	}
 	for _, r := range f.References {
 		rv := referenceView{ReferenceHealth: r}
 		for _, p := range r.RunsAfterDue {
@@ -48,7 +55,75 @@ type healthView struct {
 	Version    string
 	Cautions   string
 	Charts     []rangeView
+	CheckUnits []checkView
 	References []referenceView
+}
+
+type checkView struct {
+	reduce.CheckUnitChart
+	Chart      chartSpec
+	Out        []reduce.CheckPoint
+	ReportHref string
+}
+
+// checkUnitView is a check unit's G/T at band centre against the run
+// date, with the limits of its first runs.
+func checkUnitView(id string, c reduce.CheckUnitChart) (checkView, error) {
+	v := checkView{CheckUnitChart: c, ReportHref: "units/" + url.PathEscape(c.Serial) + "/report.html"}
+	beyond := map[int]bool{}
+	for _, i := range c.OutOfControl {
+		beyond[i] = true
+		v.Out = append(v.Out, c.Points[i])
+	}
+	var pts, out []opts.LineData
+	for i, p := range c.Points {
+		pts = append(pts, timePoint(c.Serial, p.Started, p.GTdBPerK))
+		if beyond[i] {
+			out = append(out, timePoint(c.Serial, p.Started, p.GTdBPerK))
+		}
+	}
+	first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
+	flat := func(x float64) []opts.LineData {
+		return []opts.LineData{timePoint("", first, x), timePoint("", last, x)}
+	}
+	ch := charts.NewLine()
+	ch.SetGlobalOptions(
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
+			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "G/T (dB/K)", Scale: opts.Bool(true)}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
+		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "48", Bottom: "48"}),
+	)
+	ch.AddSeries("G/T", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
+	if c.Baseline >= 2 {
+		for _, l := range []struct {
+			name  string
+			v     float64
+			style string
+		}{{"centre", c.CentreDB, "solid"}, {"upper control limit", c.UCLDB, "dashed"}, {"lower control limit", c.LCLDB, "dashed"}} {
+			colour := "#922b21"
+			if l.style == "solid" {
+				colour = "#17202a"
+			}
+			ch.AddSeries(l.name, flat(l.v), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+				charts.WithLineStyleOpts(opts.LineStyle{Color: colour, Width: 1, Type: l.style}), charts.WithItemStyleOpts(opts.ItemStyle{Color: colour}))
+		}
+	}
+	if len(out) > 0 {
+		ch.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
+			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	}
+	opt, err := finish(ch, map[string]any{"unit": "dB/K", "dates": true}, nil)
+	caption := fmt.Sprintf("G/T of beam %s at %s GHz, run by run (%d runs).", c.Beam, fmtGHz(c.FrequencyHz), len(c.Points))
+	if c.Baseline >= 2 {
+		caption += fmt.Sprintf(" Centre %s dB/K, limits %s to %s dB/K from the first %d runs.", fmtFixed(c.CentreDB, 3), fmtFixed(c.LCLDB, 3), fmtFixed(c.UCLDB, 3), c.Baseline)
+	}
+	if c.TooFew {
+		caption += fmt.Sprintf(" Fewer than %d runs: no run is called out of control yet.", reduce.MinChartPoints)
+	}
+	v.Chart = chartSpec{ID: id, Title: fmt.Sprintf("Check unit %s on %s", c.Serial, c.Station), Height: 260, Option: opt, Caption: caption}
+	return v, err
 }
 
 type rangeView struct {

@@ -36,7 +36,16 @@ func healthFleet() *reduce.Fleet {
 				FrequencyHz: 11.725e9, RangeLossDB: v, DriftDB: &drift, DriftToleranceDB: 0.25,
 				ReferenceCertificate: "LAB-26-0211", ReferenceCalibrated: "2026-02-10", ReferenceDue: "2027-06-01", PastDue: t.After(due)}}})
 	}
-	return reduce.ComputeFleet(us)
+	gold := reduce.UnitSummary{Serial: "KP16-GOLD-01", Product: "KU-PANEL-16", Started: "2027-07-01T09:00:00Z", Verdict: reduce.VerdictPass, CheckUnit: true}
+	for k := 0; k < 12; k++ {
+		g := 3.0 + 0.01*float64(k%2)
+		if k == 11 {
+			g = 2.5 // the chain lost half a dB
+		}
+		gold.RangeChecks = append(gold.RangeChecks, reduce.RangeCheck{Run: fmt.Sprintf("runs/KP16-GOLD-01/%02d", k), Station: "range-b", Reference: "horn-0042",
+			Started: day0.AddDate(0, 0, 14*k+3).Format(time.RFC3339), FrequencyHz: 11.725e9, RangeLossDB: 50.05, Beam: "b00", GTdBPerK: &g})
+	}
+	return reduce.ComputeFleet(append(us, gold))
 }
 
 // health.html lists what the range charts find: the runs beyond the
@@ -68,6 +77,10 @@ func TestHealthPage(t *testing.T) {
 	if !strings.Contains(refs, "LAB-26-0211") || !strings.Contains(refs, "KP16-00023</a> (2027-06-04)") || !strings.Contains(refs, "KP16-00026</a> (2027-06-25)") || strings.Contains(refs, "KP16-00022") {
 		t.Errorf("references: %s", refs[:min(len(refs), 800)])
 	}
+	checks := page[strings.Index(page, "<h2>Check units"):strings.Index(page, "<h2>Reference antennas")]
+	if !strings.Contains(checks, "Check unit KP16-GOLD-01 on range-b") || !strings.Contains(checks, "runs/KP16-GOLD-01/11 (2.500 dB/K)") {
+		t.Errorf("check units: %s", checks)
+	}
 	if !strings.Contains(page, `http-equiv="Content-Security-Policy"`) || !strings.Contains(page, `href="index.html"`) {
 		t.Error("the page lacks its policy or its link to the overview")
 	}
@@ -86,6 +99,6 @@ func TestBrowserHealth(t *testing.T) {
 		t.Fatal(err)
 	}
 	ctx, pl := openPage(t, bctx, path)
-	checkPage(t, ctx, pl, []string{"range-0", "range-0-drift"})
+	checkPage(t, ctx, pl, []string{"range-0", "range-0-drift", "check-0"})
 	shot(t, ctx, "health.png")
 }
