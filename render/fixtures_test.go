@@ -346,7 +346,18 @@ func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary
 			{Name: "Gain at boresight", Quantity: "gain", Beam: "b00", Statistic: "mean", WorstMarginDB: 1.5 + margins[i]/3,
 				AtFrequencyHz: 11.725e9, ValueDB: 31 + margins[i]/3, LimitDB: 29.5, ExpandedUncertaintyDB: 0.43, Verdict: reduce.VerdictPass},
 		}
-		sums = append(sums, reduce.UnitSummary{Serial: serials[i], Product: "KU-PANEL-16", Started: started[i], Verdict: v, Limits: lr})
+		sum := reduce.UnitSummary{Serial: serials[i], Product: "KU-PANEL-16", Started: started[i], Verdict: v, Limits: lr,
+			Runs: 1, FirstVerdict: v, IssueState: reduce.IssueDraft, Revision: 1, ReportNumber: "EATL-GT-" + serials[i] + "-R1"}
+		switch {
+		case i%4 == 0: // every fourth unit issued as R1
+			sum.IssueState = reduce.IssueIssued
+		case i == 9: // approved as R1, then retested: R1 void, a draft of R2
+			sum.IssueState, sum.Revision, sum.ReportNumber = reduce.IssueVoid, 2, "EATL-GT-"+serials[i]+"-R2"
+			sum.Runs, sum.FirstVerdict = 2, reduce.VerdictPass
+		case i == 14: // failed, retested, issued
+			sum.IssueState, sum.Runs, sum.FirstVerdict = reduce.IssueIssued, 3, reduce.VerdictFail
+		}
+		sums = append(sums, sum)
 	}
 	sums = append(sums, reduce.UnitSummary{Serial: "XB4-00001", Product: "X-BAND-4", Started: "2026-11-20T10:00:00Z",
 		Verdict: reduce.VerdictFail, Limits: []reduce.LimitResult{{Name: "G/T at boresight", Quantity: "gt", Beam: "b00",

@@ -9,11 +9,16 @@ import (
 )
 
 // FleetWorkbook returns fleet.xlsx: Units (verdict and worst margin per
-// limit of every unit), Products (verdict counts), Limits (yield, mean,
+// limit of every unit, then its runs, first verdict and its report's issue
+// state, revision and number), Products (verdict counts), Limits (yield, mean,
 // standard deviation, Cpk), Control chart (the individuals chart data, with
 // a chart per product and limit), Outliers, Watch and Band (the golden band
 // per frequency, with a chart per product).
 func FleetWorkbook(f *reduce.Fleet) ([]byte, error) {
+	return fleetWorkbook(f, fleetIssueOf)
+}
+
+func fleetWorkbook(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) ([]byte, error) {
 	if f == nil {
 		return nil, fmt.Errorf("render: FleetWorkbook of a nil fleet")
 	}
@@ -26,7 +31,7 @@ func FleetWorkbook(f *reduce.Fleet) ([]byte, error) {
 	watch := b.addSheet("Watch")
 	band := b.addSheet("Band")
 
-	writeFleetUnits(b, units, f)
+	writeFleetUnits(b, units, f, issueOf)
 	writeFleetProducts(b, products, f)
 	writeFleetLimits(b, limits, f)
 	writeControlChart(b, chart, f)
@@ -78,12 +83,16 @@ func worstMargin(u *reduce.FleetUnit, name string) float64 {
 // fleet.json's rounding (appendJSONFloat). Only the headers, panes, rules
 // and charts go through excelize.
 
-func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet) {
+// fleetIssueColumns close the Units sheet, after the limits' columns.
+var fleetIssueColumns = []xlColumn{{"Runs", nfInt, 7}, {"First verdict", "", 16}, {"Issue state", "", 12}, {"Revision", nfInt, 9}, {"Report number", "", 30}}
+
+func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) {
 	names := fleetLimitNames(f)
 	cols := []xlColumn{{"Serial", "", 18}, {"Product", "", 16}, {"Started", "", 21}, {"Verdict", "", 16}}
 	for _, n := range names {
 		cols = append(cols, xlColumn{n + " worst margin (dB)", nfDB, 16})
 	}
+	cols = append(cols, fleetIssueColumns...)
 	b.table(sheet, 1, cols, true)
 	styles := b.columnStyles(cols)
 	t := &bulkSheet{first: 2, width: len(cols), rows: make([][]bulkCell, 0, len(f.Units))}
@@ -94,11 +103,22 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet) {
 		for _, n := range names {
 			values = append(values, worstMargin(u, n))
 		}
+		fi := issueOf(u)
+		var runs, revision any // empty cells when not known
+		if fi.Runs > 0 {
+			runs = fi.Runs
+		}
+		if fi.Revision > 0 {
+			revision = fi.Revision
+		}
+		values = append(values, runs, fi.FirstVerdict, fi.State, revision, fi.ReportNumber)
 		t.rows = append(t.rows, bulkRow(styles, values...))
 	}
 	b.addBulk(sheet, t)
 	if len(f.Units) > 0 {
 		b.verdictRules(sheet, fmt.Sprintf("D2:D%d", len(f.Units)+1))
+		first := b.colName(len(cols) - len(fleetIssueColumns) + 2)
+		b.verdictRules(sheet, fmt.Sprintf("%s2:%s%d", first, first, len(f.Units)+1))
 	}
 }
 

@@ -25,7 +25,7 @@ func Index(f *reduce.Fleet) ([]byte, error) {
 	if _, err := loadPages(); err != nil {
 		return nil, err
 	}
-	v, err := indexModel(f)
+	v, err := indexModel(f, fleetIssueOf)
 	if err != nil {
 		return nil, err
 	}
@@ -42,6 +42,17 @@ type indexView struct {
 	Products  []productView
 	Cautions  string
 	Notices   []string
+	// ShowIssue is set when the fleet knows any unit's issue state: the
+	// table then has a Report and a Runs column. Issues counts the units
+	// per issue state; Retested those with more than one run.
+	ShowIssue bool
+	Issues    []issueCount
+	Retested  int
+}
+
+type issueCount struct {
+	State string
+	N     int
 }
 
 type unitRow struct {
@@ -52,6 +63,7 @@ type unitRow struct {
 	Date          string
 	ReportHref    string
 	BookHref      string
+	Issue         fleetIssue
 }
 
 type productView struct {
@@ -66,12 +78,20 @@ type limitStatsRow struct {
 	HasStats bool
 }
 
-func indexModel(f *reduce.Fleet) (*indexView, error) {
+func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*indexView, error) {
 	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions, Notices: f.Notices}
 	counts := map[string]int{}
+	issues := map[string]int{}
 	var margins []float64
-	for _, u := range f.Units {
-		r := unitRow{FleetUnit: u, WorstMarginDB: math.NaN()}
+	for i, u := range f.Units {
+		r := unitRow{FleetUnit: u, WorstMarginDB: math.NaN(), Issue: issueOf(&f.Units[i])}
+		if r.Issue.known() {
+			v.ShowIssue = true
+			issues[r.Issue.State]++
+			if r.Issue.Retested() {
+				v.Retested++
+			}
+		}
 		// Each entry is a limit name's worst beam; the first entry wins a tie.
 		for _, l := range u.Limits {
 			if finite(l.WorstMarginDB) && (!r.HasMargin || l.WorstMarginDB < r.WorstMarginDB) {
@@ -94,6 +114,11 @@ func indexModel(f *reduce.Fleet) (*indexView, error) {
 	// The units arrive sorted by serial; keep that order whatever the input.
 	sort.SliceStable(v.Units, func(i, j int) bool { return v.Units[i].Serial < v.Units[j].Serial })
 	v.Counts = sortedCounts(counts)
+	for _, st := range []string{stateIssued, stateDraft, stateVoid} {
+		if n := issues[st]; n > 0 {
+			v.Issues = append(v.Issues, issueCount{st, n})
+		}
+	}
 	if len(margins) > 0 {
 		h, err := histogramChart(margins)
 		if err != nil {

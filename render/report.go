@@ -203,6 +203,10 @@ func sharedRange(beams []reduce.Beam) bool {
 
 // The report's view model.
 
+// endRows is how many input files are printed on the last page with the
+// end of the report, so that no last page holds the end line alone.
+const endRows = 6
+
 type reportView struct {
 	pageAssets
 	Version  string
@@ -224,8 +228,18 @@ type reportView struct {
 	CSVName   string
 	CSVSize   int
 	Problems  []problemRow
+	// Cautions are the laboratory-safety cautions, in the method section.
 	Cautions  string
 	InputSize int64
+	// Cert is the first page; History the earlier runs, oldest first.
+	Cert    *certificate
+	History []historyRow
+	// InputsHead and InputsTail are the input files, the tail being the
+	// last few, printed on one page with the end of the report.
+	InputsHead, InputsTail []ingest.InputFile
+	// Deviations is set when the method section must point at flags, an
+	// expired reference or refused inputs.
+	Deviations bool
 }
 
 type limitRow struct {
@@ -341,11 +355,20 @@ func reportModel(u *reduce.Unit) (*reportView, error) {
 	for _, in := range u.Inputs {
 		v.InputSize += in.Size
 	}
+	cut := max(0, len(u.Inputs)-endRows)
+	v.InputsHead, v.InputsTail = u.Inputs[:cut], u.Inputs[cut:]
 	notes, err := markdown(u.Notes)
 	if err != nil {
 		return nil, err
 	}
 	v.NotesHTML = notes
+	if v.Cert, err = certificateOf(u); err != nil {
+		return nil, err
+	}
+	if v.History, err = historyRows(u.History); err != nil {
+		return nil, err
+	}
+	v.Deviations = len(u.Flags) > 0 || len(u.Problems) > 0 || u.Reference.Expired
 
 	data, cols := unitCSV(u)
 	v.CSVLink = dataURLAttr("text/csv;charset=utf-8", data)

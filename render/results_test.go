@@ -513,7 +513,7 @@ func TestResultsCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	header := "serial,product,started,unit_verdict,beam,limit,quantity,statistic,worst_margin_db,at_frequency_ghz,value,limit_value,expanded_uncertainty_db,verdict"
+	header := "serial,product,started,unit_verdict,beam,limit,quantity,statistic,worst_margin_db,at_frequency_ghz,value,limit_value,expanded_uncertainty_db,verdict,issue_state,revision,report_number"
 	if strings.Join(rows[0], ",") != header {
 		t.Fatalf("header %q", strings.Join(rows[0], ","))
 	}
@@ -541,6 +541,14 @@ func TestResultsCSV(t *testing.T) {
 			if r[0] != u.Serial || r[5] != l.Name || r[4] != l.Beam || r[13] != l.Verdict || r[3] != u.Verdict {
 				t.Errorf("row %d: %q", row-1, r)
 			}
+			// The issue state closes every row of the unit.
+			rev := ""
+			if u.Revision > 0 {
+				rev = strconv.Itoa(u.Revision)
+			}
+			if len(r) != 17 || r[14] != u.IssueState || r[15] != rev || r[16] != u.ReportNumber {
+				t.Errorf("row %d: issue columns %q, want %q %q %q", row-1, r[14:], u.IssueState, rev, u.ReportNumber)
+			}
 			for c, v := range map[int]float64{8: l.WorstMarginDB, 10: l.ValueDB, 11: l.LimitDB, 12: l.ExpandedUncertaintyDB} {
 				if math.IsNaN(v) {
 					if r[c] != "" {
@@ -563,6 +571,10 @@ func TestResultsCSV(t *testing.T) {
 	}
 	if rows[2][8] != "0.9" {
 		t.Errorf("first margin %q, want 0.9", rows[2][8])
+	}
+	// The fixture's first unit is issued as R1 (fixtureFleetAndSummaries).
+	if got := strings.Join(rows[2][14:], ","); got != "issued,1,EATL-GT-KP16-00001-R1" {
+		t.Errorf("issue columns of KP16-00001: %q", got)
 	}
 	if got := string(ResultsCSV(nil)); got != header+"\n" {
 		t.Errorf("no units: %q", got)

@@ -17,12 +17,16 @@ import (
 var resultsCSVHeader = []string{
 	"serial", "product", "started", "unit_verdict", "beam", "limit", "quantity", "statistic",
 	"worst_margin_db", "at_frequency_ghz", "value", "limit_value", "expanded_uncertainty_db", "verdict",
+	// The report's issue state, appended so that the columns before keep
+	// their places.
+	"issue_state", "revision", "report_number",
 }
 
 // ResultsCSV returns results.csv: a header and one row per unit, beam and
 // limit (one per reduce.LimitResult), units sorted by serial, limits in the
-// order reduce gave them. A unit without limits still has one row, with the
-// limit columns empty. Numbers are the shortest text that reads back to
+// order reduce gave them, each row ending with the unit's issue state,
+// revision and report number. A unit without limits still has one row,
+// with the limit columns empty. Numbers are the shortest text that reads back to
 // the same float64; frequencies are in GHz to 1 Hz; a non-finite number is
 // an empty field. Text fields go through safeCSVText, so that a
 // spreadsheet application opening the file shows a text such as "=1+2" as
@@ -70,14 +74,20 @@ func (r *ResultsCSVWriter) Unit(u *reduce.UnitSummary) error {
 	r.last = u.Serial
 	r.units++
 	head := []string{safeCSVText(u.Serial), safeCSVText(u.Product), safeCSVText(u.Started), safeCSVText(u.Verdict)}
+	revision := ""
+	if u.Revision > 0 {
+		revision = strconv.Itoa(u.Revision)
+	}
+	issue := []string{safeCSVText(u.IssueState), revision, safeCSVText(u.ReportNumber)}
 	if len(u.Limits) == 0 {
-		return r.w.Write(append(append(r.row[:0], head...), "", "", "", "", "", "", "", "", "", ""))
+		return r.w.Write(append(append(append(r.row[:0], head...), "", "", "", "", "", "", "", "", "", ""), issue...))
 	}
 	for _, l := range u.Limits {
 		row := append(append(r.row[:0], head...),
 			safeCSVText(l.Beam), safeCSVText(l.Name), safeCSVText(l.Quantity), safeCSVText(l.Statistic),
 			csvFloat(l.WorstMarginDB), csvGHz(l.AtFrequencyHz), csvFloat(l.ValueDB), csvFloat(l.LimitDB),
 			csvFloat(l.ExpandedUncertaintyDB), safeCSVText(l.Verdict))
+		row = append(row, issue...)
 		if err := r.w.Write(row); err != nil {
 			return err
 		}

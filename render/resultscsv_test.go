@@ -95,6 +95,7 @@ func formulaSummary() reduce.UnitSummary {
 			WorstMarginDB: -1.25, AtFrequencyHz: 11.725e9, ValueDB: -0.5, LimitDB: 0.75,
 			ExpandedUncertaintyDB: 0.25, Verdict: "=fail",
 		}},
+		IssueState: "=issued", Revision: 3, ReportNumber: "-R3",
 	}
 }
 
@@ -105,7 +106,7 @@ func TestResultsCSVFormulaText(t *testing.T) {
 	data := ResultsCSV([]reduce.UnitSummary{formulaSummary()})
 	want := []string{
 		"'=cmd|' /C calc'!A0", "'+PRODUCT", "'-2026-11-03", "'@pass", "'\rb00", `'=HYPERLINK("http://x","y")`,
-		"'\tgt", "'-min", "-1.25", "11.725", "-0.5", "0.75", "0.25", "'=fail",
+		"'\tgt", "'-min", "-1.25", "11.725", "-0.5", "0.75", "0.25", "'=fail", "'=issued", "3", "'-R3",
 	}
 	for reader, rows := range map[string][][]string{"encoding/csv": goCSV(t, data), "python csv": pythonCSV(t, data)} {
 		if len(rows) != 2 {

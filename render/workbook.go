@@ -618,6 +618,40 @@ func summaryFields(u *reduce.Unit) [][2]any {
 	if u.Station.Description != "" {
 		station += " - " + u.Station.Description
 	}
+	is := issueShown(u)
+	var sigs []string
+	if is.Issued {
+		for _, sg := range u.Issue.Signatures {
+			who := sg.By
+			if sg.Role != "" {
+				who += ", " + sg.Role
+			}
+			sigs = append(sigs, who+", "+sg.Date)
+		}
+	}
+	signatures := strings.Join(sigs, "; ")
+	notIssued := ""
+	if !is.Issued {
+		notIssued = is.Why
+		if is.Void != "" {
+			notIssued = "approval void: " + is.Void + "; " + is.Why
+		}
+	}
+	var lab, customer, order string
+	if u.Lab != nil {
+		lab = u.Lab.Name
+	}
+	if u.Customer != nil {
+		customer, order = u.Customer.Name, u.Customer.Order
+	}
+	first := u.Verdict
+	if len(u.History) > 0 {
+		first = u.History[0].Verdict
+	}
+	var revision any // none before a first revision is known
+	if is.Revision > 0 {
+		revision = is.Revision
+	}
 	return [][2]any{
 		{"Unit", u.Serial},
 		{"Product", u.Product},
@@ -635,6 +669,20 @@ func summaryFields(u *reduce.Unit) [][2]any {
 		{"Ambient (°C)", u.AmbientC},
 		{"Firmware", u.Firmware},
 		{"Tool version", "gtpack " + Version},
+		// The issue state, as the report's first page shows it; after the
+		// rows above, which keep their places.
+		{"Issue state", is.State},
+		{"Revision", revision},
+		{"Report number", is.ReportNumber},
+		{"Date of issue", is.IssueDate},
+		{"Signatures", signatures},
+		{"Replaces", is.Replaces},
+		{"Not issued because", notIssued},
+		{"Laboratory", lab},
+		{"Customer", customer},
+		{"Order", order},
+		{"Runs", len(u.History) + 1},
+		{"First run verdict", first},
 	}
 }
 
@@ -693,6 +741,8 @@ func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) 
 		switch x := kv[1].(type) {
 		case float64:
 			row[1] = numCell(x, b.numStyle(nfTemp))
+		case int:
+			row[1] = numCell(float64(x), b.numStyle(nfInt))
 		case string:
 			row[1] = textCell(x, 0)
 		}

@@ -284,12 +284,23 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 			if s.cell(r, 1) != kv[0] {
 				t.Errorf("A%d = %v, want %v", r, s.cell(r, 1), kv[0])
 			}
-			if f, ok := kv[1].(float64); ok {
-				if !sameResult(s.cell(r, 2), f) || s.format(r, 2) != "0.0" {
-					t.Errorf("B%d = %v (%s), want %v (0.0)", r, s.cell(r, 2), s.format(r, 2), f)
+			switch want := kv[1].(type) {
+			case float64:
+				if !sameResult(s.cell(r, 2), want) || s.format(r, 2) != "0.0" {
+					t.Errorf("B%d = %v (%s), want %v (0.0)", r, s.cell(r, 2), s.format(r, 2), want)
 				}
-			} else if s.cell(r, 2) != kv[1] {
-				t.Errorf("B%d = %v, want %v", r, s.cell(r, 2), kv[1])
+			case int:
+				if s.cell(r, 2) != float64(want) || s.format(r, 2) != "0" {
+					t.Errorf("B%d = %v (%s), want %d (0)", r, s.cell(r, 2), s.format(r, 2), want)
+				}
+			case string:
+				if got := s.cell(r, 2); !(got == want || want == "" && got == nil) {
+					t.Errorf("B%d = %v, want %q", r, got, want)
+				}
+			case nil:
+				if got := s.cell(r, 2); got != nil {
+					t.Errorf("B%d = %v, want an empty cell", r, got)
+				}
 			}
 		}
 		hr := findRow(s, 1, "Limit")

@@ -206,18 +206,30 @@
     });
   }
 
-  // For paper: no tooltip, no zoom slider, the printed width.
+  // For paper: no tooltip, no zoom slider, the printed size (the style
+  // sheet's 6.8 cm high, 680 px wide: within the text width of A4 and
+  // Letter alike).
+  var printWidth = 680, printHeight = 257, printHeatHeight = 300;
   function resizeAll(width) {
     charts.forEach(function (c) {
       // A heat map redrawn for paper printed blank (its redraw is not done
-      // when the page is captured): it keeps its drawing.
-      if (width && c.gtpackHeat) { return; }
+      // when the page is captured): it keeps its drawing, zoomed down to
+      // fit the printed width and 8 cm.
+      if (c.gtpackHeat) {
+        var inner = c.getDom().firstChild;
+        var z = Math.min(1, width / c.getWidth(), printHeatHeight / c.getHeight());
+        if (inner) { inner.style.zoom = width && z < 1 ? String(z) : ''; }
+        if (width) { return; }
+      }
       var zs = (c.getOption().dataZoom || []).map(function (z) {
         return z.type === 'slider' ? { show: !width } : {};
       });
       if (width) { c.dispatchAction({ type: 'hideTip' }); }
       if (zs.length) { c.setOption({ dataZoom: zs }); }
-      c.resize(width ? { width: width } : undefined);
+      c.resize(width ? { width: width, height: printHeight } : undefined);
+      // Paint now: a page being printed may be captured before the next
+      // animation frame, which would leave the drawing of the old size.
+      c.getZr().flush();
     });
   }
 
@@ -225,12 +237,12 @@
   Array.prototype.forEach.call(document.querySelectorAll('table.sortable'), sortable);
   Array.prototype.forEach.call(document.querySelectorAll('input.filter-box'), filterBox);
   var printMedia = window.matchMedia ? window.matchMedia('print') : null;
-  function layout() { resizeAll(printMedia && printMedia.matches ? 690 : 0); }
+  function layout() { resizeAll(printMedia && printMedia.matches ? printWidth : 0); }
   window.addEventListener('resize', layout);
   if (printMedia && printMedia.addEventListener) { printMedia.addEventListener('change', layout); }
   // Paper is narrower than most screens: draw the charts at the printed
-  // width (A4 text width at 96 px per inch) while printing.
-  window.addEventListener('beforeprint', function () { resizeAll(690); });
+  // size while printing.
+  window.addEventListener('beforeprint', function () { resizeAll(printWidth); });
   window.addEventListener('afterprint', function () { resizeAll(); });
   document.documentElement.setAttribute('data-charts', String(charts.length));
 }());
