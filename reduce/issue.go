@@ -134,7 +134,7 @@ func IssueOf(lab *ingest.Lab, serial, inputsSHA256, verdict string, problems int
 	case !complete:
 		is.Why = "the unit is incomplete or has problems: it cannot be approved"
 	default:
-		is.Why = fmt.Sprintf("not approved: gtpack approve ARCHIVE %s --by NAME issues R%d", serial, is.Revision)
+		is.Why = fmt.Sprintf("not yet approved by the laboratory: its approval issues this report as revision %d", is.Revision)
 	}
 	return is
 }

@@ -27,7 +27,7 @@ func TestIssueOf(t *testing.T) {
 
 	// Never approved: a draft of R1 with its number.
 	is := IssueOf(lab, serial, h1, "pass", 0, nil)
-	if is.State != IssueDraft || is.Revision != 1 || is.ReportNumber != "EATL-GT-QDA-26-0001-R1" || is.Issued != "" || !strings.Contains(is.Why, "gtpack approve") {
+	if is.State != IssueDraft || is.Revision != 1 || is.ReportNumber != "EATL-GT-QDA-26-0001-R1" || is.Issued != "" || !strings.Contains(is.Why, "not yet approved by the laboratory") {
 		t.Errorf("never approved: %+v", is)
 	}
 	// R1 issued; a co-signature adds a signature, not a revision; the date

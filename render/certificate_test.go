@@ -43,9 +43,9 @@ var (
 		Signatures: []reduce.Signature{{By: "A. Example", Role: "Quality engineer", Date: "2026-11-09T09:00:00Z", File: "approvals/KP16-00017/20261109T090000Z-a-example.yaml"}}}
 	voidR2 = reduce.Issue{State: reduce.IssueVoid, Revision: 2, ReportNumber: "EATL-GT-KP16-00017-R2", Replaces: "EATL-GT-KP16-00017-R1",
 		Void: "R1, approved by A. Example on 2026-11-04T10:00:00Z (approvals/KP16-00017/20261104T100000Z-a-example.yaml), named inputs 0123456789ab (the unit's are now 9f1c2e5a7b3d)",
-		Why:  "not approved: gtpack approve ARCHIVE KP16-00017 --by NAME issues R2"}
+		Why:  "not yet approved by the laboratory: its approval issues this report as revision 2"}
 	draftR1 = reduce.Issue{State: reduce.IssueDraft, Revision: 1, ReportNumber: "EATL-GT-KP16-00017-R1",
-		Why: "not approved: gtpack approve ARCHIVE KP16-00017 --by NAME issues R1"}
+		Why: "not yet approved by the laboratory: its approval issues this report as revision 1"}
 )
 
 // pageBoxes is the report's own @page rule: what every printed page
@@ -104,7 +104,7 @@ func TestCertificateStates(t *testing.T) {
 			[]string{`content: "EATL-GT-KP16-00017-R2";`, `@top-right { content: "Draft of revision 2";`, `@top-center { content: "DRAFT \2014  not issued";`},
 			[]string{`<div class="draft-word">DRAFT — approval void</div>`,
 				"<div><b>Approval void:</b> R1, approved by A. Example on 2026-11-04T10:00:00Z (approvals/KP16-00017/20261104T100000Z-a-example.yaml), named inputs 0123456789ab (the unit&#39;s are now 9f1c2e5a7b3d).</div>",
-				"<div><b>Why not issued:</b> not approved: gtpack approve ARCHIVE KP16-00017 --by NAME issues R2.</div>",
+				"<div><b>Why not issued:</b> not yet approved by the laboratory: its approval issues this report as revision 2.</div>",
 				"<div>Draft of revision 2 · not issued</div>", "<tr><th>Date of issue</th><td>none: not issued</td></tr>",
 				`<span class="tag issue-void">DRAFT — approval void</span>`, "nobody has approved these results",
 				"End of report EATL-GT-KP16-00017-R2 (DRAFT, not issued)", "<title>DRAFT – KP16-00017"},
@@ -112,7 +112,7 @@ func TestCertificateStates(t *testing.T) {
 		{"draft", issueUnit(t, draftR1), stateDraft, false,
 			[]string{`content: "EATL-GT-KP16-00017-R1";`, `content: "Draft of revision 1";`, `@top-center { content: "DRAFT \2014  not issued";`},
 			[]string{`<div class="draft-word">DRAFT — not issued</div>`,
-				"<div><b>Why not issued:</b> not approved: gtpack approve ARCHIVE KP16-00017 --by NAME issues R1.</div>",
+				"<div><b>Why not issued:</b> not yet approved by the laboratory: its approval issues this report as revision 1.</div>",
 				"End of report EATL-GT-KP16-00017-R1 (DRAFT, not issued)"},
 			[]string{"Approved by", "ISSUED", "Approval void", "Replaces report"}, nil},
 		{"no laboratory", noLab, stateDraft, false,

@@ -438,6 +438,7 @@ func TestIndex(t *testing.T) {
 		"(1 unit)",
 		"Capability and control statistics need at least two units.",
 		"must not radiate", // method.md section 11 cautions, on the overview too
+		`<a href="health.html">range health</a>`,
 		"ISO/IEC 17025",
 	} {
 		if !strings.Contains(page, want) {
