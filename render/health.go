@@ -83,37 +83,12 @@ func checkUnitView(id string, c reduce.CheckUnitChart) (checkView, error) {
 		}
 	}
 	first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
-	flat := func(x float64) []opts.LineData {
-		return []opts.LineData{timePoint("", first, x), timePoint("", last, x)}
-	}
-	ch := charts.NewLine()
-	ch.SetGlobalOptions(
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
-			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "G/T (dB/K)", Scale: opts.Bool(true)}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
-		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "48", Bottom: "48"}),
-	)
+	ch := dateChart(opts.YAxis{Type: "value", Name: "G/T (dB/K)", Scale: opts.Bool(true)}, "48", false)
 	ch.AddSeries("G/T", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
 	if c.Baseline >= 2 {
-		for _, l := range []struct {
-			name  string
-			v     float64
-			style string
-		}{{"centre", c.CentreDB, "solid"}, {"upper control limit", c.UCLDB, "dashed"}, {"lower control limit", c.LCLDB, "dashed"}} {
-			colour := "#922b21"
-			if l.style == "solid" {
-				colour = "#17202a"
-			}
-			ch.AddSeries(l.name, flat(l.v), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-				charts.WithLineStyleOpts(opts.LineStyle{Color: colour, Width: 1, Type: l.style}), charts.WithItemStyleOpts(opts.ItemStyle{Color: colour}))
-		}
+		addControlLines(ch, first, last, c.CentreDB, c.LCLDB, c.UCLDB)
 	}
-	if len(out) > 0 {
-		ch.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
-			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
-	}
+	addBeyond(ch, out)
 	opt, err := finish(ch, map[string]any{"unit": "dB/K", "dates": true}, nil)
 	caption := fmt.Sprintf("G/T of beam %s at %s GHz, run by run (%d runs).", c.Beam, fmtGHz(c.FrequencyHz), len(c.Points))
 	if c.Baseline >= 2 {
@@ -214,32 +189,12 @@ func rangeLossChart(id string, c reduce.RangeChart) (chartSpec, error) {
 		}
 	}
 	first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
-	flat := func(v float64) []opts.LineData {
-		return []opts.LineData{timePoint("", first, v), timePoint("", last, v)}
-	}
-	ch := charts.NewLine()
-	ch.SetGlobalOptions(
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
-			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "Range loss (dB)", Scale: opts.Bool(true)}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
-		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "64", Bottom: "48"}),
-		charts.WithDataZoomOpts(opts.DataZoom{Type: "inside", XAxisIndex: []int{0}}),
-	)
+	ch := dateChart(opts.YAxis{Type: "value", Name: "Range loss (dB)", Scale: opts.Bool(true)}, "64", true)
 	ch.AddSeries("range loss", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
 	if c.Baseline >= 2 {
-		ch.AddSeries("centre", flat(c.CentreDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-			charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#17202a"}))
-		ch.AddSeries("upper control limit", flat(c.UCLDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
-		ch.AddSeries("lower control limit", flat(c.LCLDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+		addControlLines(ch, first, last, c.CentreDB, c.LCLDB, c.UCLDB)
 	}
-	if len(out) > 0 {
-		ch.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
-			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
-	}
+	addBeyond(ch, out)
 	opt, err := finish(ch, map[string]any{"unit": "dB", "dates": true}, nil)
 	caption := fmt.Sprintf("Range loss at %s GHz, run by run (%d runs). ", fmtGHz(c.FrequencyHz), len(c.Points))
 	switch {
@@ -269,19 +224,11 @@ func driftChart(id string, c reduce.RangeChart) (chartSpec, bool, error) {
 	if len(pts) == 0 {
 		return chartSpec{}, false, nil
 	}
-	ch := charts.NewLine()
-	ch.SetGlobalOptions(
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
-			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "|pre − post| (dB)", Min: 0}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
-		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "48", Bottom: "48"}),
-	)
+	ch := dateChart(opts.YAxis{Type: "value", Name: "|pre − post| (dB)", Min: 0}, "48", false)
 	ch.AddSeries("drift", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
 	if c.DriftToleranceDB > 0 {
 		first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
-		ch.AddSeries("station tolerance", []opts.LineData{timePoint("", first, c.DriftToleranceDB), timePoint("", last, c.DriftToleranceDB)},
+		ch.AddSeries("station tolerance", flatLine(first, last, c.DriftToleranceDB),
 			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
 			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
 	}
@@ -289,4 +236,51 @@ func driftChart(id string, c reduce.RangeChart) (chartSpec, bool, error) {
 	return chartSpec{ID: id, Title: "Pre/post drift: " + c.Station + " with " + c.Reference, Height: 220, Option: opt,
 		Caption: fmt.Sprintf("The change of the range loss at %s GHz between the reference measurements before and after each unit; the dashed line is the station's tolerance (%s dB).",
 			fmtGHz(c.FrequencyHz), fmtFixed(c.DriftToleranceDB, 3))}, true, err
+}
+
+// dateChart is a line chart against the run date, its points given by
+// timePoint; y is its value axis, top the grid's top margin (room for the
+// legend).
+func dateChart(y opts.YAxis, top string, zoom bool) *charts.Line {
+	ch := charts.NewLine()
+	o := []charts.GlobalOpts{
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26,
+			AxisLabel: &opts.AxisLabel{Formatter: "{yyyy}-{MM}-{dd}"}}),
+		charts.WithYAxisOpts(y),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
+		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: top, Bottom: "48"}),
+	}
+	if zoom {
+		o = append(o, charts.WithDataZoomOpts(opts.DataZoom{Type: "inside", XAxisIndex: []int{0}}))
+	}
+	ch.SetGlobalOptions(o...)
+	return ch
+}
+
+// flatLine is a horizontal line at v from the date first to last.
+func flatLine(first, last string, v float64) []opts.LineData {
+	return []opts.LineData{timePoint("", first, v), timePoint("", last, v)}
+}
+
+// addControlLines adds an individuals chart's centre line and control
+// limits from first to last.
+func addControlLines(ch *charts.Line, first, last string, centre, lcl, ucl float64) {
+	ch.AddSeries("centre", flatLine(first, last, centre), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#17202a"}))
+	for _, l := range []struct {
+		name string
+		v    float64
+	}{{"upper control limit", ucl}, {"lower control limit", lcl}} {
+		ch.AddSeries(l.name, flatLine(first, last, l.v), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	}
+}
+
+// addBeyond marks the points beyond the control limits.
+func addBeyond(ch *charts.Line, out []opts.LineData) {
+	if len(out) > 0 {
+		ch.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
+			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	}
 }
