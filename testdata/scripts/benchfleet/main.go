@@ -21,6 +21,7 @@ import (
 	"time"
 
 	"github.com/chromedp/cdproto/cdp"
+	"github.com/chromedp/cdproto/heapprofiler"
 	"github.com/chromedp/cdproto/performance"
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
@@ -219,6 +220,14 @@ func memory(ctx context.Context, errs []string) error {
 	}
 	rss, private := rendererMemory(chromedp.FromContext(ctx).Browser.Process().Pid)
 	fmt.Printf("renderer memory          %8.0f MB   (target < 300 MB; resident set of the page's renderer, of it %.0f MB private; JS heap %.0f MB)\n", rss, private, heap)
+	// Again after a collection: what the page holds, not garbage the
+	// collector has not yet come to.
+	if _, err := chromedp.Call(ctx, heapprofiler.CollectGarbage, cdp.Empty{}); err != nil {
+		return err
+	}
+	time.Sleep(time.Second)
+	rss, private = rendererMemory(chromedp.FromContext(ctx).Browser.Process().Pid)
+	fmt.Printf("renderer memory after GC %8.0f MB   (private %.0f MB)\n", rss, private)
 	for _, e := range errs {
 		fmt.Println("page error:", e)
 	}
