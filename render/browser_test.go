@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"net/http"
 	"net/http/httptest"
+	"net/url"
 	"os"
 	"path/filepath"
 	"slices"
@@ -337,9 +338,30 @@ func TestBrowserIndex(t *testing.T) {
 		t.Fatal(err)
 	}
 	ctx, pl := openPage(t, bctx, path)
-	checkPage(t, ctx, pl, []string{"chart-hist", "chart-p0-l0", "chart-p0-l1", "chart-p0-band"})
+	checkPage(t, ctx, pl, []string{"chart-p0-months", "chart-hist", "chart-p0-l0", "chart-p0-l1", "chart-p0-band"})
 
-	// The filter box keeps the rows that contain the text.
+	// The rows are drawn from the page's unit data: one page of them.
+	const rowsJS = `(function () {
+  var rs = Array.from(document.querySelectorAll('#unit-table tbody tr'));
+  return rs.length + '/' + document.getElementById('unit-shown').textContent;
+})()`
+	if got := eval[string](t, ctx, rowsJS); got != "25/25" {
+		t.Errorf("unit table on opening: rows/counter %s, want 25/25", got)
+	}
+	// Every row links to its unit's report and workbook, with the serial
+	// as one escaped path segment.
+	links := eval[[]string](t, ctx, `Array.from(document.querySelectorAll('#unit-table tbody a')).map(function (a) { return a.getAttribute('href'); })`)
+	for _, u := range fixtureFleet(t).Units {
+		seg := strings.ReplaceAll(url.PathEscape(u.Serial), "=", "%3D") // encodeURIComponent escapes '=' too
+		for _, href := range []string{"units/" + seg + "/report.html", "units/" + seg + "/" + seg + ".xlsx"} {
+			if !slices.Contains(links, href) {
+				t.Errorf("unit table lacks the link %s", href)
+			}
+		}
+	}
+
+	// The filter box: text matches serial, product, date; a verdict word
+	// matches that verdict exactly (pass is not conditional pass).
 	tests := []struct {
 		query string
 		rows  int
@@ -347,25 +369,93 @@ func TestBrowserIndex(t *testing.T) {
 		{"XB4", 1},
 		{"fail", 2}, // the two FAIL units (general knowledge of the fixture)
 		{"kp16", 24},
+		{"pass", 21},
+		{"conditional pass", 1},
+		{"conditional-pass kp16", 1},
+		{"pass fail", 23}, // either
+		{"retest", 2},
+		{"2026-11-20", 1},
 		{"", 25},
 	}
 	for _, tc := range tests {
 		got := eval[string](t, ctx, fmt.Sprintf(`(function () {
-  var i = document.querySelector('input.filter-box'); i.value = %q; i.dispatchEvent(new Event('input'));
-  var n = Array.from(document.querySelectorAll('#unit-table tbody tr')).filter(function (r) { return !r.hidden; }).length;
-  return n + '/' + document.getElementById('unit-shown').textContent;
-})()`, tc.query))
+  var i = document.querySelector('input.filter-box[data-table="unit-table"]'); i.value = %q; i.dispatchEvent(new Event('input'));
+  return %s;
+})()`, tc.query, rowsJS))
 		if want := fmt.Sprintf("%d/%d", tc.rows, tc.rows); got != want {
 			t.Errorf("filter %q: shown rows/counter %s, want %s", tc.query, got, want)
 		}
 	}
+	// A verdict count filters the table to that verdict.
+	for _, tc := range []struct {
+		verdict string
+		rows    int
+	}{{"fail", 2}, {"conditional-pass", 1}, {"pass", 21}, {"incomplete", 1}} {
+		got := eval[string](t, ctx, fmt.Sprintf(`(function () {
+  document.querySelector('button.count[data-verdict="%s"]').click();
+  return %s + ' ' + Array.from(document.querySelectorAll('#unit-table tbody tr td:nth-child(3)')).map(function (c) { return c.textContent; }).join('|');
+})()`, tc.verdict, rowsJS))
+		n, labels, _ := strings.Cut(got, " ")
+		if want := fmt.Sprintf("%d/%d", tc.rows, tc.rows); n != want {
+			t.Errorf("count %s: rows/counter %s, want %s", tc.verdict, n, want)
+		}
+		for _, l := range strings.Split(labels, "|") {
+			if l != verdictLabel(tc.verdict) {
+				t.Errorf("count %s: a row shows %q", tc.verdict, l)
+			}
+		}
+	}
+	eval[chromedp.Void](t, ctx, `(function () { var i = document.querySelector('input.filter-box[data-table="unit-table"]'); i.value = ''; i.dispatchEvent(new Event('input')); })()`)
+
 	// Sorting by worst margin puts the most negative first, then reverses.
-	const firstJS = `(function () { document.querySelectorAll('#unit-table th')[3].click(); return document.querySelector('#unit-table tbody tr td').textContent; })()`
-	if got := eval[string](t, ctx, firstJS); got != "KP16-00010" {
+	const firstJS = `(function (key) { document.querySelector('#unit-table th[data-key="' + key + '"]').click(); return document.querySelector('#unit-table tbody tr td').textContent; })`
+	if got := eval[string](t, ctx, firstJS+`('margin')`); got != "KP16-00010" {
 		t.Errorf("ascending worst margin: first unit %q, want KP16-00010 (-0.80 dB)", got)
 	}
-	if got := eval[string](t, ctx, firstJS); got != "KP16-00007" {
+	if got := eval[string](t, ctx, firstJS+`('margin')`); got != "KP16-00007" {
 		t.Errorf("descending worst margin: first unit %q, want KP16-00007 (+1.25 dB)", got)
+	}
+	// By verdict: in order of severity, then by serial.
+	order := eval[string](t, ctx, `(function () {
+  document.querySelector('#unit-table th[data-key="verdict"]').click();
+  return Array.from(document.querySelectorAll('#unit-table tbody tr')).map(function (r) { return r.cells[0].textContent + ' ' + r.cells[2].textContent; }).slice(0, 5).join('|');
+})()`)
+	if want := "KP16-00010 FAIL|XB4-00001 FAIL|KP16-00021 INCOMPLETE|KP16-00015 CONDITIONAL PASS|KP16-00001 PASS"; order != want {
+		t.Errorf("sorted by verdict: %s, want %s", order, want)
+	}
+	if got := eval[string](t, ctx, firstJS+`('verdict')`); got != "KP16-00001" {
+		t.Errorf("descending verdict: first unit %q, want the first PASS", got)
+	}
+	// A retested unit shows it.
+	if got := eval[string](t, ctx, `(function () { var i = document.querySelector('input.filter-box[data-table="unit-table"]'); i.value = 'KP16-00015'; i.dispatchEvent(new Event('input'));
+  return document.querySelector('#unit-table tbody tr td:nth-child(8)').innerHTML; })()`); got != `3 <span class="tag retest" title="retested: first run FAIL">retest</span>` {
+		t.Errorf("runs cell of KP16-00015: %s", got)
+	}
+
+	// The needs-attention list comes first, worst first, with its reasons.
+	att := eval[[]string](t, ctx, `Array.from(document.querySelectorAll('#attention-table tbody tr')).map(function (r) { return r.cells[0].textContent + ' ' + r.cells[2].textContent + ' ' + r.cells[3].textContent; })`)
+	if len(att) < 5 || !strings.HasPrefix(att[0], "KP16-00010 FAIL ") || !strings.HasPrefix(att[1], "XB4-00001 FAIL") {
+		t.Errorf("needs-attention rows %q", att)
+	}
+	if pos := eval[[]int](t, ctx, `[document.getElementById('attention').offsetTop, document.getElementById('units').offsetTop]`); pos[0] >= pos[1] {
+		t.Errorf("the needs-attention list (at %d px) is not before the unit table (%d px)", pos[0], pos[1])
+	}
+	// The control chart marks every point beyond its limits.
+	want := len(fixtureFleet(t).Products[0].Limits[0].Chart.Beyond)
+	if got := eval[int](t, ctx, `(function () {
+  var o = echarts.getInstanceByDom(document.getElementById('chart-p0-l0')).getOption();
+  return o.series.filter(function (s) { return s.id === 'beyond'; })[0].data.length;
+})()`); got != want || want == 0 {
+		t.Errorf("control chart marks %d points beyond the limits, want %d", got, want)
+	}
+	// Its tooltip names the unit and the date.
+	tip := eval[string](t, ctx, `(function () {
+  var c = echarts.getInstanceByDom(document.getElementById('chart-p0-l0'));
+  var o = c.getOption(), k = o.series.findIndex(function (s) { return s.id === 'beyond'; });
+  return o.tooltip[0].formatter({value: o.series[k].data[0], seriesName: o.series[k].name});
+})()`)
+	if !strings.Contains(tip, "KP16-00010") || !strings.Contains(tip, "2026-11-03") {
+		t.Errorf("control chart tooltip %q lacks the unit and its date", tip)
 	}
 	shot(t, ctx, "index.png")
 	_, errs := pl.snapshot()

@@ -393,6 +393,7 @@ func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary
 		sd := math.Sqrt(v / float64(len(ms)-1))
 		mr /= float64(len(ms) - 1)
 		ls.Yield = float64(ls.Passed) / float64(len(ms))
+		ls.Indicative = len(ms) < reduce.MinCapabilityUnits
 		ls.MeanMarginDB, ls.StdMarginDB, ls.Cpk = mean, sd, mean/(3*sd)
 		ls.Chart = reduce.ControlChart{Serials: serials, Started: started, ValuesDB: ms, CentreDB: mean,
 			UpperDB: mean + 2.66*mr, LowerDB: mean - 2.66*mr, MeanMovingRange: mr}
@@ -420,10 +421,17 @@ func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary
 	}
 	fl.Products = []reduce.ProductFleet{
 		{Product: "KU-PANEL-16", Units: n, VerdictCounts: verdicts, Limits: []reduce.LimitStats{gt, stats("Gain at boresight", gainMs)},
-			Band: band, Watch: []reduce.WatchEntry{{Serial: serials[3], FrequenciesHz: []float64{12.1e9, 12.2e9, 12.4e9}, RangesHz: [][2]float64{{12.1e9, 12.2e9}, {12.4e9, 12.4e9}}}}},
+			Band: band, Watch: []reduce.WatchEntry{{Serial: serials[3], FrequenciesHz: []float64{12.1e9, 12.2e9, 12.4e9}, RangesHz: [][2]float64{{12.1e9, 12.2e9}, {12.4e9, 12.4e9}},
+				SpanHz: [2]float64{12.1e9, 12.4e9}, Points: 3, WorstExcursionDB: -0.42, WorstAtHz: 12.2e9}},
+			// Invented demo values: two months of the 24 units.
+			FirstPassYield: 21.0 / 23, FinalYield: 22.0 / 23,
+			Months: []reduce.MonthYield{
+				{Month: "2026-10", Units: 12, VerdictCounts: map[string]int{reduce.VerdictPass: 11, reduce.VerdictFail: 1}, FirstPassYield: 11.0 / 12, FinalYield: 11.0 / 12, Retested: 1},
+				{Month: "2026-11", Units: 12, VerdictCounts: map[string]int{reduce.VerdictPass: 10, reduce.VerdictConditionalPass: 1, reduce.VerdictIncomplete: 1}, FirstPassYield: 10.0 / 11, FinalYield: 1, Retested: 1},
+			}},
 		{Product: "X-BAND-4", Units: 1, VerdictCounts: map[string]int{reduce.VerdictFail: 1},
 			Limits: []reduce.LimitStats{{Name: "G/T at boresight", Units: 1, Passed: 0, Yield: 0, MeanMarginDB: -0.31,
-				Chart: reduce.ControlChart{Serials: []string{"XB4-00001"}, Started: []string{"2026-11-20T10:00:00Z"}, ValuesDB: []float64{-0.31}, CentreDB: -0.31, UpperDB: -0.31, LowerDB: -0.31}}},
+				Indicative: true, Chart: reduce.ControlChart{Serials: []string{"XB4-00001"}, Started: []string{"2026-11-20T10:00:00Z"}, ValuesDB: []float64{-0.31}, CentreDB: -0.31, UpperDB: -0.31, LowerDB: -0.31, TooFew: true}}},
 			Watch: nil},
 	}
 	return fl, sums

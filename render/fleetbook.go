@@ -10,10 +10,13 @@ import (
 
 // FleetWorkbook returns fleet.xlsx: Units (verdict and worst margin per
 // limit of every unit, then its runs, first verdict and its report's issue
-// state, revision and number), Products (verdict counts), Limits (yield, mean,
-// standard deviation, Cpk), Control chart (the individuals chart data, with
-// a chart per product and limit), Outliers, Watch and Band (the golden band
-// per frequency, with a chart per product).
+// state, revision and number), Products (verdict counts), Monthly yield
+// (first-pass and final yield per product and month, with a chart per
+// product), Limits (yield, mean, standard deviation, Cpk), Control chart
+// (the individuals chart data, with a chart per product and limit against
+// the run date), Outliers, Watch, Band (the golden band per frequency, with
+// a chart per product) and one sheet per station and reference antenna
+// (the range check run by run, with its chart). Times are date cells.
 func FleetWorkbook(f *reduce.Fleet) ([]byte, error) {
 	return fleetWorkbook(f, fleetIssueOf)
 }
@@ -25,6 +28,7 @@ func fleetWorkbook(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) 
 	b := newXLBook("G/T fleet workbook", "Fleet statistics over the acceptance runs", workbookEpoch)
 	units := b.addSheet("Units")
 	products := b.addSheet("Products")
+	months := b.addSheet("Monthly yield")
 	limits := b.addSheet("Limits")
 	chart := b.addSheet("Control chart")
 	outliers := b.addSheet("Outliers")
@@ -33,11 +37,16 @@ func fleetWorkbook(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) 
 
 	writeFleetUnits(b, units, f, issueOf)
 	writeFleetProducts(b, products, f)
+	writeMonthlyYield(b, months, f)
 	writeFleetLimits(b, limits, f)
 	writeControlChart(b, chart, f)
 	writeOutliers(b, outliers, f)
 	writeWatch(b, watch, f)
 	writeBand(b, band, f)
+	for _, st := range f.Stations {
+		writeStation(b, b.addSheet("Range "+st.Station+" "+st.Reference), st)
+	}
+	b.setDimensions()
 	return b.bytes()
 }
 
@@ -88,7 +97,7 @@ var fleetIssueColumns = []xlColumn{{"Runs", nfInt, 7}, {"First verdict", "", 16}
 
 func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) {
 	names := fleetLimitNames(f)
-	cols := []xlColumn{{"Serial", "", 18}, {"Product", "", 16}, {"Started", "", 21}, {"Verdict", "", 16}}
+	cols := []xlColumn{{"Serial", "", 18}, {"Product", "", 16}, {"Started (UTC)", nfDate, 17}, {"Verdict", "", 16}}
 	for _, n := range names {
 		cols = append(cols, xlColumn{n + " worst margin (dB)", nfDB, 16})
 	}
@@ -99,7 +108,7 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*red
 	values := make([]any, len(cols))
 	for i := range f.Units {
 		u := &f.Units[i]
-		values = append(values[:0], u.Serial, u.Product, u.Started, u.Verdict)
+		values = append(values[:0], u.Serial, u.Product, dateCell(u.Started), u.Verdict)
 		for _, n := range names {
 			values = append(values, worstMargin(u, n))
 		}
@@ -178,19 +187,23 @@ func writeFleetLimits(b *xlBook, sheet string, f *reduce.Fleet) {
 }
 
 // writeControlChart writes the individuals chart data of every product and
-// limit as one table, and a line chart of each block with two points or
-// more beside it.
+// limit, one block after the other: a title row, a header, then per unit in
+// test order its serial, run date, worst margin and whether it is beyond
+// the limits. Beside each block, its centre line and limits at the first
+// and last date, and an XY chart of the block against the run date. Four
+// cells a unit rather than ten (product, limit and the three limit values
+// on every row took openpyxl most of its 8 s at 10,000 units).
 func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
-	cols := []xlColumn{
-		{"Product", "", 16}, {"Limit", "", 22}, {"Order", nfInt, 6}, {"Serial", "", 18}, {"Started", "", 21},
-		{"Worst margin (dB)", nfDB, 12}, {"Centre (dB)", nfDB, 10}, {"Upper (dB)", nfDB, 10}, {"Lower (dB)", nfDB, 10},
-		{"Beyond limits", "", 9},
-	}
+	cols := []xlColumn{{"Serial", "", 18}, {"Started (UTC)", nfDate, 17}, {"Worst margin (dB)", nfDB, 12}, {"Beyond limits", "", 9}}
+	side := []xlColumn{{"", "", 3}, {"At (UTC)", nfDate, 17}, {"Centre (dB)", nfDB, 11}, {"Upper (dB)", nfDB, 11}, {"Lower (dB)", nfDB, 11}, {"Limit (dB)", nfDB, 9}}
 	b.table(sheet, 1, cols, true)
-	styles := b.columnStyles(cols)
-	t := &bulkSheet{first: 2, width: len(cols)}
+	for i, h := range side {
+		name := b.colName(len(cols) + 1 + i)
+		b.check(b.f.SetColWidth(sheet, name, name, h.width))
+	}
+	styles := b.columnStyles(append(append([]xlColumn(nil), cols...), side...))
+	t := &bulkSheet{first: 2, width: len(cols) + len(side)}
 	defer b.addBulk(sheet, t)
-	r := 2
 	charts := 0
 	for _, p := range f.Products {
 		for _, l := range p.Limits {
@@ -199,32 +212,142 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 			for _, i := range c.Beyond {
 				beyond[i] = true
 			}
-			first := r
+			title := t.first + len(t.rows)
+			t.rows = append(t.rows, bulkRow(nil, p.Product+": "+l.Name), bulkRow(nil, "Serial", "Started (UTC)", "Worst margin (dB)", "Beyond limits"))
+			first := title + 2
+			lo, hi := "", ""
 			for i, v := range c.ValuesDB {
-				var serial, started, flag any
+				var serial, flag any
+				started := at(c.Started, i)
 				if i < len(c.Serials) {
 					serial = c.Serials[i]
-				}
-				if i < len(c.Started) {
-					started = c.Started[i]
 				}
 				if beyond[i] {
 					flag = "yes"
 				}
-				t.rows = append(t.rows, bulkRow(styles, p.Product, l.Name, i+1, serial, started, v, c.CentreDB, c.UpperDB, c.LowerDB, flag))
-				r++
-			}
-			if r-first >= 2 {
-				var series []chartSeries
-				for col := 6; col <= 9; col++ {
-					series = append(series, chartSeries{name: b.ref(sheet, col, 1, 1), values: b.ref(sheet, col, first, r-1), dash: col > 6})
+				if d := dateCell(started); d.ok {
+					if lo == "" || started < lo {
+						lo = started
+					}
+					if hi == "" || started > hi {
+						hi = started
+					}
 				}
-				b.lineChart(sheet, b.cellName(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin in test order", p.Product, l.Name),
-					"Test order", "Worst margin (dB)", b.ref(sheet, 3, first, r-1), chartX{points: r - first, format: "0"}, series)
-				charts++
+				t.rows = append(t.rows, bulkRow(styles, serial, dateCell(started), v, flag))
 			}
+			last := t.first + len(t.rows) - 1
+			if last-first < 1 || lo == "" {
+				continue
+			}
+			// The lines of the block beside it, two points each (the first
+			// and last run date), in the block's header row and first two rows.
+			hdr := &t.rows[first-1-t.first]
+			*hdr = append(*hdr, bulkRow(nil, nil, "At (UTC)", "Centre (dB)", "Upper (dB)", "Lower (dB)", "Limit (dB)")...)
+			for k, at := range []string{lo, hi} {
+				row := &t.rows[first+k-t.first]
+				*row = append(*row, bulkRow(styles[len(cols):], nil, dateCell(at), c.CentreDB, c.UpperDB, c.LowerDB, 0.0)...)
+			}
+			x := b.ref(sheet, 6, first, first+1)
+			series := []xySeries{{name: b.ref(sheet, 3, first-1, first-1), x: b.ref(sheet, 2, first, last), y: b.ref(sheet, 3, first, last), markers: true}}
+			for col := 7; col <= 10; col++ {
+				series = append(series, xySeries{name: b.ref(sheet, col, first-1, first-1), x: x, y: b.ref(sheet, col, first, first+1), dash: col == 8 || col == 9})
+			}
+			b.dateChart(sheet, b.cellName(12, 2+charts*22), fmt.Sprintf("%s: %s, worst margin against the run date", p.Product, l.Name),
+				"Run date", "Worst margin (dB)", series)
+			charts++
 		}
 	}
+}
+
+// writeMonthlyYield writes each product's months (fleet.json's months)
+// and a chart of first-pass and final yield per month.
+func writeMonthlyYield(b *xlBook, sheet string, f *reduce.Fleet) {
+	cols := []xlColumn{{"Product", "", 16}, {"Month", nfMonth, 9}, {"Units", nfInt, 7}, {"Pass", nfInt, 7}, {"Conditional pass", nfInt, 11},
+		{"Conditional fail", nfInt, 11}, {"Fail", nfInt, 7}, {"Incomplete", nfInt, 10}, {"First-pass yield", nfPct, 10}, {"Final yield", nfPct, 10}, {"Retested", nfInt, 9}}
+	b.table(sheet, 1, cols, true)
+	r := 2
+	charts := 0
+	for _, p := range f.Products {
+		first := r
+		for _, m := range p.Months {
+			b.set(sheet, 1, r, p.Product)
+			b.setDate(sheet, 2, r, m.Month, nfMonth)
+			for j, v := range []any{m.Units, m.VerdictCounts[reduce.VerdictPass], m.VerdictCounts[reduce.VerdictConditionalPass],
+				m.VerdictCounts[reduce.VerdictConditionalFail], m.VerdictCounts[reduce.VerdictFail], m.VerdictCounts[reduce.VerdictIncomplete],
+				m.FirstPassYield, m.FinalYield, m.Retested} {
+				b.set(sheet, 3+j, r, v)
+			}
+			r++
+		}
+		if r == first {
+			continue
+		}
+		series := []chartSeries{{name: b.ref(sheet, 9, 1, 1), values: b.ref(sheet, 9, first, r-1)}, {name: b.ref(sheet, 10, 1, 1), values: b.ref(sheet, 10, first, r-1)}}
+		b.lineChart(sheet, b.cellName(13, 2+charts*22), p.Product+": first-pass and final yield by month", "Month", "Yield",
+			b.ref(sheet, 2, first, r-1), chartX{points: r - first, format: nfMonth}, series)
+		charts++
+	}
+}
+
+// writeStation writes one station and reference antenna's range check
+// run by run (fleet.json's stations), its control limits and a chart of
+// the range loss against the run date.
+func writeStation(b *xlBook, sheet string, st reduce.RangeChart) {
+	b.set(sheet, 1, 1, fmt.Sprintf("Range check of %s with %s at %s GHz", st.Station, st.Reference, fmtGHz(st.FrequencyHz)))
+	b.check(b.f.SetCellStyle(sheet, "A1", "A1", b.title))
+	b.setRow(sheet, 2, "Centre (dB)", st.CentreDB, "Lower control limit (dB)", st.LCLDB, "Upper control limit (dB)", st.UCLDB, "Baseline runs", st.Baseline, "Drift tolerance (dB)", st.DriftToleranceDB)
+	cols := []xlColumn{{"Serial", "", 18}, {"Run", "", 30}, {"Started (UTC)", nfDate, 17}, {"Range loss (dB)", nfDB, 12}, {"Pre/post drift (dB)", nfDB, 12}, {"Out of control", "", 10}}
+	b.table(sheet, 4, cols, true)
+	styles := b.columnStyles(cols)
+	out := map[int]bool{}
+	for _, i := range st.OutOfControl {
+		out[i] = true
+	}
+	t := &bulkSheet{first: 5, width: len(cols)}
+	lo, hi := "", ""
+	for i, p := range st.Points {
+		var drift any
+		if p.DriftDB != nil {
+			drift = *p.DriftDB
+		}
+		var flag any
+		if out[i] {
+			flag = "yes"
+		}
+		if dateCell(p.Started).ok {
+			if lo == "" || p.Started < lo {
+				lo = p.Started
+			}
+			if hi == "" || p.Started > hi {
+				hi = p.Started
+			}
+		}
+		t.rows = append(t.rows, bulkRow(styles, p.Serial, p.Run, dateCell(p.Started), p.RangeLossDB, drift, flag))
+	}
+	b.addBulk(sheet, t)
+	if len(st.Points) < 2 || lo == "" || st.Baseline < 2 {
+		return
+	}
+	// The lines beside the table, two points each (the first and last
+	// run date), in its first two rows.
+	b.setRow(sheet, 4, nil, nil, nil, nil, nil, nil, nil, "At (UTC)", "Centre (dB)", "Upper control limit (dB)", "Lower control limit (dB)")
+	b.check(b.f.SetCellStyle(sheet, "H4", "K4", b.header))
+	sideStyles := []int{b.numStyle(nfDate), b.numStyle(nfDB), b.numStyle(nfDB), b.numStyle(nfDB)}
+	for k, at := range []string{lo, hi} {
+		row := &t.rows[k]
+		for len(*row) < len(cols)+1 {
+			*row = append(*row, bulkCell{})
+		}
+		*row = append(*row, bulkRow(sideStyles, dateCell(at), st.CentreDB, st.UCLDB, st.LCLDB)...)
+	}
+	t.width = 11
+	last := 4 + len(st.Points)
+	x := b.ref(sheet, 8, 5, 6)
+	series := []xySeries{{name: b.ref(sheet, 4, 4, 4), x: b.ref(sheet, 3, 5, last), y: b.ref(sheet, 4, 5, last), markers: true}}
+	for col := 9; col <= 11; col++ {
+		series = append(series, xySeries{name: b.ref(sheet, col, 4, 4), x: x, y: b.ref(sheet, col, 5, 6), dash: col > 9})
+	}
+	b.dateChart(sheet, b.cellName(13, 4), fmt.Sprintf("Range loss of %s with %s against the run date", st.Station, st.Reference), "Run date", "Range loss (dB)", series)
 }
 
 func writeOutliers(b *xlBook, sheet string, f *reduce.Fleet) {

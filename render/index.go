@@ -1,12 +1,15 @@
 package render
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
+	"html/template"
 	"math"
 	"net/url"
 	"sort"
 	"strings"
+	"time"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -14,10 +17,17 @@ import (
 	"gtpack.example/gtpack/reduce"
 )
 
-// Index renders the fleet overview (index.html): every unit with its
-// verdict, worst margin, date and links to units/<serial>/report.html and
-// units/<serial>/<serial>.xlsx; verdict counts, yield per limit, a
-// histogram of worst margins and the statistics of each product.
+// Index renders the fleet overview (index.html). It opens on what to act
+// on: the verdict counts (each one filters the unit table), the units that
+// need attention first (fail, conditional, incomplete, stale, on the watch
+// list, beyond a control limit), first-pass and final yield by month; then
+// the table of every unit, and per product its limits, control charts
+// against the run date, golden band and watch list.
+//
+// The two unit tables are not written as HTML rows: at 10,000 units that
+// was 9 MB and 200,000 elements. The units go into one compact JSON block
+// (indexData), and page.js shows one page of rows at a time, filtering
+// and sorting the block itself.
 func Index(f *reduce.Fleet) ([]byte, error) {
 	if f == nil {
 		return nil, errors.New("render: index of a nil fleet")
@@ -29,25 +39,36 @@ func Index(f *reduce.Fleet) ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	return execute("index.tmpl", v)
+	return executeSized("index.tmpl", v, len(assets.lib)+len(v.Data)+256<<10)
 }
 
 type indexView struct {
 	pageAssets
 	Version   string
-	Units     []unitRow
-	Counts    []countRow
 	Total     int
+	Counts    []countRow
+	Stale     int
 	Histogram *chartSpec
 	Products  []productView
 	Cautions  string
 	Notices   []string
 	// ShowIssue is set when the fleet knows any unit's issue state: the
-	// table then has a Report and a Runs column. Issues counts the units
-	// per issue state; Retested those with more than one run.
+	// table then has a Report state and a Runs column. Issues counts the
+	// units per issue state; Retested those with more than one run.
 	ShowIssue bool
 	Issues    []issueCount
 	Retested  int
+	// Attention is the needs-attention list, most severe first; Reasons
+	// counts its units per reason.
+	Attention []attentionRow
+	Reasons   []reasonCount
+	// Data is the JSON block the unit tables are drawn from (indexData).
+	Data template.JS
+	// Months is the yield by month of every product.
+	Months []monthsView
+	// MinCapability and MinChartPoints are the small-sample thresholds
+	// (method.md section 10).
+	MinCapability, MinChartPoints int
 }
 
 type issueCount struct {
@@ -55,65 +76,225 @@ type issueCount struct {
 	N     int
 }
 
-type unitRow struct {
-	reduce.FleetUnit
-	WorstMarginDB float64
-	WorstLimit    string
-	HasMargin     bool
-	Date          string
-	ReportHref    string
-	BookHref      string
-	Issue         fleetIssue
+type reasonCount struct {
+	Reason string
+	N      int
+}
+
+// Reasons for attention, in the order the summary lists them.
+const (
+	reasonFail      = "fail"
+	reasonCondFail  = "conditional fail"
+	reasonIncomp    = "incomplete"
+	reasonStale     = "stale"
+	reasonCondPass  = "conditional pass"
+	reasonWatch     = "watch list"
+	reasonBeyond    = "beyond control limits"
+	reasonNoReport  = "no report"
+	reasonOtherVerd = "unknown verdict"
+)
+
+var reasonOrder = []string{reasonFail, reasonCondFail, reasonIncomp, reasonStale, reasonNoReport, reasonOtherVerd, reasonCondPass, reasonWatch, reasonBeyond}
+
+// attentionRow is a unit that needs attention and why.
+type attentionRow struct {
+	Unit    int // index into indexView's units (serial order)
+	Serial  string
+	Verdict string
+	Rank    int
+	Reasons []string
+	// Why is the reasons as a line: the watch list's span and worst
+	// excursion, the limits whose control chart it is beyond.
+	Why string
+}
+
+// severityOrder is the order of verdicts by severity, worst first: the
+// unit table's verdict sort and the needs-attention list. An incomplete
+// unit comes before the conditional pass: nothing about it is known to
+// pass.
+var severityOrder = []string{reduce.VerdictFail, reduce.VerdictConditionalFail, reduce.VerdictIncomplete, reduce.VerdictConditionalPass, reduce.VerdictPass}
+
+// severityRank is v's place in severityOrder; any other verdict ranks
+// with incomplete.
+func severityRank(v string) int {
+	for i, s := range severityOrder {
+		if s == v {
+			return i
+		}
+	}
+	return 2
 }
 
 type productView struct {
 	reduce.ProductFleet
-	Counts []countRow
-	Limits []limitStatsRow
-	Charts []chartSpec
+	Index      int
+	Counts     []countRow
+	Limits     []limitStatsRow
+	Charts     []chartSpec
+	Watch      []watchRow
+	MinUnits   int
+	MinPoints  int
+	HasMonths  bool
+	YieldChart *chartSpec
 }
 
 type limitStatsRow struct {
 	reduce.LimitStats
 	HasStats bool
+	Beyond   []beyondRow
+	Basis    string
 }
 
+// beyondRow is a point of a control chart beyond its limits.
+type beyondRow struct {
+	Serial     string
+	ReportHref string
+	Date       string
+	MarginDB   float64
+	Side       string // "above" or "below"
+}
+
+// watchRow is a watch-list entry as the overview shows it: the span, the
+// number of grid points outside the band and the worst excursion.
+type watchRow struct {
+	reduce.WatchEntry
+	ReportHref string
+}
+
+type monthsView struct {
+	Product string
+	Index   int
+	Months  []reduce.MonthYield
+	Chart   *chartSpec
+}
+
+// indexData is the JSON block of the unit tables. Units are rows of
+// fixed fields (see unitRecord), in serial order; verdicts, products and
+// limit names are indexes into their lists, so that a row of 10,000 is
+// some 100 bytes. Attention lists unit indexes with the reason line, most
+// severe first.
+type indexData struct {
+	Verdicts  []string `json:"verdicts"` // severityOrder, then any other
+	Products  []string `json:"products"`
+	Limits    []string `json:"limits"`
+	Issue     bool     `json:"issue"`
+	Units     [][]any  `json:"units"`
+	Attention [][2]any `json:"attention"`
+	Fields    []string `json:"fields"`
+}
+
+// unitFields name the fields of a unit row of indexData, in order.
+var unitFields = []string{"serial", "product", "verdict", "worst_margin_db", "worst_limit", "started", "runs", "first_verdict", "issue_state", "report_number", "no_report", "stale"}
+
 func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*indexView, error) {
-	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions, Notices: f.Notices}
+	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions, Notices: f.Notices,
+		MinCapability: reduce.MinCapabilityUnits, MinChartPoints: reduce.MinChartPoints}
+	units := make([]*reduce.FleetUnit, len(f.Units))
+	for i := range f.Units {
+		units[i] = &f.Units[i]
+	}
+	// The units arrive sorted by serial; keep that order whatever the input.
+	sort.SliceStable(units, func(i, j int) bool { return units[i].Serial < units[j].Serial })
+	unitIndex := make(map[string]int, len(units))
+	for i, u := range units {
+		unitIndex[u.Serial] = i
+	}
+
+	d := indexData{Verdicts: append([]string(nil), severityOrder...), Products: []string{}, Limits: []string{}, Units: make([][]any, 0, len(units)), Attention: [][2]any{}, Fields: unitFields}
+	verdictIdx := map[string]int{}
+	for i, s := range severityOrder {
+		verdictIdx[s] = i
+	}
+	lookup := func(list *[]string, idx map[string]int, s string) int {
+		if i, ok := idx[s]; ok {
+			return i
+		}
+		idx[s] = len(*list)
+		*list = append(*list, s)
+		return idx[s]
+	}
+	productIdx, limitIdx := map[string]int{}, map[string]int{}
+
 	counts := map[string]int{}
 	issues := map[string]int{}
 	var margins []float64
-	for i, u := range f.Units {
-		r := unitRow{FleetUnit: u, WorstMarginDB: math.NaN(), Issue: issueOf(&f.Units[i])}
-		if r.Issue.known() {
+	reasons := make([][]string, len(units))
+	whys := make([][]string, len(units))
+	addReason := func(i int, r, why string) {
+		for _, x := range reasons[i] {
+			if x == r {
+				if why != "" {
+					whys[i] = append(whys[i], why)
+				}
+				return
+			}
+		}
+		reasons[i] = append(reasons[i], r)
+		if why != "" {
+			whys[i] = append(whys[i], why)
+		}
+	}
+	for i, u := range units {
+		fi := issueOf(u)
+		if fi.known() {
 			v.ShowIssue = true
-			issues[r.Issue.State]++
-			if r.Issue.Retested() {
+			issues[fi.State]++
+			if fi.Retested() {
 				v.Retested++
 			}
 		}
+		margin, limit, has := math.NaN(), "", false
 		// Each entry is a limit name's worst beam; the first entry wins a tie.
 		for _, l := range u.Limits {
-			if finite(l.WorstMarginDB) && (!r.HasMargin || l.WorstMarginDB < r.WorstMarginDB) {
-				r.WorstMarginDB, r.WorstLimit, r.HasMargin = l.WorstMarginDB, l.Name+" ("+l.Beam+")", true
+			if finite(l.WorstMarginDB) && (!has || l.WorstMarginDB < margin) {
+				margin, limit, has = l.WorstMarginDB, l.Name+" ("+l.Beam+")", true
 			}
 		}
-		if r.HasMargin {
-			margins = append(margins, r.WorstMarginDB)
+		var marginVal any
+		limitVal := -1
+		if has {
+			margins = append(margins, margin)
+			marginVal = compact{margin, 3}
+			limitVal = lookup(&d.Limits, limitIdx, limit)
 		}
-		r.Date = u.Started
-		if i := strings.IndexByte(r.Date, 'T'); i > 0 {
-			r.Date = r.Date[:i]
-		}
-		seg := url.PathEscape(u.Serial)
-		r.ReportHref = "units/" + seg + "/report.html"
-		r.BookHref = "units/" + seg + "/" + seg + ".xlsx"
 		counts[u.Verdict]++
-		v.Units = append(v.Units, r)
+		first := -1
+		if fi.FirstVerdict != "" {
+			first = lookup(&d.Verdicts, verdictIdx, fi.FirstVerdict)
+		}
+		report := fi.ReportNumber
+		if report == "" && fi.Revision > 0 {
+			report = fmt.Sprintf("R%d", fi.Revision)
+		}
+		noReport := 0
+		if u.NoReport {
+			noReport = 1
+		}
+		d.Units = append(d.Units, []any{u.Serial, lookup(&d.Products, productIdx, u.Product), lookup(&d.Verdicts, verdictIdx, u.Verdict),
+			marginVal, limitVal, u.Started, fi.Runs, first, fi.State, report, noReport, u.Stale})
+		switch u.Verdict {
+		case reduce.VerdictFail:
+			addReason(i, reasonFail, "")
+		case reduce.VerdictConditionalFail:
+			addReason(i, reasonCondFail, "")
+		case reduce.VerdictIncomplete:
+			addReason(i, reasonIncomp, "")
+		case reduce.VerdictConditionalPass:
+			addReason(i, reasonCondPass, "")
+		case reduce.VerdictPass:
+		default:
+			addReason(i, reasonOtherVerd, "verdict "+u.Verdict)
+		}
+		if u.Stale != "" {
+			v.Stale++
+			addReason(i, reasonStale, "stale: "+u.Stale)
+		}
+		if u.NoReport {
+			addReason(i, reasonNoReport, "no report in the site")
+		}
 	}
-	// The units arrive sorted by serial; keep that order whatever the input.
-	sort.SliceStable(v.Units, func(i, j int) bool { return v.Units[i].Serial < v.Units[j].Serial })
-	v.Counts = sortedCounts(counts)
+	d.Issue = v.ShowIssue
+	v.Counts = severityCounts(counts)
 	for _, st := range []string{stateIssued, stateDraft, stateVoid} {
 		if n := issues[st]; n > 0 {
 			v.Issues = append(v.Issues, issueCount{st, n})
@@ -127,11 +308,26 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 		v.Histogram = &h
 	}
 	for pi, p := range f.Products {
-		pv := productView{ProductFleet: p, Counts: sortedCounts(p.VerdictCounts)}
+		pv := productView{ProductFleet: p, Index: pi, Counts: severityCounts(p.VerdictCounts), MinUnits: reduce.MinCapabilityUnits, MinPoints: reduce.MinChartPoints, HasMonths: len(p.Months) > 0}
 		for li, l := range p.Limits {
-			pv.Limits = append(pv.Limits, limitStatsRow{LimitStats: l, HasStats: l.Units >= 2})
+			row := limitStatsRow{LimitStats: l, HasStats: l.Units >= 2, Basis: controlBasis(l)}
+			for _, b := range l.Chart.Beyond {
+				if b < 0 || b >= len(l.Chart.ValuesDB) {
+					continue
+				}
+				serial := at(l.Chart.Serials, b)
+				br := beyondRow{Serial: serial, ReportHref: reportHref(serial), Date: dateOf(at(l.Chart.Started, b)), MarginDB: l.Chart.ValuesDB[b], Side: "below"}
+				if br.MarginDB > l.Chart.UpperDB {
+					br.Side = "above"
+				}
+				row.Beyond = append(row.Beyond, br)
+				if i, ok := unitIndex[serial]; ok {
+					addReason(i, reasonBeyond, fmt.Sprintf("%s: %s dB, %s the control limits", l.Name, fmtSigned(br.MarginDB), br.Side))
+				}
+			}
+			pv.Limits = append(pv.Limits, row)
 			if len(l.Chart.ValuesDB) >= 2 {
-				c, err := controlChart(fmt.Sprintf("chart-p%d-l%d", pi, li), l)
+				c, err := controlChart(fmt.Sprintf("chart-p%d-l%d", pi, li), l, unitIndex)
 				if err != nil {
 					return nil, err
 				}
@@ -145,9 +341,128 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 			}
 			pv.Charts = append(pv.Charts, c)
 		}
+		for _, w := range p.Watch {
+			pv.Watch = append(pv.Watch, watchRow{WatchEntry: w, ReportHref: reportHref(w.Serial)})
+			if i, ok := unitIndex[w.Serial]; ok {
+				addReason(i, reasonWatch, "watch list: "+watchLine(w))
+			}
+		}
+		// The largest excursions first.
+		sort.SliceStable(pv.Watch, func(i, j int) bool {
+			return math.Abs(pv.Watch[i].WorstExcursionDB) > math.Abs(pv.Watch[j].WorstExcursionDB)
+		})
+		if len(p.Months) > 0 {
+			mv := monthsView{Product: p.Product, Index: pi, Months: p.Months}
+			c, err := yieldChart(fmt.Sprintf("chart-p%d-months", pi), p)
+			if err != nil {
+				return nil, err
+			}
+			mv.Chart = &c
+			pv.YieldChart = &c
+			v.Months = append(v.Months, mv)
+		}
 		v.Products = append(v.Products, pv)
 	}
+
+	// The needs-attention list: most severe verdict first, then the
+	// number of reasons, then serial.
+	reasonN := map[string]int{}
+	for i, rs := range reasons {
+		if len(rs) == 0 {
+			continue
+		}
+		for _, r := range rs {
+			reasonN[r]++
+		}
+		u := units[i]
+		v.Attention = append(v.Attention, attentionRow{Unit: i, Serial: u.Serial, Verdict: u.Verdict, Rank: severityRank(u.Verdict),
+			Reasons: rs, Why: strings.Join(whys[i], "; ")})
+	}
+	sort.SliceStable(v.Attention, func(i, j int) bool {
+		a, b := &v.Attention[i], &v.Attention[j]
+		if a.Rank != b.Rank {
+			return a.Rank < b.Rank
+		}
+		if len(a.Reasons) != len(b.Reasons) {
+			return len(a.Reasons) > len(b.Reasons)
+		}
+		return a.Unit < b.Unit
+	})
+	for _, r := range reasonOrder {
+		if n := reasonN[r]; n > 0 {
+			v.Reasons = append(v.Reasons, reasonCount{r, n})
+		}
+	}
+	for _, a := range v.Attention {
+		why := a.Why
+		if why == "" {
+			why = strings.Join(a.Reasons, ", ")
+		}
+		d.Attention = append(d.Attention, [2]any{a.Unit, why})
+	}
+	raw, err := json.Marshal(d)
+	if err != nil {
+		return nil, err
+	}
+	v.Data = template.JS(raw)
 	return v, nil
+}
+
+// severityCounts lists a verdict-count map in severityOrder, then any
+// other verdict sorted.
+func severityCounts(m map[string]int) []countRow {
+	var out []countRow
+	for _, v := range severityOrder {
+		if n, ok := m[v]; ok && n > 0 {
+			out = append(out, countRow{Verdict: v, N: n})
+		}
+	}
+	var rest []string
+	for k, n := range m {
+		if severityRank(k) == 2 && k != reduce.VerdictIncomplete && n > 0 {
+			rest = append(rest, k)
+		}
+	}
+	sort.Strings(rest)
+	for _, k := range rest {
+		out = append(out, countRow{Verdict: k, N: m[k]})
+	}
+	return out
+}
+
+func at(xs []string, i int) string {
+	if i >= 0 && i < len(xs) {
+		return xs[i]
+	}
+	return ""
+}
+
+func reportHref(serial string) string { return "units/" + url.PathEscape(serial) + "/report.html" }
+
+// watchLine is a watch-list entry in a few words: span, points, worst
+// excursion and where.
+func watchLine(w reduce.WatchEntry) string {
+	span := fmtGHz(w.SpanHz[0])
+	if w.SpanHz[1] != w.SpanHz[0] {
+		span += "–" + fmtGHz(w.SpanHz[1])
+	}
+	pts := "points"
+	if w.Points == 1 {
+		pts = "point"
+	}
+	return fmt.Sprintf("%s GHz, %d %s outside the band, worst %s dB at %s GHz", span, w.Points, pts, fmtSigned(w.WorstExcursionDB), fmtGHz(w.WorstAtHz))
+}
+
+// controlBasis says what a control chart's limits rest on and how far
+// they can be trusted (method.md section 10).
+func controlBasis(l reduce.LimitStats) string {
+	n := len(l.Chart.ValuesDB)
+	s := fmt.Sprintf("Centre %s dB = mean of the worst margins of all %d units in test order; limits %s and %s dB = centre ± 2.66 × mean moving range (%s dB; Shewhart individuals chart).",
+		fmtFixed(l.Chart.CentreDB, 3), n, fmtFixed(l.Chart.LowerDB, 3), fmtFixed(l.Chart.UpperDB, 3), fmtFixed(l.Chart.MeanMovingRange, 3))
+	if l.Chart.TooFew {
+		s += fmt.Sprintf(" Fewer than %d points: no point is called out of control.", reduce.MinChartPoints)
+	}
+	return s
 }
 
 // niceStep is the bin width of a histogram of values spanning span dB in
@@ -167,7 +482,9 @@ func niceStep(span float64, n int) float64 {
 }
 
 // histogramChart counts the worst margins in bins aligned on zero, so that
-// no bin straddles the limit; bins below zero are drawn in the fail colour.
+// no bin straddles the limit; bins below zero are drawn in the fail colour
+// and every bin carries its count, so that a bin of one unit beside bins
+// of hundreds still reads.
 func histogramChart(ms []float64) (chartSpec, error) {
 	lo, hi := ms[0], ms[0]
 	for _, m := range ms {
@@ -176,6 +493,9 @@ func histogramChart(ms []float64) (chartSpec, error) {
 	nb := int(math.Ceil(math.Sqrt(float64(len(ms)))))
 	if nb < 5 {
 		nb = 5
+	}
+	if nb > 40 {
+		nb = 40
 	}
 	step := niceStep(hi-lo, nb)
 	first := math.Floor(lo/step) * step
@@ -211,73 +531,141 @@ func histogramChart(ms []float64) (chartSpec, error) {
 		charts.WithGridOpts(opts.Grid{Left: "56", Right: "24", Top: "36", Bottom: "56"}),
 	)
 	c.SetXAxis(labels)
-	c.AddSeries("units", data, charts.WithBarChartOpts(opts.BarChart{BarCategoryGap: "8%"}))
+	c.AddSeries("units", data, charts.WithBarChartOpts(opts.BarChart{BarCategoryGap: "8%"}),
+		charts.WithLabelOpts(opts.Label{Show: opts.Bool(true), Position: "top", FontSize: 10}))
 	opt, err := finish(c, map[string]any{"unit": "units", "categories": labels}, nil)
 	return chartSpec{ID: "chart-hist", Title: "Worst margin of every unit", Height: 300, Option: opt,
-		Caption: fmt.Sprintf("Each unit counted once at its worst margin over all limits; bins of %s dB aligned on 0 dB; red bins are below the limit.", fmtFixed(step, 2))}, err
+		Caption: fmt.Sprintf("Each unit counted once at its worst margin over all limits; bins of %s dB aligned on 0 dB; red bins are below the limit; the number above a bar is its count.", fmtFixed(step, 2))}, err
 }
 
-// controlChart is the individuals chart of one limit's worst margins in
-// test order, with its centre line and control limits.
-func controlChart(id string, l reduce.LimitStats) (chartSpec, error) {
-	cc := l.Chart
-	n := len(cc.ValuesDB)
-	xs := make([]string, n)
-	for i := range xs {
-		xs[i] = fmt.Sprintf("%d", i+1)
+// epochMS is an RFC 3339 time in milliseconds since 1970 (a time axis's
+// value); ok is false when it does not parse.
+func epochMS(s string) (int64, bool) {
+	t, err := time.Parse(time.RFC3339, s)
+	if err != nil {
+		return 0, false
 	}
+	return t.UnixMilli(), true
+}
+
+// controlChart is the individuals chart of one limit's worst margins
+// against the run date, with its centre line and control limits, and
+// every point beyond them marked. A point is [time in ms, margin, unit]
+// with unit the index of its row in the page's unit data, which the
+// tooltip names and a click opens.
+func controlChart(id string, l reduce.LimitStats, unitIndex map[string]int) (chartSpec, error) {
+	cc := l.Chart
 	beyond := map[int]bool{}
 	for _, b := range cc.Beyond {
 		beyond[b] = true
 	}
-	pts := make([]opts.LineData, n)
-	out := make([]opts.LineData, n)
+	var pts, out [][]any
+	var first, last int64
+	have := false
+	undated := 0
 	for i, m := range cc.ValuesDB {
-		name := ""
-		if i < len(cc.Serials) {
-			name = cc.Serials[i]
+		ms, ok := epochMS(at(cc.Started, i))
+		if !ok {
+			undated++
+			continue
 		}
-		pts[i] = opts.LineData{Name: name, Value: r3(m)}
+		if !have || ms < first {
+			first = ms
+		}
+		if !have || ms > last {
+			last = ms
+		}
+		have = true
+		u := -1
+		if k, ok := unitIndex[at(cc.Serials, i)]; ok {
+			u = k
+		}
+		p := []any{ms, r3(m), u}
+		pts = append(pts, p)
 		if beyond[i] {
-			out[i] = opts.LineData{Name: name, Value: r3(m)}
-		} else {
-			out[i] = opts.LineData{Value: compact{math.NaN(), 0}}
+			out = append(out, p)
 		}
-	}
-	flat := func(v float64) []opts.LineData {
-		out := make([]opts.LineData, n)
-		for i := range out {
-			out[i] = opts.LineData{Value: r3(v)}
-		}
-		return out
 	}
 	c := charts.NewLine()
 	c.SetGlobalOptions(
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "Unit in test order", NameLocation: "middle", NameGap: 26}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "Worst margin (dB)", Scale: opts.Bool(true)}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
-		charts.WithGridOpts(opts.Grid{Left: "56", Right: "24", Top: "60", Bottom: "48"}),
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		// ECharts' own labels of a time axis (months, with the year at
+		// its turn): a full date at every tick overlapped.
+		charts.WithXAxisOpts(opts.XAxis{Type: "time", Name: "Run date", NameLocation: "middle", NameGap: 26}),
+		// The axis title along the axis, so that no legend row can cover it.
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "Worst margin (dB)", NameLocation: "middle", NameGap: 44, Scale: opts.Bool(true)}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0", Type: "scroll"}),
+		charts.WithGridOpts(opts.Grid{Left: "64", Right: "24", Top: "40", Bottom: "48"}),
 		charts.WithDataZoomOpts(opts.DataZoom{Type: "inside", XAxisIndex: []int{0}}),
 	)
-	c.SetXAxis(xs)
-	c.AddSeries("margin", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 6}))
-	c.AddSeries("centre", flat(cc.CentreDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#17202a"}))
-	c.AddSeries("upper control limit", flat(cc.UpperDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
-	c.AddSeries("lower control limit", flat(cc.LowerDB), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#922b21", Width: 1, Type: "dashed"}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
-	c.AddSeries("limit (margin 0)", flat(0), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
-		charts.WithLineStyleOpts(opts.LineStyle{Color: "#000000", Width: 2}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#000000"}))
-	if len(cc.Beyond) > 0 {
-		c.AddSeries("beyond the control limits", out, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 12, Symbol: "diamond"}),
-			charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#922b21"}))
+	// The series are written here rather than through go-echarts: the
+	// units' points are a scatter series in ECharts' large mode (one path
+	// for thousands of points, where a symbol each took 250 ms a chart at
+	// 1,000 units), and the points beyond the limits a series of their own
+	// drawn above it, every one of them marked.
+	line := func(name, id, colour, dash string, width, v float64) map[string]any {
+		return map[string]any{"type": "line", "name": name, "id": id, "showSymbol": false, "silent": true,
+			"data":      [][]any{{first, r3(v)}, {last, r3(v)}},
+			"lineStyle": map[string]any{"color": colour, "width": width, "type": dash}, "itemStyle": map[string]any{"color": colour}}
 	}
-	opt, err := finish(c, map[string]any{"unit": "dB", "serials": cc.Serials}, nil)
-	return chartSpec{ID: id, Title: "Control chart: " + l.Name, Height: 300, Option: opt,
-		Caption: fmt.Sprintf("Individuals chart of the worst margin in test order: centre %s dB, limits %s and %s dB (centre ± 2.66 × mean moving range %s dB); points beyond them in red; the black line is the limit (margin 0).",
-			fmtFixed(cc.CentreDB, 3), fmtFixed(cc.LowerDB, 3), fmtFixed(cc.UpperDB, 3), fmtFixed(cc.MeanMovingRange, 3))}, err
+	series := []map[string]any{{"type": "scatter", "name": "worst margin", "id": "points", "data": pts, "symbolSize": 4,
+		"large": true, "largeThreshold": 400, "itemStyle": map[string]any{"color": "#1b4f72", "opacity": 0.75}}}
+	if have {
+		series = append(series, line("centre", "centre", "#17202a", "solid", 1, cc.CentreDB),
+			line("control limits", "ucl", "#922b21", "dashed", 1, cc.UpperDB),
+			line("control limits", "lcl", "#922b21", "dashed", 1, cc.LowerDB),
+			line("limit (margin 0)", "zero", "#000000", "solid", 2, 0))
+	}
+	if len(out) > 0 {
+		series = append(series, map[string]any{"type": "scatter", "name": fmt.Sprintf("beyond the control limits (%d)", len(out)), "id": "beyond",
+			"data": out, "symbol": "diamond", "symbolSize": 11, "z": 5, "itemStyle": map[string]any{"color": "#922b21"}})
+	}
+	opt, err := finish(c, map[string]any{"unit": "dB", "unitRef": true}, map[string]any{"series": series})
+	caption := "Individuals chart of the worst margin against the run date. " + controlBasis(l)
+	if len(out) > 0 {
+		caption += fmt.Sprintf(" The %d points beyond the limits are red diamonds, listed below the chart.", len(out))
+	}
+	if undated > 0 {
+		caption += fmt.Sprintf(" %d points without a readable date are not drawn.", undated)
+	}
+	caption += " Click a point to open its unit's report."
+	return chartSpec{ID: id, Title: "Control chart: " + l.Name, Height: 320, Option: opt, Caption: caption}, err
+}
+
+// yieldChart is a product's first-pass and final yield per month, with
+// the number of units of each month on a second axis.
+func yieldChart(id string, p reduce.ProductFleet) (chartSpec, error) {
+	months := make([]string, len(p.Months))
+	fpy := make([]opts.LineData, len(p.Months))
+	fin := make([]opts.LineData, len(p.Months))
+	n := make([]opts.BarData, len(p.Months))
+	for i, m := range p.Months {
+		months[i] = m.Month
+		fpy[i] = opts.LineData{Value: compact{100 * m.FirstPassYield, 1}}
+		fin[i] = opts.LineData{Value: compact{100 * m.FinalYield, 1}}
+		n[i] = opts.BarData{Value: m.Units}
+	}
+	bar := charts.NewBar()
+	bar.SetGlobalOptions(
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "Month of the acceptance run", NameLocation: "middle", NameGap: 28}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "Units", NameLocation: "middle", NameGap: 40, MinInterval: 1}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "0"}),
+		charts.WithGridOpts(opts.Grid{Left: "56", Right: "56", Top: "36", Bottom: "48"}),
+	)
+	bar.ExtendYAxis(opts.YAxis{Type: "value", Name: "Yield (%)", NameLocation: "middle", NameGap: 40, Max: 100, Scale: opts.Bool(true)})
+	bar.SetXAxis(months)
+	bar.AddSeries("units", n, charts.WithItemStyleOpts(opts.ItemStyle{Color: "#d5d8dc"}))
+	line := charts.NewLine()
+	line.SetXAxis(months)
+	line.AddSeries("first-pass yield", fpy, charts.WithLineChartOpts(opts.LineChart{YAxisIndex: 1, ShowSymbol: opts.Bool(true)}),
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#b9770e", Width: 2}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#b9770e"}))
+	line.AddSeries("final yield", fin, charts.WithLineChartOpts(opts.LineChart{YAxisIndex: 1, ShowSymbol: opts.Bool(true)}),
+		charts.WithLineStyleOpts(opts.LineStyle{Color: "#1e8449", Width: 2}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#1e8449"}))
+	bar.Overlap(line)
+	opt, err := finish(bar, map[string]any{"yield": true}, nil)
+	return chartSpec{ID: id, Title: "Yield by month: " + p.Product, Height: 280, Option: opt,
+		Caption: "First-pass yield: units whose first run passed (a conditional pass included), over the month's units judged; final yield: the same at each unit's acceptance run. Grey bars: units of the month (left axis)."}, err
 }
 
 // bandChart is a product's golden band: the median boresight G/T and the

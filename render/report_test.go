@@ -416,13 +416,21 @@ func TestReportSparseUnits(t *testing.T) {
 func TestIndex(t *testing.T) {
 	f := fixtureFleet(t)
 	page := string(mustIndex(t, f))
-	for _, u := range f.Units {
-		seg := url.PathEscape(u.Serial)
-		for _, href := range []string{"units/" + seg + "/report.html", "units/" + seg + "/" + seg + ".xlsx"} {
-			// html/template writes the already-escaped path unchanged.
-			if !strings.Contains(page, `href="`+href+`"`) {
-				t.Errorf("index lacks the link %s", href)
-			}
+	// Every unit is in the page's unit data, from which page.js draws the
+	// table rows and their links (TestBrowserIndex follows them).
+	d := indexDataOf(t, page)
+	if len(d.Units) != len(f.Units) {
+		t.Fatalf("unit data has %d units, want %d", len(d.Units), len(f.Units))
+	}
+	for i, u := range f.Units {
+		if got := d.Units[i][0]; got != u.Serial {
+			t.Errorf("unit data row %d is %v, want %s", i, got, u.Serial)
+		}
+	}
+	// The lists written into the page link to the reports themselves.
+	for _, serial := range []string{"KP16-00004", "KP16-00010"} {
+		if !strings.Contains(page, `href="units/`+url.PathEscape(serial)+`/report.html"`) {
+			t.Errorf("index lacks a link to the report of %s", serial)
 		}
 	}
 	// Yield 23 of 24 = 95.8 %; Cpk = mean/(3 sd) of the fixture's margins
@@ -430,11 +438,12 @@ func TestIndex(t *testing.T) {
 	gt := f.Products[0].Limits[0]
 	for _, want := range []string{
 		"<td class=\"num\">95.8 %</td>",
-		fmt.Sprintf("<td class=\"num\">%s</td>", fmtFixed(gt.MeanMarginDB/(3*gt.StdMarginDB), 2)),
+		fmt.Sprintf("<td class=\"num\">%s <span class=\"tag flag\"", fmtFixed(gt.MeanMarginDB/(3*gt.StdMarginDB), 2)), // indicative: 24 units
 		"KP16-00010 (-0.80 dB, z = -5.2)",
-		"<td>KP16-00004</td><td>12.1 to 12.2, 12.4</td>", // ranges of neighbouring points, a single point alone
-		`<span class="tag v-pass">PASS</span><b>21</b>`,
-		`<span class="tag v-fail">FAIL</span><b>2</b>`,
+		// The watch list: span, points outside, worst excursion and where.
+		`<td class="nowrap"><a href="units/KP16-00004/report.html">KP16-00004</a></td><td class="nowrap">12.1 – 12.4</td><td class="num">3</td><td class="num">-0.42</td><td class="num">12.2</td>`,
+		`<button type="button" class="count" data-verdict="pass" title="show the PASS units in the table"><span class="tag v-pass">PASS</span><b>21</b></button>`,
+		`<button type="button" class="count" data-verdict="fail" title="show the FAIL units in the table"><span class="tag v-fail">FAIL</span><b>2</b></button>`,
 		"(1 unit)",
 		"Capability and control statistics need at least two units.",
 		"must not radiate", // method.md section 11 cautions, on the overview too

@@ -47,6 +47,9 @@ const (
 	nfPct  = "0.0%"
 	nfCpk  = "0.00"
 	nfInt  = "0"
+	// nfDate and nfMonth show date cells (UTC, as the runs record them).
+	nfDate  = "yyyy-mm-dd hh:mm"
+	nfMonth = "yyyy-mm"
 )
 
 // Verdict fill colours of our own (light tints, dark text).
@@ -75,6 +78,9 @@ type xlBook struct {
 	// bulk holds the tables written into their sheets at save time, by
 	// sheet name (see xlsxrows.go).
 	bulk map[string]*bulkSheet
+	// used is the last column and row set in each sheet through set, for
+	// the sheet's dimension (setDimensions).
+	extent map[string][2]int
 }
 
 // sortedZip is the zip writer given to excelize: it holds the entries
@@ -388,8 +394,33 @@ func (b *xlBook) set(sheet string, col, row int, v any) {
 		}
 	case string:
 		v = cellText(x)
+	case xlDate:
+		if !x.ok {
+			v = cellText(x.text)
+		} else {
+			v = x.serial
+		}
 	}
+	if b.extent == nil {
+		b.extent = map[string][2]int{}
+	}
+	e := b.extent[sheet]
+	b.extent[sheet] = [2]int{max(e[0], col), max(e[1], row)}
 	b.check(b.f.SetCellValue(sheet, b.cellName(col, row), v))
+}
+
+// setDimensions states the used range of every sheet written through set
+// in its dimension element: excelize leaves it "A1", and a reader that
+// trusts it (openpyxl in read-only mode) then reads one row. Sheets with
+// bulk rows get theirs when the rows are written.
+func (b *xlBook) setDimensions() {
+	for sheet, e := range b.extent {
+		if t := b.bulk[sheet]; t != nil {
+			t.width, t.lastRow = max(t.width, e[0]), max(t.lastRow, e[1])
+			continue
+		}
+		b.check(b.f.SetSheetDimension(sheet, "A1:"+b.cellName(max(e[0], 1), max(e[1], 1))))
+	}
 }
 
 // setRow writes values from column 1 of row.
@@ -397,6 +428,17 @@ func (b *xlBook) setRow(sheet string, row int, values ...any) {
 	for i, v := range values {
 		b.set(sheet, i+1, row, v)
 	}
+}
+
+// setDate writes a date cell (dateCell) with a date format; a text
+// that is not a date is written as text.
+func (b *xlBook) setDate(sheet string, col, row int, s, format string) {
+	d := dateCell(s)
+	if !d.ok {
+		b.set(sheet, col, row, d.text)
+		return
+	}
+	b.setNum(sheet, col, row, d.serial, format)
 }
 
 // setNum writes a number with a format.
@@ -525,6 +567,50 @@ func (b *xlBook) lineChart(sheet, cell, title, xTitle, yTitle, categories string
 		}
 		if x.numeric {
 			cs.Line.Type = excelize.LineSolid // an XY series has no line unless asked
+		}
+		c.Series = append(c.Series, cs)
+	}
+	b.check(b.f.AddChart(sheet, cell, c))
+}
+
+// xySeries is one series of an XY chart: x and y ranges of its own;
+// markers draws its points without a line (the individuals), else a line
+// without markers.
+type xySeries struct {
+	name, x, y    string
+	dash, markers bool
+}
+
+// dateChart adds a native XY chart of series against dates (date cells
+// on a numeric axis labelled as dates).
+func (b *xlBook) dateChart(sheet, cell, title, xTitle, yTitle string, series []xySeries) {
+	c := &excelize.Chart{
+		Type:      excelize.Scatter,
+		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: title}}},
+		Dimension: excelize.ChartDimension{Width: 760, Height: 400},
+		Legend:    excelize.ChartLegend{Position: "bottom"},
+		XAxis: excelize.ChartAxis{
+			Title:             excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: xTitle}}},
+			NumFmt:            excelize.ChartNumFmt{CustomNumFmt: "yyyy-mm-dd"},
+			TickLabelPosition: excelize.ChartTickLabelLow,
+			MajorGridLines:    true,
+		},
+		YAxis: excelize.ChartAxis{
+			Title:             excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: yTitle}}},
+			MajorGridLines:    true,
+			NumFmt:            excelize.ChartNumFmt{CustomNumFmt: "0.0"},
+			TickLabelPosition: excelize.ChartTickLabelLow,
+		},
+	}
+	for _, s := range series {
+		cs := excelize.ChartSeries{Name: s.name, Categories: s.x, Values: s.y, Line: excelize.LineOptions{Width: 1.5, Type: excelize.LineSolid},
+			Marker: excelize.ChartMarker{Symbol: "none"}}
+		if s.markers {
+			cs.Line = excelize.LineOptions{Type: excelize.LineNone}
+			cs.Marker = excelize.ChartMarker{Symbol: "circle", Size: 3}
+		}
+		if s.dash {
+			cs.Line.Dash = excelize.LineDashDash
 		}
 		c.Series = append(c.Series, cs)
 	}
@@ -971,6 +1057,32 @@ func (b *xlBook) columnStyles(cols []xlColumn) []int {
 	return styles
 }
 
+// xlDate is a time for bulkRow: a date cell (the spreadsheet's serial
+// day number, days since 1899-12-30 in UTC) when the text parses as RFC
+// 3339, else the text as it is.
+type xlDate struct {
+	serial float64
+	ok     bool
+	text   string
+}
+
+// dateCell reads an RFC 3339 time (or a YYYY-MM-DD or YYYY-MM date) for a
+// date cell.
+func dateCell(s string) xlDate {
+	for _, layout := range []string{time.RFC3339, "2006-01-02", "2006-01"} {
+		if t, err := time.Parse(layout, s); err == nil {
+			return xlDate{serial: excelSerial(t), ok: true, text: s}
+		}
+	}
+	return xlDate{text: s}
+}
+
+// excelSerial is t as a spreadsheet's serial day number (the 1900 date
+// system: 25569 is 1970-01-01), in UTC.
+func excelSerial(t time.Time) float64 {
+	return float64(t.UTC().UnixMilli())/86400e3 + 25569
+}
+
 // frequencyHz is a frequency in Hz for bulkRow, written in GHz.
 type frequencyHz float64
 
@@ -991,6 +1103,12 @@ func bulkRow(styles []int, values ...any) []bulkCell {
 			row[i] = numCell(float64(x), style)
 		case frequencyHz:
 			row[i] = freqCell(float64(x), style)
+		case xlDate:
+			if x.ok {
+				row[i] = bulkCell{kind: 'd', num: x.serial, style: style}
+			} else {
+				row[i] = textCell(x.text, 0)
+			}
 		case string:
 			row[i] = textCell(x, style)
 		}

@@ -68,8 +68,17 @@ for ws in wb.worksheets:
     widths = [[d.min, d.max, d.width] for d in ws.column_dimensions.values() if d.customWidth]
     out["sheets"].append({"title": ws.title, "rows": rows, "formats": fmts, "charts": charts,
         "freeze": ws.freeze_panes, "cf": cfs, "widths": widths})
+# Read-only mode trusts each sheet's dimension: it must read the same rows.
+ro = openpyxl.load_workbook(sys.argv[1], read_only=True)
+out["readonly"] = {ws.title: sum(1 for _ in ws.iter_rows(values_only=True)) for ws in ro.worksheets}
+ro.close()
+# A date cell reads back as a datetime: "date:" and its ISO form.
+def dates(o):
+    if hasattr(o, "isoformat"):
+        return "date:" + o.isoformat()
+    raise TypeError(type(o))
 with open(sys.argv[2], "w") as fh:
-    json.dump(out, fh)
+    json.dump(out, fh, default=dates)
 `
 
 type xlDump struct {
@@ -77,6 +86,19 @@ type xlDump struct {
 		Title, Creator, Created, Modified string
 	}
 	Sheets []xlDumpSheet
+	// ReadOnly is the number of rows of each sheet in openpyxl's
+	// read-only mode, which reads as far as the dimension says.
+	ReadOnly map[string]int
+}
+
+// xlDateText is how the dump shows a date cell of an RFC 3339 time.
+func xlDateText(t *testing.T, rfc3339 string) string {
+	t.Helper()
+	tm, err := time.Parse(time.RFC3339, rfc3339)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return "date:" + tm.UTC().Format("2006-01-02T15:04:05")
 }
 
 type xlDumpSheet struct {
@@ -682,7 +704,8 @@ func TestFleetWorkbookReadBack(t *testing.T) {
 		}
 		for i, u := range f.Units {
 			r := i + 2
-			if s.cell(r, 1) != u.Serial || s.cell(r, 2) != u.Product || s.cell(r, 3) != u.Started || s.cell(r, 4) != u.Verdict {
+			// Dates are date cells with a date format.
+			if s.cell(r, 1) != u.Serial || s.cell(r, 2) != u.Product || s.cell(r, 3) != xlDateText(t, u.Started) || s.format(r, 3) != nfDate || s.cell(r, 4) != u.Verdict {
 				t.Errorf("row %d: %v", r, s.Rows[r-1])
 			}
 			for j, name := range []string{"G/T at boresight", "Gain at boresight"} {
@@ -732,19 +755,57 @@ func TestFleetWorkbookReadBack(t *testing.T) {
 	t.Run("control chart", func(t *testing.T) {
 		s := d.sheet(t, "Control chart")
 		c := f.Products[0].Limits[0].Chart
+		// A block: its title, its header, then a row a unit in test order.
+		if s.cell(2, 1) != "KU-PANEL-16: G/T at boresight" || s.cell(3, 3) != "Worst margin (dB)" {
+			t.Fatalf("block head %v %v", s.Rows[1], s.Rows[2])
+		}
 		for i, v := range c.ValuesDB {
-			r := i + 2
-			beyond := s.cell(r, 10) == "yes"
-			if s.cell(r, 4) != c.Serials[i] || !sameResult(s.cell(r, 6), resultValue(v)) || !sameResult(s.cell(r, 8), resultValue(c.UpperDB)) ||
+			r := i + 4
+			beyond := s.cell(r, 4) == "yes"
+			if s.cell(r, 1) != c.Serials[i] || s.cell(r, 2) != xlDateText(t, c.Started[i]) || !sameResult(s.cell(r, 3), resultValue(v)) ||
 				beyond != slices.Contains(c.Beyond, i) {
 				t.Errorf("row %d: %v", r, s.Rows[r-1])
 			}
 		}
+		// Beside it the lines at the first and last date.
+		if s.cell(3, 7) != "Centre (dB)" || s.cell(4, 6) != xlDateText(t, c.Started[0]) || s.cell(5, 6) != xlDateText(t, c.Started[len(c.Started)-1]) ||
+			!sameResult(s.cell(4, 8), resultValue(c.UpperDB)) || !sameResult(s.cell(5, 9), resultValue(c.LowerDB)) {
+			t.Errorf("lines %v %v", s.Rows[3], s.Rows[4])
+		}
 		if len(s.Charts) != 2 {
 			t.Fatalf("%d control charts, want 2 (the single-unit product has none)", len(s.Charts))
 		}
-		if got := s.Charts[0].Series[0].Val; got != "'Control chart'!$F$2:$F$25" {
-			t.Errorf("first chart values %q", got)
+		ch := s.Charts[0]
+		if ch.Type != "ScatterChart" || len(ch.Series) != 5 || ch.Series[0].Val != "'Control chart'!$C$4:$C$27" || ch.Series[0].Cat != "'Control chart'!$B$4:$B$27" || !ch.Series[0].CatNum {
+			t.Errorf("first chart %+v: want an XY chart of the margins against the run dates", ch)
+		}
+	})
+
+	t.Run("dimensions", func(t *testing.T) {
+		// openpyxl's read-only mode reads each sheet as far as its
+		// dimension: every sheet must read whole.
+		for _, sh := range d.Sheets {
+			if got := d.ReadOnly[sh.Title]; got != len(sh.Rows) {
+				t.Errorf("sheet %s: %d rows in read-only mode, %d in full", sh.Title, got, len(sh.Rows))
+			}
+		}
+	})
+
+	t.Run("monthly yield", func(t *testing.T) {
+		s := d.sheet(t, "Monthly yield")
+		ms := f.Products[0].Months
+		if len(s.Rows) != 1+len(ms) {
+			t.Fatalf("%d rows, want %d", len(s.Rows), 1+len(ms))
+		}
+		for i, m := range ms {
+			r := i + 2
+			if s.cell(r, 1) != "KU-PANEL-16" || s.cell(r, 2) != "date:"+m.Month+"-01T00:00:00" || s.format(r, 2) != nfMonth || !sameNumber(s.cell(r, 3), float64(m.Units)) ||
+				!sameNumber(s.cell(r, 9), m.FirstPassYield) || !sameNumber(s.cell(r, 10), m.FinalYield) || s.format(r, 9) != nfPct || !sameNumber(s.cell(r, 11), float64(m.Retested)) {
+				t.Errorf("row %d: %v", r, s.Rows[r-1])
+			}
+		}
+		if len(s.Charts) != 1 || len(s.Charts[0].Series) != 2 || s.Charts[0].Series[0].Val != "'Monthly yield'!$I$2:$I$3" {
+			t.Errorf("monthly charts %+v", s.Charts)
 		}
 	})
 
@@ -775,6 +836,44 @@ func TestFleetWorkbookReadBack(t *testing.T) {
 			t.Errorf("band charts %+v", b.Charts)
 		}
 	})
+}
+
+// The range health of each station is a sheet of its own with a chart.
+func TestFleetWorkbookStations(t *testing.T) {
+	f := healthFleet()
+	data, err := FleetWorkbook(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := readWorkbook(t, data)
+	if len(f.Stations) != 1 {
+		t.Fatalf("fixture has %d stations", len(f.Stations))
+	}
+	st := f.Stations[0]
+	s := d.sheet(t, "Range range-b horn-0042")
+	if len(s.Rows) != 4+len(st.Points) || d.ReadOnly[s.Title] != len(s.Rows) {
+		t.Fatalf("%d rows (%d read-only), want %d", len(s.Rows), d.ReadOnly[s.Title], 4+len(st.Points))
+	}
+	if !sameNumber(s.cell(2, 2), st.CentreDB) || !sameNumber(s.cell(2, 4), st.LCLDB) || !sameNumber(s.cell(2, 6), st.UCLDB) {
+		t.Errorf("limits row %v", s.Rows[1])
+	}
+	out := map[int]bool{}
+	for _, i := range st.OutOfControl {
+		out[i] = true
+	}
+	if len(out) == 0 {
+		t.Fatal("the fixture's planted step gives no run out of control")
+	}
+	for i, p := range st.Points {
+		r := i + 5
+		if s.cell(r, 1) != p.Serial || s.cell(r, 2) != p.Run || s.cell(r, 3) != xlDateText(t, p.Started) || s.format(r, 3) != nfDate ||
+			!sameNumber(s.cell(r, 4), p.RangeLossDB) || (s.cell(r, 6) == "yes") != out[i] {
+			t.Errorf("row %d: %v", r, s.Rows[r-1])
+		}
+	}
+	if len(s.Charts) != 1 || s.Charts[0].Type != "ScatterChart" || len(s.Charts[0].Series) != 4 {
+		t.Errorf("station charts %+v", s.Charts)
+	}
 }
 
 func TestWorkbookNonFiniteAndEmpty(t *testing.T) {

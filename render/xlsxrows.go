@@ -48,12 +48,15 @@ type bulkSheet struct {
 	// widths are the column widths from column A (0: the default), for
 	// a sheet that excelize gave no widths.
 	widths []float64
+	// lastRow is the last row of cells excelize wrote beside the bulk
+	// rows (a small table at the side), for the dimension.
+	lastRow int
 }
 
 // bulkCell is one cell of a bulk row: empty, a number, a frequency or a
 // text.
 type bulkCell struct {
-	kind  byte // 0: empty, 'n': number, 'f': a frequency in Hz, shown in GHz, 's': text
+	kind  byte // 0: empty, 'n': number, 'f': a frequency in Hz, shown in GHz, 'd': a date (serial day number), 's': text
 	num   float64
 	text  string
 	style int
@@ -221,7 +224,7 @@ func writeBulkSheet(w io.Writer, sheetXML []byte, t *bulkSheet) error {
 	if d := bytes.Index(head, []byte(`<dimension ref="`)); d >= 0 {
 		d += len(`<dimension ref="`)
 		if q := bytes.IndexByte(head[d:], '"'); q >= 0 {
-			last, err := excelize.CoordinatesToCellName(max(t.width, 1), max(t.first+len(t.rows)+t.n-1, 1))
+			last, err := excelize.CoordinatesToCellName(max(t.width, 1), max(t.first+len(t.rows)+t.n-1, t.lastRow, 1))
 			if err != nil {
 				return err
 			}
@@ -362,6 +365,12 @@ func writeBulkRows(w io.Writer, t *bulkSheet) error {
 			case 'f':
 				buf = cw.open(buf, i, c.style, false)
 				buf = appendResultGHz(buf, c.num)
+				buf = append(buf, `</v></c>`...)
+			case 'd':
+				// A date: its serial day number to full precision, so
+				// that a time of day reads back to the second.
+				buf = cw.open(buf, i, c.style, false)
+				buf = strconv.AppendFloat(buf, c.num, 'f', -1, 64)
 				buf = append(buf, `</v></c>`...)
 			case 's':
 				buf = cw.open(buf, i, c.style, true)
