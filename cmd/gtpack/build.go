@@ -641,17 +641,20 @@ func cmdIndex(args []string, stdout, stderr io.Writer) (int, error) {
 	// changed is left out, named, and made again by the next build.
 	code := exitOK
 	var keep, dropped []string
-	for _, serial := range serials {
-		st, err := site.readState(serial)
+	checks := site.checkAll(serials)
+	for i, serial := range serials {
+		why, err := checks[i].why, checks[i].err
 		if err != nil {
 			return exitSite, err
 		}
-		if why := site.checkOutputs(st); why != "" {
+		if why != "" {
 			fmt.Fprintf(stderr, "%s: unit %s left out of the fleet pages and the manifest: %s; gtpack build makes it again\n",
 				filepath.Join(site.dir, unitDir(serial)), serial, why)
 			dropped = append(dropped, serial)
 			code = exitRefused
-			if !st.Damaged {
+			if st, err := site.readState(serial); err != nil {
+				return exitSite, err
+			} else if st != nil && !checks[i].damaged {
 				st.Damaged = true
 				if err := site.writeStateOnly(st, false); err != nil {
 					return exitSite, err

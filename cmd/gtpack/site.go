@@ -17,6 +17,7 @@ import (
 	"slices"
 	"sort"
 	"strings"
+	"sync"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
@@ -1243,6 +1244,44 @@ func (s *site) hasPending() bool {
 		}
 	}
 	return false
+}
+
+// outputCheck is what checkOutputs found of one unit ("" when its files
+// are as recorded), and whether its record already says it is damaged.
+type outputCheck struct {
+	why     string
+	damaged bool
+	err     error
+}
+
+// checkAll reads every unit's record and checks its outputs
+// (checkOutputs), on every core: reading back and hashing the files is
+// most of what gtpack index does (some 1.5 GB/s a core). The records are
+// not kept: at 10,000 units they would be some 100 MB.
+func (s *site) checkAll(serials []string) []outputCheck {
+	out := make([]outputCheck, len(serials))
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for range max(1, runtime.NumCPU()) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				c := &out[i]
+				var st *unitState
+				if st, c.err = s.readState(serials[i]); c.err == nil {
+					c.why = s.checkOutputs(st)
+					c.damaged = st != nil && st.Damaged
+				}
+			}
+		}()
+	}
+	for i := range serials {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	return out
 }
 
 // checkOutputs reads back every file recorded for the unit and says what
