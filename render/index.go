@@ -44,14 +44,16 @@ func Index(f *reduce.Fleet) ([]byte, error) {
 
 type indexView struct {
 	pageAssets
-	Version   string
-	Total     int
-	Counts    []countRow
-	Stale     int
-	Histogram *chartSpec
-	Products  []productView
-	Cautions  string
-	Notices   []string
+	Version string
+	Total   int // production units: check units are not counted
+	// CheckUnits are the stations' check units, named apart.
+	CheckUnits []checkUnitLink
+	Counts     []countRow
+	Stale      int
+	Histogram  *chartSpec
+	Products   []productView
+	Cautions   string
+	Notices    []string
 	// ShowIssue is set when the fleet knows any unit's issue state: the
 	// table then has a Report state and a Runs column. Issues counts the
 	// units per issue state; Retested those with more than one run.
@@ -186,13 +188,27 @@ type indexData struct {
 // unitFields name the fields of a unit row of indexData, in order.
 var unitFields = []string{"serial", "product", "verdict", "worst_margin_db", "worst_limit", "started", "runs", "first_verdict", "issue_state", "report_number", "no_report", "stale"}
 
+// checkUnitLink is a check unit as the overview names it.
+type checkUnitLink struct {
+	Serial     string
+	ReportHref string
+}
+
 func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*indexView, error) {
 	v := &indexView{pageAssets: inlineAssets(), Version: Version, Total: len(f.Units), Cautions: cautions, Notices: f.Notices,
 		MinCapability: reduce.MinCapabilityUnits, MinChartPoints: reduce.MinChartPoints}
-	units := make([]*reduce.FleetUnit, len(f.Units))
+	// Check units are the range's check standards, not production: the
+	// overview names them and leaves them out of its counts and tables
+	// (health.html charts them).
+	units := make([]*reduce.FleetUnit, 0, len(f.Units))
 	for i := range f.Units {
-		units[i] = &f.Units[i]
+		if u := &f.Units[i]; u.CheckUnit {
+			v.CheckUnits = append(v.CheckUnits, checkUnitLink{Serial: u.Serial, ReportHref: "units/" + url.PathEscape(u.Serial) + "/report.html"})
+		} else {
+			units = append(units, u)
+		}
 	}
+	v.Total = len(units)
 	// The units arrive sorted by serial; keep that order whatever the input.
 	sort.SliceStable(units, func(i, j int) bool { return units[i].Serial < units[j].Serial })
 	unitIndex := make(map[string]int, len(units))

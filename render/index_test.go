@@ -2,6 +2,7 @@ package render
 
 import (
 	"encoding/json"
+	"fmt"
 	"regexp"
 	"strings"
 	"testing"
@@ -243,5 +244,21 @@ func TestControlChartAgainstDate(t *testing.T) {
 	}
 	if !strings.Contains(c.Caption, "of all 24 units in test order") || !strings.Contains(c.Caption, "2.66 × mean moving range") {
 		t.Errorf("caption lacks the basis of the limits: %s", c.Caption)
+	}
+}
+
+// A station's check unit is named apart on the overview, with a link to
+// its report, and counted in none of its totals, counts or tables.
+func TestIndexLeavesCheckUnitsOut(t *testing.T) {
+	f := fixtureFleet(t)
+	n := len(f.Units)
+	f.Units = append(f.Units, reduce.FleetUnit{Serial: "KP16-GOLD-01", Product: f.Units[0].Product, Started: "2026-11-20T08:00:00Z",
+		Verdict: reduce.VerdictFail, Runs: 12, FirstVerdict: reduce.VerdictFail, CheckUnit: true})
+	page := string(mustIndex(t, f))
+	if !strings.Contains(page, fmt.Sprintf("<h1>%d units</h1>", n)) {
+		t.Errorf("the total counts the check unit")
+	}
+	if !strings.Contains(page, `<a href="units/KP16-GOLD-01/report.html">KP16-GOLD-01</a>`) || strings.Count(page, "KP16-GOLD-01") != 2 {
+		t.Errorf("the check unit is not named apart once (it appears %d times)", strings.Count(page, "KP16-GOLD-01"))
 	}
 }
