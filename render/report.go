@@ -437,14 +437,12 @@ func budgetAt(u *reduce.Unit, l reduce.LimitResult) *budgetView {
 		if l.Quantity == "gain" {
 			bud, q = b.GainBudget, "gain"
 		}
-		k := -1
-		for j, f := range b.FrequencyHz {
-			if k < 0 || math.Abs(f-l.AtFrequencyHz) < math.Abs(b.FrequencyHz[k]-l.AtFrequencyHz) {
-				k = j
-			}
-		}
-		if k < 0 || len(bud.Terms) == 0 {
+		if len(b.FrequencyHz) == 0 || len(bud.Terms) == 0 {
 			return nil
+		}
+		k := 0
+		if finite(l.AtFrequencyHz) {
+			k = nearestIndex(b.FrequencyHz, l.AtFrequencyHz) // as the workbook's budgetPoint
 		}
 		at := func(xs []float64) float64 {
 			if k < len(xs) {

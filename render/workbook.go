@@ -8,6 +8,7 @@ import (
 	"io"
 	"io/fs"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -664,7 +665,7 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 		cols[i] = beamColumns(bm, u.Limits)
 		bs := beamShape{id: bm.ID, theta: bm.ThetaDeg, phi: bm.PhiDeg, n: len(bm.FrequencyHz),
 			lo: bandEdge(bm.FrequencyHz, false), hi: bandEdge(bm.FrequencyHz, true),
-			firstGrid: sameGrid(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]xlColumn, len(cols[i]))}
+			firstGrid: slices.Equal(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]xlColumn, len(cols[i]))}
 		for j, c := range cols[i] {
 			bs.cols[j] = c.xlColumn
 		}
@@ -855,18 +856,6 @@ func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) 
 			numCell(bm.PhiDeg, deg), textCell(bm.Polarization, 0), textCell(bm.GTForm, 0), numCell(float64(len(bm.FrequencyHz)), 0)})
 	}
 	b.addBulk(sheet, t)
-}
-
-func sameGrid(a, b []float64) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }
 
 // beamColumn is a column of a beam sheet: values from index start of the
