@@ -26,12 +26,9 @@ const manifestSchema = 3
 // UnitManifestName is the name of a unit's manifest in its folder.
 const UnitManifestName = "manifest.json"
 
-// ManifestEntry is one file with its size and SHA-256 (lower-case hex).
-type ManifestEntry struct {
-	Path   string `json:"path"`
-	Size   int64  `json:"size"`
-	SHA256 string `json:"sha256"`
-}
+// ManifestEntry is one file with its size and SHA-256 (lower-case hex):
+// ingest's InputFile, whose stat no manifest writes (its JSON tag is "-").
+type ManifestEntry = ingest.InputFile
 
 // UnitManifest is units/<serial>/manifest.json: what the unit's files
 // were built from. Inputs are archive-relative, Outputs site-relative.
