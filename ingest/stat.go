@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"time"
 )
 
@@ -158,4 +159,21 @@ func (a *Archive) Readable(rel string) bool {
 	}
 	f.Close()
 	return true
+}
+
+// FolderListing is a digest of the names (and kinds) of the entries of
+// the archive folder rel (a run's folder), as a build records it before
+// reading the run: a file added to or removed from it (a file a beam
+// plan's glob would now match, say) changes it. ok is false when the
+// folder cannot be read.
+func (a *Archive) FolderListing(rel string) (digest string, ok bool) {
+	entries, err := os.ReadDir(filepath.Join(a.Root, filepath.FromSlash(rel)))
+	if err != nil {
+		return "", false
+	}
+	h := sha256.New()
+	for _, e := range entries { // ReadDir sorts by name
+		fmt.Fprintf(h, "%s %v\n", e.Name(), e.Type())
+	}
+	return hex.EncodeToString(h.Sum(nil)), true
 }

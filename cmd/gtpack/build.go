@@ -449,6 +449,7 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		Inputs:      recordInputs(w.inputs),
 		Absent:      w.absent,
 		Approvals:   recordInputs(w.approvals),
+		Folders:     w.folders,
 		Summary:     res.Summary(),
 	}
 	st.ReportStarted = st.Summary.Started
@@ -519,6 +520,7 @@ type wholeUnit struct {
 	inputs    []ingest.InputFile
 	absent    []string
 	approvals []ingest.InputFile // the serial's approval files
+	folders   []recordedInput    // the run folders, with the digest of their listings
 }
 
 // reduceWhole reads and reduces every run of u. Every file read for the
@@ -528,6 +530,12 @@ type wholeUnit struct {
 // serial's approvals.
 func reduceWhole(a *ingest.Archive, u *ingest.Unit) (*wholeUnit, error) {
 	w := &wholeUnit{}
+	// The run folders' listings are taken before anything in them is
+	// read: a file added later changes them, and the next build sees it.
+	for _, r := range u.Runs {
+		d, _ := a.FolderListing(r.Dir)
+		w.folders = append(w.folders, recordedInput{Path: r.Dir, SHA256: d})
+	}
 	// The archive was opened lean: each run is read whole here, one unit
 	// at a time, so that discovery holds little per unit.
 	for _, r := range u.Runs {

@@ -114,8 +114,13 @@ type unitState struct {
 	// Approvals are the serial's approval files the outputs show: not
 	// inputs (an approval issues a report of the inputs), but a change of
 	// them changes the report.
-	Approvals []recordedInput        `json:"approvals,omitempty"`
-	Outputs   []render.ManifestEntry `json:"outputs"`
+	Approvals []recordedInput `json:"approvals,omitempty"`
+	// Folders are the run folders with the digest of their listings
+	// (ingest.FolderListing) when the build began reading them: a file
+	// added to or removed from one (which a beam plan's glob may match)
+	// makes the unit be built again.
+	Folders []recordedInput        `json:"folders,omitempty"`
+	Outputs []render.ManifestEntry `json:"outputs"`
 	// Summary is the head of the summary in the record, and the whole
 	// summary once readSummary has read it or a build made it.
 	Summary reduce.UnitSummary `json:"summary"`
@@ -573,6 +578,14 @@ func (s *site) current(a *ingest.Archive, u *ingest.Unit, st *unitState) (ok boo
 	}
 	for _, p := range st.Absent {
 		if a.Readable(p) {
+			return false, nil
+		}
+	}
+	if len(st.Folders) != len(u.Runs) {
+		return false, nil
+	}
+	for _, f := range st.Folders {
+		if now, ok := a.FolderListing(f.Path); !ok || now != f.SHA256 {
 			return false, nil
 		}
 	}

@@ -402,3 +402,33 @@ func TestCheckOnASite(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// A file that appears in a run folder is seen by the next build even when
+// no recorded input names it: a beam plan's glob ({beam}.*) matched
+// nothing before, and matches it now.
+func TestFileAddedToARunFolderIsSeen(t *testing.T) {
+	archive := smallArchive(t)
+	run := acceptanceRun(t, archive, 1)
+	files, _ := filepath.Glob(filepath.Join(run, "b01.*"))
+	if len(files) != 1 {
+		t.Fatalf("b01 transmission files: %v", files)
+	}
+	data, err := os.ReadFile(files[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.Remove(files[0])
+	site := filepath.Join(t.TempDir(), "site")
+	if code, out := runOut("build", archive, "-o", site); code != exitRefused || !strings.Contains(out, "matches no file") {
+		t.Fatalf("build without the file: %d\n%s", code, out)
+	}
+	if err := os.WriteFile(files[0], data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if code, out := runOut("build", archive, "-o", site); code != exitOK || !strings.Contains(out, "1 unit(s) built, 4 unchanged") {
+		t.Fatalf("build once the file is back: %d\n%s", code, out)
+	}
+	clean := filepath.Join(t.TempDir(), "clean")
+	runQuiet(t, "build", archive, "-o", clean, "--quiet")
+	sameSite(t, "the rebuilt site and a clean build", siteDigest(t, site), siteDigest(t, clean))
+}
