@@ -70,25 +70,15 @@ type checkView struct {
 // date, with the limits of its first runs.
 func checkUnitView(id string, c reduce.CheckUnitChart) (checkView, error) {
 	v := checkView{CheckUnitChart: c, ReportHref: "units/" + url.PathEscape(c.Serial) + "/report.html"}
-	beyond := map[int]bool{}
+	var pts []opts.LineData
+	for _, p := range c.Points {
+		pts = append(pts, timePoint(c.Serial, p.Started, p.GTdBPerK))
+	}
 	for _, i := range c.OutOfControl {
-		beyond[i] = true
 		v.Out = append(v.Out, c.Points[i])
 	}
-	var pts, out []opts.LineData
-	for i, p := range c.Points {
-		pts = append(pts, timePoint(c.Serial, p.Started, p.GTdBPerK))
-		if beyond[i] {
-			out = append(out, timePoint(c.Serial, p.Started, p.GTdBPerK))
-		}
-	}
-	first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
-	ch := dateChart(opts.YAxis{Type: "value", Name: "G/T (dB/K)", Scale: opts.Bool(true)}, "48", false)
-	ch.AddSeries("G/T", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
-	if c.Baseline >= 2 {
-		addControlLines(ch, first, last, c.CentreDB, c.LCLDB, c.UCLDB)
-	}
-	addBeyond(ch, out)
+	ch := individualsChart(opts.YAxis{Type: "value", Name: "G/T (dB/K)", Scale: opts.Bool(true)}, "48", false,
+		"G/T", pts, c.Points[0].Started, c.Points[len(c.Points)-1].Started, c.OutOfControl, c.Baseline, c.CentreDB, c.LCLDB, c.UCLDB)
 	opt, err := finish(ch, map[string]any{"unit": "dB/K", "dates": true}, nil)
 	caption := fmt.Sprintf("G/T of beam %s at %s GHz, run by run (%d runs).", c.Beam, fmtGHz(c.FrequencyHz), len(c.Points))
 	if c.Baseline >= 2 {
@@ -177,24 +167,12 @@ func timePoint(serial, started string, v float64) opts.LineData {
 // run date: every run, the centre line and the limits of the baseline,
 // and the runs beyond them marked.
 func rangeLossChart(id string, c reduce.RangeChart) (chartSpec, error) {
-	beyond := map[int]bool{}
-	for _, i := range c.OutOfControl {
-		beyond[i] = true
-	}
-	var pts, out []opts.LineData
-	for i, p := range c.Points {
+	var pts []opts.LineData
+	for _, p := range c.Points {
 		pts = append(pts, timePoint(p.Serial, p.Started, p.RangeLossDB))
-		if beyond[i] {
-			out = append(out, timePoint(p.Serial, p.Started, p.RangeLossDB))
-		}
 	}
-	first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
-	ch := dateChart(opts.YAxis{Type: "value", Name: "Range loss (dB)", Scale: opts.Bool(true)}, "64", true)
-	ch.AddSeries("range loss", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
-	if c.Baseline >= 2 {
-		addControlLines(ch, first, last, c.CentreDB, c.LCLDB, c.UCLDB)
-	}
-	addBeyond(ch, out)
+	ch := individualsChart(opts.YAxis{Type: "value", Name: "Range loss (dB)", Scale: opts.Bool(true)}, "64", true,
+		"range loss", pts, c.Points[0].Started, c.Points[len(c.Points)-1].Started, c.OutOfControl, c.Baseline, c.CentreDB, c.LCLDB, c.UCLDB)
 	opt, err := finish(ch, map[string]any{"unit": "dB", "dates": true}, nil)
 	caption := fmt.Sprintf("Range loss at %s GHz, run by run (%d runs). ", fmtGHz(c.FrequencyHz), len(c.Points))
 	switch {
@@ -255,6 +233,24 @@ func dateChart(y opts.YAxis, top string, zoom bool) *charts.Line {
 		o = append(o, charts.WithDataZoomOpts(opts.DataZoom{Type: "inside", XAxisIndex: []int{0}}))
 	}
 	ch.SetGlobalOptions(o...)
+	return ch
+}
+
+// individualsChart is an individuals control chart against the run date:
+// the points (timePoint, in time order, dated first to last), the centre
+// line and control limits when the baseline has two points or more, and
+// the points at the indexes beyond marked.
+func individualsChart(y opts.YAxis, top string, zoom bool, name string, pts []opts.LineData, first, last string, beyond []int, baseline int, centre, lcl, ucl float64) *charts.Line {
+	ch := dateChart(y, top, zoom)
+	ch.AddSeries(name, pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
+	if baseline >= 2 {
+		addControlLines(ch, first, last, centre, lcl, ucl)
+	}
+	var out []opts.LineData
+	for _, i := range beyond {
+		out = append(out, pts[i])
+	}
+	addBeyond(ch, out)
 	return ch
 }
 
