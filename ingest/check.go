@@ -23,10 +23,8 @@ func Check(root string) []*Problem {
 				probs = append(probs, Problems(err)...)
 				continue
 			}
-			d, p := a.Load(full)
+			_, p := a.Load(full)
 			probs = append(probs, p...)
-			// What reduce refuses of a loaded run (ReduceUnit calls it too).
-			probs = append(probs, LimitBeamPoints(full, d)...)
 		}
 	}
 	return SortProblems(probs)

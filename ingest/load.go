@@ -116,6 +116,10 @@ func (a *Archive) Load(r *Run) (*RunData, []*Problem) {
 		d.Absent = append(d.Absent, p)
 	}
 	sort.Strings(d.Absent)
+	// A run's beams are reduced, charted and written point by point: the
+	// beams past MaxRunBeamPoints are refused here, so that a unit's
+	// memory stays bounded.
+	l.problems = append(l.problems, LimitBeamPoints(r, d)...)
 	return d, SortProblems(l.problems)
 }
 

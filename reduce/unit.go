@@ -55,17 +55,6 @@ func ReduceUnit(in Input) (u *Unit) {
 			}
 		}
 	}
-	if in.Data != nil {
-		// A run's beams are reduced, charted and written point by point:
-		// the beams past ingest.MaxRunBeamPoints are refused, so that a
-		// unit's memory stays bounded. in.Data is the caller's: a copy is
-		// limited.
-		d := *in.Data
-		for _, p := range ingest.LimitBeamPoints(in.Run, &d) {
-			u.Problems = append(u.Problems, *p)
-		}
-		in.Data = &d
-	}
 	defer func() {
 		if r := recover(); r != nil {
 			file := ""

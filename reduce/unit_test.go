@@ -484,28 +484,3 @@ func TestReduceUnitNoAUTMatch(t *testing.T) {
 			len(u.Beams[0].GainBudget.Terms), len(u.Beams[1].GainBudget.Terms))
 	}
 }
-
-// A run whose beams hold more than ingest.MaxRunBeamPoints points in all
-// has the beams from the one past the limit refused (ingest's
-// LimitBeamPoints): they are not reduced, the others are, and the
-// caller's RunData is not changed.
-func TestReduceUnitBeamPointLimit(t *testing.T) {
-	// Four beams of a third of the limit: three fit, the fourth does not.
-	in := synthInput(synthOptions{points: ingest.MaxRunBeamPoints / 3, thetas: []float64{0, 30, 60, 60.5}})
-	u := ReduceUnit(in)
-	var refused []ingest.Problem
-	for _, p := range u.Problems {
-		if strings.Contains(p.Message, "beam points; expected at most") {
-			refused = append(refused, p)
-		}
-	}
-	if len(refused) != 1 || refused[0].File != in.Run.File || !strings.Contains(refused[0].Message, "beams[3].transmission") {
-		t.Fatalf("got %v, want beam 3 refused at its transmission line\n%s", refused, problemText(u))
-	}
-	if len(u.Beams) != 4 || len(u.Beams[2].GTdBPerK) == 0 || len(u.Beams[3].GTdBPerK) != 0 || u.Verdict != VerdictIncomplete {
-		t.Errorf("beams 0-2 must be reduced, beam 3 not, the unit incomplete: verdict %s", u.Verdict)
-	}
-	if in.Data.Beams[3].Transmission == nil {
-		t.Error("the caller's RunData was changed")
-	}
-}

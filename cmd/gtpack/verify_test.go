@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -10,6 +11,7 @@ import (
 	"testing"
 	"time"
 
+	"gtpack.example/gtpack/ingest/demo"
 	"gtpack.example/gtpack/render"
 )
 
@@ -431,4 +433,50 @@ func TestFileAddedToARunFolderIsSeen(t *testing.T) {
 	clean := filepath.Join(t.TempDir(), "clean")
 	runQuiet(t, "build", archive, "-o", clean, "--quiet")
 	sameSite(t, "the rebuilt site and a clean build", siteDigest(t, site), siteDigest(t, clean))
+}
+
+// A run whose beams hold more than ingest.MaxRunBeamPoints points in all
+// has the beams from the one past the limit refused as it is loaded, at
+// the run.yaml line of the transmission, by check and build alike: those
+// beams are not reduced, the others are, and the unit is incomplete.
+func TestBeamPointLimitRefusesTheLastBeams(t *testing.T) {
+	if testing.Short() {
+		t.Skip("writes a run of 4 beams of 40,001 points")
+	}
+	// Four beams of 40,001 points: three fit (120,003), the fourth passes
+	// 160,000.
+	archive := filepath.Join(t.TempDir(), "archive")
+	if _, err := demo.Write(archive, demo.Options{Units: 1, Seed: 2, Beams: 4, Points: 40001, NoCheckUnit: true}); err != nil {
+		t.Fatal(err)
+	}
+	const want = "beams[3].transmission"
+	if code, out := runOut("check", archive); code != exitRefused || !strings.Contains(out, want) || !strings.Contains(out, "beam points; expected at most 160,000") {
+		t.Errorf("check: %d\n%s", code, out)
+	}
+	site := filepath.Join(t.TempDir(), "site")
+	code, out := runOut("build", archive, "-o", site, "--quiet")
+	if code != exitRefused || strings.Count(out, "beam points; expected at most") != 1 || !strings.Contains(out, want) {
+		t.Fatalf("build: %d\n%s", code, out)
+	}
+	files, _ := filepath.Glob(filepath.Join(site, "units", "*", "result.json"))
+	if len(files) != 1 {
+		t.Fatalf("results %v", files)
+	}
+	data, err := os.ReadFile(files[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	var res struct {
+		Verdict string `json:"verdict"`
+		Beams   []struct {
+			ID string    `json:"id"`
+			GT []float64 `json:"gt_db_per_k"`
+		} `json:"beams"`
+	}
+	if err := json.Unmarshal(data, &res); err != nil {
+		t.Fatal(err)
+	}
+	if res.Verdict != "incomplete" || len(res.Beams) != 4 || len(res.Beams[2].GT) == 0 || len(res.Beams[3].GT) != 0 {
+		t.Errorf("verdict %s, beams %d: beams 0-2 must be reduced and beam 3 not", res.Verdict, len(res.Beams))
+	}
 }
