@@ -93,7 +93,7 @@ func (e *notSiteError) Error() string { return e.msg }
 // reads it for every unit to tell which changed. The unit's full summary
 // for the fleet pages (its limits and boresight trace, some 30 kB) is
 // kept beside it, in .gtpack/summaries/<serial>.json; the record holds
-// only the summary's head (Limits and Boresight empty), which is all the
+// only the summary's head (Limits, Boresight and RangeChecks empty), which is all the
 // unit stage needs.
 type unitState struct {
 	Serial      string   `json:"serial"`
@@ -789,7 +789,7 @@ func (t *txn) putState(st *unitState, withSummary bool) error {
 		}
 	}
 	rec := *st
-	rec.Summary.Limits, rec.Summary.Boresight = nil, nil
+	rec.Summary.Limits, rec.Summary.Boresight, rec.Summary.RangeChecks = nil, nil, nil
 	data, err := json.Marshal(&rec)
 	if err != nil {
 		return err
