@@ -132,20 +132,33 @@ func commonFreqOpts(c *charts.Line, yName string, legend bool, grid opts.Grid) {
 // csvCols is the column index of each header name of the unit's CSV.
 type csvCols map[string]int
 
-func (c csvCols) col(beam, quantity string) (int, bool) {
-	i, ok := c[beam+"_"+quantity]
-	if !ok {
-		i, ok = c[quantity] // shared column (range loss and drift)
+// col is the column of a beam's quantity (by its key in beamQuantities):
+// the beam's own, else the shared one.
+func (c csvCols) col(beam, key string) (int, bool) {
+	if i, ok := c.beam(beam, key); ok {
+		return i, ok
 	}
+	return c.shared(key)
+}
+
+// beam is the column of a beam's quantity, shared the column of a shared
+// quantity.
+func (c csvCols) beam(beam, key string) (int, bool) {
+	i, ok := c[beam+"_"+quantityOf(key).csv]
 	return i, ok
 }
 
-// beamLines adds one line per beam for a quantity of the CSV; it returns
-// the number of series added.
-func beamLines(c *charts.Line, u *reduce.Unit, cols csvCols, quantity string) int {
+func (c csvCols) shared(key string) (int, bool) {
+	i, ok := c[quantityOf(key).csv]
+	return i, ok
+}
+
+// beamLines adds one line per beam for a quantity of the CSV (by its key);
+// it returns the number of series added.
+func beamLines(c *charts.Line, u *reduce.Unit, cols csvCols, key string) int {
 	n := 0
 	for _, b := range u.Beams {
-		i, ok := cols.col(b.ID, quantity)
+		i, ok := cols.col(b.ID, key)
 		if !ok {
 			continue
 		}
@@ -186,7 +199,7 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 	var choices []focusChoice
 	for _, b := range u.Beams {
 		gi, ok1 := cols.col(b.ID, "gt_db_per_k")
-		ui, ok2 := cols.col(b.ID, "gt_u_db")
+		ui, ok2 := cols.col(b.ID, "gt_expanded_uncertainty_db")
 		if !ok1 || !ok2 {
 			continue
 		}
@@ -244,12 +257,13 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 			"Scroll or drag the slider to zoom."}, err
 }
 
-// quantityChart is one CSV quantity against frequency for every beam.
-func quantityChart(u *reduce.Unit, cols csvCols, id, title, quantity, yName, unit, caption string) (chartSpec, bool, error) {
+// quantityChart is one CSV quantity (by its key) against frequency for
+// every beam.
+func quantityChart(u *reduce.Unit, cols csvCols, id, title, key, yName, unit, caption string) (chartSpec, bool, error) {
 	c := charts.NewLine()
 	commonFreqOpts(c, yName, true, freqGrid)
 	c.AddDataset(opts.Dataset{Source: []any{}})
-	if beamLines(c, u, cols, quantity) == 0 {
+	if beamLines(c, u, cols, key) == 0 {
 		return chartSpec{}, false, nil
 	}
 	opt, err := finish(c, map[string]any{"csv": true, "unit": unit}, nil)
@@ -275,17 +289,17 @@ func rangeChart(u *reduce.Unit, cols csvCols) (chartSpec, bool, error) {
 			charts.WithLineStyleOpts(ls))
 		n++
 	}
-	if i, ok := cols["range_loss_db"]; ok {
+	if i, ok := cols.shared("range_loss_db"); ok {
 		add("range loss", i, 0, false)
-		if j, ok := cols["range_drift_db"]; ok {
+		if j, ok := cols.shared("range_drift_db"); ok {
 			add("drift", j, 1, true)
 		}
 	} else {
 		for _, b := range u.Beams {
-			if i, ok := cols[b.ID+"_range_loss_db"]; ok {
+			if i, ok := cols.beam(b.ID, "range_loss_db"); ok {
 				add(b.ID+" range loss", i, 0, false)
 			}
-			if j, ok := cols[b.ID+"_range_drift_db"]; ok {
+			if j, ok := cols.beam(b.ID, "range_drift_db"); ok {
 				add(b.ID+" drift", j, 1, true)
 			}
 		}

@@ -44,11 +44,12 @@ func UnitCSV(u *reduce.Unit) []byte {
 	return b
 }
 
+// csvColumn is a column of the per-frequency CSV: a quantity of a beam,
+// or of every beam when shared.
 type csvColumn struct {
-	name     string
-	beam     int
-	get      func(b *reduce.Beam) []float64
-	decimals int
+	name string
+	beam int
+	q    *beamQuantity
 }
 
 func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
@@ -75,47 +76,21 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 
 	shared := sharedRange(u.Beams)
 	var columns []csvColumn
-	rl := func(b *reduce.Beam) []float64 { return b.RangeLossDB }
-	drift := func(b *reduce.Beam) []float64 { return b.RangeDriftDB }
-	if shared && len(u.Beams) > 0 {
-		columns = append(columns, csvColumn{"range_loss_db", 0, rl, 3})
-		if len(u.Beams[0].RangeDriftDB) > 0 {
-			columns = append(columns, csvColumn{"range_drift_db", 0, drift, 4})
+	if shared {
+		for i := range beamQuantities {
+			q := &beamQuantities[i]
+			if q.csv != "" && q.shared && len(q.get(&u.Beams[0])) > 0 {
+				columns = append(columns, csvColumn{q.csv, 0, q})
+			}
 		}
 	}
 	for i := range u.Beams {
-		b := &u.Beams[i]
-		add := func(q string, get func(b *reduce.Beam) []float64) {
-			if len(get(b)) > 0 {
-				d := 3
-				if q == "range_drift_db" {
-					d = 4 // drift is hundredths of a dB
-				}
-				columns = append(columns, csvColumn{b.ID + "_" + q, i, get, d})
+		for j := range beamQuantities {
+			q := &beamQuantities[j]
+			if q.csv != "" && !(shared && q.shared) && len(q.get(&u.Beams[i])) > 0 {
+				columns = append(columns, csvColumn{u.Beams[i].ID + "_" + q.csv, i, q})
 			}
 		}
-		add("s21_db", func(b *reduce.Beam) []float64 { return b.S21DB })
-		if !shared {
-			add("range_loss_db", rl)
-			add("range_drift_db", drift)
-		}
-		add("gain_dbi", func(b *reduce.Beam) []float64 { return b.GainDBi })
-		add("gain_u_db", func(b *reduce.Beam) []float64 { return b.GainExpandedUncertaintyDB })
-		add("gt_db_per_k", func(b *reduce.Beam) []float64 { return b.GTdBPerK })
-		add("gt_u_db", func(b *reduce.Beam) []float64 { return b.GTExpandedUncertaintyDB })
-		add("noise_rel_kt0_db", func(b *reduce.Beam) []float64 { return b.NoiseRelativeKT0DB })
-		add("gt_other_form_db_per_k", func(b *reduce.Beam) []float64 {
-			if b.OtherForm == nil {
-				return nil
-			}
-			return b.OtherForm.GTdBPerK
-		})
-		add("operating_gt_db_per_k_derived", func(b *reduce.Beam) []float64 {
-			if b.Projection == nil {
-				return nil
-			}
-			return b.Projection.OperatingGTdBPerK
-		})
 	}
 	header := make([]string, 0, len(columns)+1)
 	header = append(header, "frequency_hz")
@@ -145,7 +120,7 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	}
 	vals := make([][]float64, len(columns))
 	for j, c := range columns {
-		vals[j] = c.get(&u.Beams[c.beam])
+		vals[j] = c.q.get(&u.Beams[c.beam])
 	}
 	// The rows are numbers, which never need quoting: they are appended
 	// as encoding/csv would write them, fields joined by commas, each
@@ -166,7 +141,7 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 		for j, c := range columns {
 			out = append(out, ',')
 			if k := at[c.beam]; k >= 0 && k < len(vals[j]) && finite(vals[j][k]) {
-				out = appendDecimal(out, vals[j][k], c.decimals)
+				out = appendDecimal(out, vals[j][k], c.q.decimals)
 			}
 		}
 		out = append(out, '\n')
@@ -174,9 +149,9 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	return out, cols
 }
 
-// sharedRange is true when every beam has the same grid, range loss and
-// drift: they come from one reference measurement, so a single column
-// holds them.
+// sharedRange is true when every beam has the same grid and the same
+// values of every shared quantity (range loss and drift): they come from
+// one reference measurement, so a single column holds each.
 func sharedRange(beams []reduce.Beam) bool {
 	if len(beams) == 0 {
 		return false
@@ -192,10 +167,16 @@ func sharedRange(beams []reduce.Beam) bool {
 		}
 		return true
 	}
-	b0 := beams[0]
-	for _, b := range beams[1:] {
-		if !eq(b.FrequencyHz, b0.FrequencyHz) || !eq(b.RangeLossDB, b0.RangeLossDB) || !eq(b.RangeDriftDB, b0.RangeDriftDB) {
+	b0 := &beams[0]
+	for i := range beams[1:] {
+		b := &beams[1+i]
+		if !eq(b.FrequencyHz, b0.FrequencyHz) {
 			return false
+		}
+		for j := range beamQuantities {
+			if q := &beamQuantities[j]; q.shared && !eq(q.get(b), q.get(b0)) {
+				return false
+			}
 		}
 	}
 	return true
@@ -390,12 +371,12 @@ func reportModel(u *reduce.Unit) (*reportView, error) {
 		}
 		v.Charts = append(v.Charts, gt)
 	}
-	type q struct{ id, title, quantity, y, unit, caption string }
+	type q struct{ id, title, key, y, unit, caption string }
 	for _, c := range []q{
 		{"chart-gain", "Gain against frequency", "gain_dbi", "Gain (dBi)", "dBi", "Realized gain of the unit, active gain included (S21 of the unit plus range loss)."},
-		{"chart-noise", "Output noise density", "noise_rel_kt0_db", "Noise above kT₀ (dB)", "dB", "Output noise density of each beam above k·T₀ (T₀ = 290 K), after the smoothing stated in the beam table."},
+		{"chart-noise", "Output noise density", "noise_relative_kt0_db", "Noise above kT₀ (dB)", "dB", "Output noise density of each beam above k·T₀ (T₀ = 290 K), after the smoothing stated in the beam table."},
 	} {
-		spec, ok, err := quantityChart(u, cols, c.id, c.title, c.quantity, c.y, c.unit, c.caption)
+		spec, ok, err := quantityChart(u, cols, c.id, c.title, c.key, c.y, c.unit, c.caption)
 		if err != nil {
 			return nil, err
 		}

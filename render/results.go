@@ -157,42 +157,18 @@ func checkUnitShapes(u *reduce.Unit) error {
 	return nil
 }
 
-// checkBeamLengths verifies that the beam's per-frequency lists are either
-// absent or as long as its frequency list.
+// checkBeamLengths verifies that the beam's per-frequency lists
+// (beamQuantities) are either absent or as long as its frequency list.
 func checkBeamLengths(b *reduce.Beam) error {
 	n := len(b.FrequencyHz)
-	type list struct {
-		name string
-		v    []float64
-		opt  bool
-	}
-	lists := []list{
-		{"s21_db", b.S21DB, false},
-		{"range_loss_db", b.RangeLossDB, false},
-		{"range_drift_db", b.RangeDriftDB, true},
-		{"gain_dbi", b.GainDBi, false},
-		{"gain_expanded_uncertainty_db", b.GainExpandedUncertaintyDB, false},
-		{"gt_db_per_k", b.GTdBPerK, false},
-		{"gt_expanded_uncertainty_db", b.GTExpandedUncertaintyDB, false},
-		{"noise_relative_kt0_db", b.NoiseRelativeKT0DB, true},
-	}
-	if p := b.Projection; p != nil {
-		lists = append(lists,
-			list{"projection.system_noise_k", p.SystemNoiseK, true},
-			list{"projection.receiver_noise_k", p.ReceiverNoiseK, true},
-			list{"projection.operating_gt_db_per_k", p.OperatingGTdBPerK, true})
-	}
-	if b.OtherForm != nil {
-		lists = append(lists,
-			list{"other_form.gt_db_per_k", b.OtherForm.GTdBPerK, true},
-			list{"other_form.difference_db", b.OtherForm.DifferenceDB, true})
-	}
-	for _, l := range lists {
-		if len(l.v) == 0 && (l.opt || n == 0) {
+	for i := range beamQuantities {
+		q := &beamQuantities[i]
+		v := q.get(b)
+		if len(v) == 0 && (q.optional || n == 0) {
 			continue
 		}
-		if len(l.v) != n {
-			return fmt.Errorf("%s has %d values, expected %d (one per frequency)", l.name, len(l.v), n)
+		if len(v) != n {
+			return fmt.Errorf("%s has %d values, expected %d (one per frequency)", q.key, len(v), n)
 		}
 	}
 	if err := checkBudgetLengths(&b.GainBudget, n); err != nil {

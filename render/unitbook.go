@@ -9,6 +9,7 @@ import (
 	"hash/crc32"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"sync"
 	"time"
@@ -27,9 +28,8 @@ import (
 // unit then adds its cells, written straight into the skeleton's sheets
 // (xlsxrows.go), fills the slots, and copies the skeleton's other parts
 // already compressed. excelize's share of a unit workbook, most of it its
-// charts, is so paid once per shape instead of once per unit (a workbook
-// of 16 beams of 801 points went from 42-49 ms to 28-29 ms); the bytes of
-// a workbook do not depend on whether its skeleton was made for it or
+// charts, is so paid once per shape instead of once per unit; the bytes
+// of a workbook do not depend on whether its skeleton was made for it or
 // kept.
 
 // unitShape is everything of a unit that its workbook's skeleton depends
@@ -44,10 +44,10 @@ type unitShape struct {
 type beamShape struct {
 	id         string
 	theta, phi float64
-	n          int        // frequency points
-	lo, hi     float64    // the frequency axis, GHz: the band rounded out to 0.1 GHz
-	cols       []xlColumn // the frequency table's columns
-	firstGrid  bool       // on the first beam's grid: a series of the Summary chart
+	n          int           // frequency points
+	lo, hi     float64       // the frequency axis, GHz: the band rounded out to 0.1 GHz
+	cols       []sheetColumn // the frequency table's columns
+	firstGrid  bool          // on the first beam's grid: a series of the Summary chart
 }
 
 // axis is the frequency axis of the beam's charts.
@@ -97,6 +97,8 @@ func (s *unitShape) key() string {
 			b = strconv.AppendQuote(b, c.header)
 			b = strconv.AppendQuote(b, c.format)
 			b = strconv.AppendFloat(b, c.width, 'g', -1, 64)
+			b = strconv.AppendQuote(b, c.key)
+			b = strconv.AppendBool(b, c.limit)
 		}
 	}
 	return string(b)
@@ -240,7 +242,8 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	summaryFrame(b, sk.summary, s, sk.beams, gtValues)
 	b.table(sk.limits, 1, limitsColumns, true)
 	if s.limits > 0 {
-		b.verdictRules(sk.limits, fmt.Sprintf("J2:J%d", s.limits+1))
+		verdict := b.colName(1 + slices.IndexFunc(limitsColumns, func(c xlColumn) bool { return c.header == "Verdict" }))
+		b.verdictRules(sk.limits, fmt.Sprintf("%s2:%s%d", verdict, verdict, s.limits+1))
 	}
 	b.table(sk.uncertainty, 1, uncertaintyColumns, true)
 	b.table(sk.flags, 1, flagsColumns, true)

@@ -628,14 +628,6 @@ func valueAt(xs []float64, k int) float64 {
 
 func toGHz(hz float64) float64 { return hz / 1e9 }
 
-// quantityUnit is the unit of a limit's quantity.
-func quantityUnit(q string) string {
-	if q == "gain" {
-		return "dBi"
-	}
-	return "dB/K"
-}
-
 // startedTime is the run's start as a time, or the epoch when it does not
 // parse: it dates the workbook, so that the file does not depend on when it
 // was written.
@@ -665,9 +657,9 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 		cols[i] = beamColumns(bm, u.Limits)
 		bs := beamShape{id: bm.ID, theta: bm.ThetaDeg, phi: bm.PhiDeg, n: len(bm.FrequencyHz),
 			lo: bandEdge(bm.FrequencyHz, false), hi: bandEdge(bm.FrequencyHz, true),
-			firstGrid: slices.Equal(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]xlColumn, len(cols[i]))}
+			firstGrid: slices.Equal(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]sheetColumn, len(cols[i]))}
 		for j, c := range cols[i] {
-			bs.cols[j] = c.xlColumn
+			bs.cols[j] = c.sheetColumn
 		}
 		shape.beams[i] = bs
 	}
@@ -804,7 +796,8 @@ func summaryFrame(b *xlBook, sheet string, s *unitShape, beamSheets, gtValues []
 	verdictRow, limitsHeader, beamsHeader := summaryLayout(s.limits)
 	b.verdictRules(sheet, b.cellName(2, verdictRow))
 	if s.limits > 0 {
-		b.verdictRules(sheet, fmt.Sprintf("F%d:F%d", limitsHeader+1, limitsHeader+s.limits))
+		verdict := b.colName(1 + slices.Index(summaryLimitColumns, "Verdict"))
+		b.verdictRules(sheet, fmt.Sprintf("%s%d:%s%d", verdict, limitsHeader+1, verdict, limitsHeader+s.limits))
 	}
 	var series []chartSeries
 	for i, bm := range s.beams {
@@ -861,33 +854,54 @@ func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) 
 // beamColumn is a column of a beam sheet: values from index start of the
 // grid; frequencies in Hz, shown in GHz, when hz is set.
 type beamColumn struct {
-	xlColumn
+	sheetColumn
 	values []float64
 	start  int
 	hz     bool
 }
 
-// beamColumns lists the columns of a beam sheet. The limit and margin
-// columns exist only where reduce gave the limit on the beam's grid
-// (Beam.LimitCurves): render evaluates no limit itself; the margin is the quantity minus the limit, the
-// definition of method.md section 7.
+// sheetColumn is what a beam sheet's skeleton knows of a column: its
+// header, format and width, and the key of its quantity in beamQuantities
+// ("" for the frequency and the margins); a limit column has the key of
+// the quantity it limits.
+type sheetColumn struct {
+	xlColumn
+	key   string
+	limit bool
+}
+
+// beamColumns lists the columns of a beam sheet: the frequency, then the
+// beam's quantities on the sheet in the order of beamQuantity.sheet. The
+// limit and margin columns exist only where reduce gave the limit on the
+// beam's grid (Beam.LimitCurves): render evaluates no limit itself; the
+// margin is the quantity minus the limit, the definition of method.md
+// section 7.
 func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
-	cols := []beamColumn{
-		{xlColumn{"Frequency (GHz)", nfGHz, 14}, bm.FrequencyHz, 0, true},
-		{xlColumn: xlColumn{"S21 (dB)", nfDB, 11}, values: bm.S21DB},
-		{xlColumn: xlColumn{"Range loss (dB)", nfDB, 11}, values: bm.RangeLossDB},
-		{xlColumn: xlColumn{"Gain (dBi)", nfDB, 11}, values: bm.GainDBi},
-		{xlColumn: xlColumn{"Gain U (dB)", nfDB, 11}, values: bm.GainExpandedUncertaintyDB},
-		{xlColumn: xlColumn{"Noise above kT0 (dB)", nfDB, 12}, values: bm.NoiseRelativeKT0DB},
-		{xlColumn: xlColumn{"G/T (dB/K)", nfDB, 11}, values: bm.GTdBPerK},
-		{xlColumn: xlColumn{"G/T U (dB)", nfDB, 11}, values: bm.GTExpandedUncertaintyDB},
-	}
-	for _, c := range bm.LimitCurves {
-		unit := quantityUnit(c.Quantity)
-		x := bm.GTdBPerK
-		if c.Quantity == "gain" {
-			x = bm.GainDBi
+	cols := []beamColumn{{sheetColumn{xlColumn: xlColumn{"Frequency (GHz)", nfGHz, 14}}, bm.FrequencyHz, 0, true}}
+	var onSheet []*beamQuantity
+	for i := range beamQuantities {
+		if q := &beamQuantities[i]; q.sheet > 0 && (q.onSheet == nil || q.onSheet(bm)) {
+			onSheet = append(onSheet, q)
 		}
+	}
+	sort.SliceStable(onSheet, func(i, j int) bool { return onSheet[i].sheet < onSheet[j].sheet })
+	pairs := limitColumns(bm)
+	for _, q := range onSheet {
+		if q.sheet > sheetLimits {
+			cols, pairs = append(cols, pairs...), nil
+		}
+		cols = append(cols, beamColumn{sheetColumn: sheetColumn{xlColumn{q.header(bm), q.format, q.width}, q.key, false}, values: q.get(bm)})
+	}
+	return append(cols, pairs...)
+}
+
+// limitColumns are a beam sheet's limit and margin columns, a pair for
+// each of the beam's limit curves.
+func limitColumns(bm *reduce.Beam) []beamColumn {
+	var cols []beamColumn
+	for _, c := range bm.LimitCurves {
+		q := limitQuantity(c.Quantity)
+		x := q.get(bm)
 		// The margin of the values as the sheet holds them, so that it is
 		// the difference of the two cells to the last digit.
 		margin := make([]float64, len(c.LimitDB))
@@ -895,22 +909,8 @@ func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 			margin[i] = resultValue(valueAt(x, c.Start+i)) - resultValue(l)
 		}
 		cols = append(cols,
-			beamColumn{xlColumn: xlColumn{fmt.Sprintf("Limit %s (%s)", c.Name, unit), nfDB, 14}, values: c.LimitDB, start: c.Start},
-			beamColumn{xlColumn: xlColumn{fmt.Sprintf("Margin %s (dB)", c.Name), nfDB, 14}, values: margin, start: c.Start})
-	}
-	if bm.RangeDriftDB != nil {
-		cols = append(cols, beamColumn{xlColumn: xlColumn{"Range drift (dB)", nfDB, 11}, values: bm.RangeDriftDB})
-	}
-	if o := bm.OtherForm; o != nil {
-		cols = append(cols,
-			beamColumn{xlColumn: xlColumn{fmt.Sprintf("G/T %s (dB/K)", o.Form), nfDB, 14}, values: o.GTdBPerK},
-			beamColumn{xlColumn: xlColumn{"Form difference (dB)", nfDB, 12}, values: o.DifferenceDB})
-	}
-	if p := bm.Projection; p != nil {
-		cols = append(cols,
-			beamColumn{xlColumn: xlColumn{"System noise (K)", nfDB, 12}, values: p.SystemNoiseK},
-			beamColumn{xlColumn: xlColumn{"Receiver noise (K)", nfDB, 12}, values: p.ReceiverNoiseK},
-			beamColumn{xlColumn: xlColumn{fmt.Sprintf("G/T at %g K, derived (dB/K)", p.OperatingAntennaK), nfDB, 16}, values: p.OperatingGTdBPerK})
+			beamColumn{sheetColumn: sheetColumn{xlColumn{fmt.Sprintf("Limit %s (%s)", c.Name, q.unit), nfDB, 14}, q.key, true}, values: c.LimitDB, start: c.Start},
+			beamColumn{sheetColumn: sheetColumn{xlColumn: xlColumn{fmt.Sprintf("Margin %s (dB)", c.Name), nfDB, 14}}, values: margin, start: c.Start})
 	}
 	return cols
 }
@@ -921,12 +921,13 @@ func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
 // frequencies).
 func beamSheetFrame(b *xlBook, sheet string, bm *beamShape) string {
 	gt := ""
-	if n := bm.n; n > 0 {
+	col := 1 + slices.IndexFunc(bm.cols, func(c sheetColumn) bool { return c.key == "gt_db_per_k" && !c.limit })
+	if n := bm.n; n > 0 && col > 0 {
 		// Series names are formulas: they point at the header cells.
 		categories := b.ref(sheet, 1, 2, n+1)
-		series := []chartSeries{{name: b.ref(sheet, 7, 1, 1), values: b.ref(sheet, 7, 2, n+1)}}
+		series := []chartSeries{{name: b.ref(sheet, col, 1, 1), values: b.ref(sheet, col, 2, n+1)}}
 		for ci, c := range bm.cols {
-			if strings.HasPrefix(c.header, "Limit ") && strings.HasSuffix(c.header, "(dB/K)") {
+			if c.key == "gt_db_per_k" && c.limit {
 				series = append(series, chartSeries{name: b.ref(sheet, ci+1, 1, 1), values: b.ref(sheet, ci+1, 2, n+1), dash: true})
 			}
 		}
