@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -13,14 +14,16 @@ import (
 	"gtpack.example/gtpack/reduce"
 )
 
-// resultsCSVHeader is the column list of results.csv (the site contract).
-var resultsCSVHeader = []string{
-	"serial", "product", "started", "unit_verdict", "beam", "limit", "quantity", "statistic",
-	"worst_margin_db", "at_frequency_ghz", "value", "limit_value", "expanded_uncertainty_db", "verdict",
-	// The report's issue state, appended so that the columns before keep
-	// their places.
-	"issue_state", "revision", "report_number",
-}
+// The columns of results.csv (the site contract): the unit's, its limit's
+// (empty for a unit without limits) and the report's issue state, appended
+// so that the columns before keep their places.
+var (
+	resultsUnitColumns  = []string{"serial", "product", "started", "unit_verdict"}
+	resultsLimitColumns = []string{"beam", "limit", "quantity", "statistic",
+		"worst_margin_db", "at_frequency_ghz", "value", "limit_value", "expanded_uncertainty_db", "verdict"}
+	resultsIssueColumns = []string{"issue_state", "revision", "report_number"}
+	resultsCSVHeader    = slices.Concat(resultsUnitColumns, resultsLimitColumns, resultsIssueColumns)
+)
 
 // ResultsCSV returns results.csv: a header and one row per unit, beam and
 // limit (one per reduce.LimitResult), units sorted by serial, limits in the
@@ -80,7 +83,7 @@ func (r *ResultsCSVWriter) Unit(u *reduce.UnitSummary) error {
 	}
 	issue := []string{safeCSVText(u.IssueState), revision, safeCSVText(u.ReportNumber)}
 	if len(u.Limits) == 0 {
-		return r.w.Write(append(append(append(r.row[:0], head...), "", "", "", "", "", "", "", "", "", ""), issue...))
+		return r.w.Write(append(append(append(r.row[:0], head...), make([]string, len(resultsLimitColumns))...), issue...))
 	}
 	for _, l := range u.Limits {
 		row := append(append(r.row[:0], head...),
