@@ -224,6 +224,11 @@ func buildSkeleton(s *unitShape) (*unitSkeleton, error) {
 	for _, f := range unitFormats {
 		b.numStyle(f)
 	}
+	for _, bm := range s.beams { // a format of the beam quantities not among them
+		for _, c := range bm.cols {
+			b.numStyle(c.format)
+		}
+	}
 	sk := &unitSkeleton{header: b.header, title: b.title}
 	sk.summary = b.addSheet("Summary")
 	sk.beams = make([]string, len(s.beams))
