@@ -35,7 +35,8 @@ type beamQuantity struct {
 	// the column when it has values. A shared quantity takes one column
 	// <csv> for all beams, before the beams' columns, when every beam has
 	// the same grid and the same values of every shared quantity
-	// (sharedRange). decimals is the rounding of the CSV's values.
+	// (sharedRange); the column is there without values too unless the
+	// quantity is optional. decimals is the rounding of the CSV's values.
 	csv      string
 	shared   bool
 	decimals int

@@ -77,9 +77,11 @@ func unitCSV(u *reduce.Unit) ([]byte, csvCols) {
 	shared := sharedRange(u.Beams)
 	var columns []csvColumn
 	if shared {
+		// A shared list that result.json always has (the range loss) has its
+		// column even when the beams have no values.
 		for i := range beamQuantities {
 			q := &beamQuantities[i]
-			if q.csv != "" && q.shared && len(q.get(&u.Beams[0])) > 0 {
+			if q.csv != "" && q.shared && (!q.optional || len(q.get(&u.Beams[0])) > 0) {
 				columns = append(columns, csvColumn{q.csv, 0, q})
 			}
 		}
