@@ -49,12 +49,6 @@ const maxTouchstonePorts = 1000
 // appear in errors; its extension (.sNp / .ts) gives the port count for version 1.
 // Errors are *Problem with File and Line.
 func ReadTouchstone(r io.Reader, name string) (*Network, error) {
-	return readTouchstone(r, name, true)
-}
-
-// readTouchstone is ReadTouchstone, reading plain data lines straight from
-// the buffer (plainLines) if plain is set; the tests read files both ways.
-func readTouchstone(r io.Reader, name string, plain bool) (*Network, error) {
 	buf := tsBufferPool.Get().(*tsBuffers)
 	buf.br.Reset(r)
 	t := &tsReader{
@@ -68,9 +62,6 @@ func readTouchstone(r io.Reader, name string, plain bool) (*Network, error) {
 		format:   "MA",
 		order:    "21_12",
 		matrix:   "full",
-	}
-	if !plain {
-		t.notPlain = tsMaxNotPlain
 	}
 	// The input's size, when it tells it, lets the arrays be sized once
 	// after the first point instead of growing by copying.
@@ -162,70 +153,6 @@ type tsReader struct {
 	pairs    []complex128 // the values of one point as complex numbers
 	lineVals []float64    // the numbers of the current line
 	ws       []complex128 // scratch matrices for conversion
-	// notPlain counts the lines of numbers plainLines did not take; at
-	// tsMaxNotPlain every line goes through nextLine and data.
-	notPlain int
-}
-
-// tsMaxNotPlain is how many lines of numbers plainLines leaves to data
-// before it stays off for the file: a file whose points are wrapped, or
-// whose numbers are in forms tsScanFast does not read, has its lines read
-// twice no more than this.
-const tsMaxNotPlain = 8
-
-// plainLines reads the data lines that need none of data's rules straight
-// from the read buffer, without finding their ends first: a line that
-// holds exactly one frequency point of the network data, its frequency
-// above the one before, its numbers in the form tsScanFast reads, with no
-// comment. Those are nearly all the lines of a data file. It returns at
-// the first line that is anything else, left unread for nextLine and
-// data.
-func (t *tsReader) plainLines() error {
-	if t.inNoise || t.ended || t.inInfo || t.refPending || len(t.rec) > 0 {
-		return nil
-	}
-	buf, _ := t.br.Peek(t.br.Buffered())
-	// The scan reads tsFastPad bytes past what it is given: these are
-	// buffered, and a line that reaches into them is left to nextLine.
-	if len(buf) <= tsFastPad {
-		return nil
-	}
-	b := buf[:len(buf)-tsFastPad]
-	if cap(t.lineVals) < t.recLen+1 {
-		t.lineVals = make([]float64, 0, t.recLen+1)
-	}
-	out := t.lineVals[:t.recLen+1]
-	start := 0
-	defer func() { t.br.Discard(start) }()
-	for start < len(b) {
-		i := start
-		for i < len(b) && tsBlankTab[b[i]] {
-			i++
-		}
-		if i >= len(b) || !(b[i]-'0' <= 9 || b[i] == '-' || b[i] == '+' || b[i] == '.') {
-			return nil // a blank line, a comment, a keyword: nextLine's
-		}
-		i, k := tsScanFast(b, i, out, 0)
-		if i >= len(b) || b[i] != '\n' && bytes.IndexByte(b[i:], '\n') < 0 {
-			return nil // the line goes on past b: nextLine reads it
-		}
-		last := t.net.FrequencyHz[len(t.net.FrequencyHz)-1]
-		if b[i] != '\n' || k != t.recLen || !(out[0]*t.unit > last) || math.IsInf(out[0]*t.unit, 0) {
-			// Not a plain line: a number in another form, a comment
-			// after the numbers, a wrapped point, the noise block, an
-			// error.
-			t.notPlain++
-			return nil
-		}
-		t.line++
-		t.consumed += int64(i + 1 - start)
-		t.recStart, t.recLines, t.recFirst = t.line, 1, k
-		start = i + 1
-		if err := t.completeRecord(out[:k]); err != nil {
-			return err
-		}
-	}
-	return nil
 }
 
 func (t *tsReader) errf(line int, format string, args ...any) error {
@@ -282,11 +209,6 @@ func tsPortsFromName(name string) int {
 func (t *tsReader) read() (*Network, error) {
 	t.nfreq, t.nnoise = -1, -1
 	for {
-		if t.net != nil && len(t.net.FrequencyHz) > 0 && t.notPlain < tsMaxNotPlain {
-			if err := t.plainLines(); err != nil {
-				return nil, err
-			}
-		}
 		raw, ok, err := t.nextLine()
 		if err != nil {
 			return nil, err
@@ -647,10 +569,6 @@ func tsParseNumber(b []byte) (float64, bool) {
 }
 
 var tsSpaceTab = [256]bool{' ': true, '\t': true, '\r': true, '\n': true, '\v': true, '\f': true}
-
-// tsBlankTab is tsSpaceTab without the line feed: the white space within
-// a line.
-var tsBlankTab = [256]bool{' ': true, '\t': true, '\r': true, '\v': true, '\f': true}
 
 // tsFields splits a data line the way tsScanLine does: at ASCII white
 // space only (bytes.Fields would also split at Unicode spaces such as
