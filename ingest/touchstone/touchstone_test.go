@@ -12,6 +12,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -960,6 +961,71 @@ func TestNumbers(t *testing.T) {
 			line, bad := scanLine([]byte(s+" \t"+s), nil)
 			if bad != -1 || len(line) != 2 || math.Float64bits(line[0]) != math.Float64bits(want) || math.Float64bits(line[1]) != math.Float64bits(want) {
 				t.Fatalf("line %q: got %v (bad %d), want %v twice", s+" "+s, line, bad, want)
+			}
+		}
+	}
+}
+
+// TestScanFast checks the line scanner, with room after the line (where
+// scanFast reads past its end) and without (the line is copied), against
+// each token read alone by parseNumber (scan, which TestNumbers checks
+// against strconv.ParseFloat): the same numbers bit for bit, the same bad
+// token. The bytes after the line are random digits, points, signs and
+// spaces, which must not change a number that ends the line.
+func TestScanFast(t *testing.T) {
+	rng := rand.New(rand.NewPCG(13, 14))
+	odd := []string{"1.5", "-0.25", "+1.25", ".5", "-.5", "5.", "-5.", "0.", "123.456", "999.999", "1234.5",
+		"-0", "12", "1e5", "1.2e3", "1.2E-3", "1.2.3", "1.5-2", "-", "+", ".", "--1", "1x", "0x10", "١",
+		"0.1234567890123456789", "1.234567890123456789", "12.34567890123456789", "123.4567890123456789",
+		"0.000000000000000001", "9.999999999999999999", "900.71992547409931", "9007199.254740993",
+		"0.12345678", "0.123456789", "0.1234567890123456", "0.12345678901234567", "-0.0000000000000000",
+		"0.000000000000000000000001", "0.000000000000000000000123", "-0.00000000000000000001234", "1.000000000000000000000000",
+		"0.00000000000000000000001", "0.0000000000000000000000012345678",
+		"1000000000", "1000000000.5", "-999999999999999", "123456789012345", "1234567890123456", "12345678901234.56789",
+		"123456789012345.6789012345", "99999999999.99999999", "18446744073709551615", "0000000000000001.5",
+		"1.5e-05", "-9.87654321E+02", "1e-400", "1e308", "1e309", "2.5e", "2.5e+", "2.5e-", "2.5e1234", "2.5e0005", "4.9e-324",
+		"1.7976931348623157e308", "9007199254740993e-5", "5e22", "5e23", "123456789012345678e-30", "1.e5", ".5e-3", "1e+"}
+	seps := []string{" ", "\t", "  ", " \t "}
+	for it := 0; it < 300000; it++ {
+		var line []byte
+		for j, nt := 0, 1+rng.IntN(9); j < nt; j++ {
+			if j > 0 {
+				line = append(line, seps[rng.IntN(len(seps))]...)
+			}
+			switch x := (rng.Float64() - 0.5) * math.Pow(10, float64(rng.IntN(8)-3)); rng.IntN(4) {
+			case 0:
+				line = append(line, odd[rng.IntN(len(odd))]...)
+			case 1:
+				line = strconv.AppendFloat(line, x, 'g', -1, 64)
+			default:
+				line = strconv.AppendFloat(line, x, 'f', rng.IntN(19), 64)
+			}
+		}
+		buf := make([]byte, len(line), len(line)+fastPad+rng.IntN(8))
+		copy(buf, line)
+		after := buf[len(line):cap(buf)]
+		for j := range after {
+			after[j] = "0123456789.-+eE \t\n!"[rng.IntN(19)]
+		}
+		var want []float64
+		wbad := -1
+		for j, tok := range fields(line) {
+			v, ok := parseNumber(tok)
+			if !ok {
+				wbad = j
+				break
+			}
+			want = append(want, v)
+		}
+		for _, b := range [][]byte{buf, slices.Clip(buf)} {
+			got, gbad := scanLine(b, nil)
+			if gbad != wbad || len(got) != len(want) {
+				t.Fatalf("%q: got %v (bad token %d), want %v (%d)", line, got, gbad, want, wbad)
+			}
+			for j := range want {
+				if math.Float64bits(got[j]) != math.Float64bits(want[j]) {
+					t.Fatalf("%q: got %v, want %v", line, got, want)
+				}
 			}
 		}
 	}
