@@ -10,6 +10,8 @@ import (
 	"regexp"
 	"strings"
 	"unicode/utf8"
+
+	"gtpack.example/gtpack/ingest/touchstone"
 )
 
 var touchstoneExt = regexp.MustCompile(`(?i)\.(s\d+p|ts)$`)
@@ -163,7 +165,7 @@ func ghzText(hz float64) string {
 	return fmt.Sprintf("%.6g GHz", hz/1e9)
 }
 
-func describeNetwork(path string, n *Network) string {
+func describeNetwork(path string, n *touchstone.Network) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s: Touchstone version %d, %d port(s), %s parameters in %s, %d frequencies", path, n.Version, n.Ports, n.Parameter, n.Format, len(n.FrequencyHz))
 	if len(n.FrequencyHz) > 0 {
@@ -480,4 +482,46 @@ func describeRun(r *Run, specFile string) string {
 		fmt.Fprintf(&b, "notes %s\n", r.Notes)
 	}
 	return b.String()
+}
+
+// networkJSON is the form NetworkJSON returns.
+type networkJSON struct {
+	Ports       int              `json:"ports"`
+	FrequencyHz []float64        `json:"frequency_hz"`
+	Z0          []float64        `json:"z0"`
+	Z0Complex   [][2]float64     `json:"z0_complex,omitempty"`
+	S           [][][][2]float64 `json:"s"`
+}
+
+// NetworkJSON is the `gtpack inspect --json` form of the contract:
+// {"ports": N, "frequency_hz": [...], "z0": [...], "s": [[[[re, im], ...]...]...]}
+// A complex reference impedance adds "z0_complex": [[re, im], ...].
+func NetworkJSON(n *touchstone.Network) any {
+	out := networkJSON{Ports: n.Ports, FrequencyHz: n.FrequencyHz, Z0: n.Z0}
+	if out.FrequencyHz == nil {
+		out.FrequencyHz = []float64{}
+	}
+	if out.Z0 == nil {
+		out.Z0 = []float64{}
+	}
+	for _, z := range n.Z0Complex {
+		out.Z0Complex = append(out.Z0Complex, [2]float64{real(z), imag(z)})
+	}
+	N := n.Ports
+	out.S = make([][][][2]float64, len(n.FrequencyHz))
+	for k := range out.S {
+		mat := make([][][2]float64, N)
+		for i := range mat {
+			row := make([][2]float64, N)
+			for j := range row {
+				idx := (k*N+i)*N + j
+				if idx < len(n.S) {
+					row[j] = [2]float64{real(n.S[idx]), imag(n.S[idx])}
+				}
+			}
+			mat[i] = row
+		}
+		out.S[k] = mat
+	}
+	return out
 }

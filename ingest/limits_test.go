@@ -162,13 +162,6 @@ func TestTracePointLimit(t *testing.T) {
 			}
 			return len(n.FrequencyHz), nil
 		}, MaxTracePoints + 3},
-		{"Touchstone line by line", touchstone1Port, func(data []byte) (int, error) {
-			n, err := readTouchstone(bytes.NewReader(data), "t.s1p", false)
-			if err != nil {
-				return 0, err
-			}
-			return len(n.FrequencyHz), nil
-		}, MaxTracePoints + 3},
 	}
 	for _, r := range readers {
 		t.Run(r.name, func(t *testing.T) {

@@ -35,54 +35,6 @@ func Problemf(file string, line int, format string, args ...any) *Problem {
 	return &Problem{File: file, Line: line, Message: fmt.Sprintf(format, args...)}
 }
 
-// Network is the content of one Touchstone file, always as S-parameters.
-type Network struct {
-	Ports       int
-	FrequencyHz []float64
-	// Z0 is the reference impedance of each port in ohms.
-	Z0 []float64
-	// Z0Complex is set only when a port's reference impedance is complex
-	// (an option line such as "R (50+50j)"); Z0 then holds the real parts.
-	// Such files are read for S-parameters only.
-	Z0Complex []complex128
-	// S holds one Ports x Ports matrix per frequency, row-major:
-	// S[(k*Ports+i)*Ports+j] is S_(i+1)(j+1) at FrequencyHz[k].
-	S []complex128
-	// Noise holds the two-port noise parameters, when the file has them.
-	Noise []NoisePoint
-	// Version is the Touchstone version of the file: 1 or 2.
-	Version int
-	// Parameter is what the file stored (S, Y, Z, H or G) before conversion.
-	Parameter string
-	// Format is the number format of the file: DB, MA or RI.
-	Format string
-}
-
-// At returns S_(i+1)(j+1) at frequency index k (i, j zero-based).
-func (n *Network) At(k, i, j int) complex128 {
-	return n.S[(k*n.Ports+i)*n.Ports+j]
-}
-
-// Param returns S_ij over frequency, with i and j one-based port numbers.
-func (n *Network) Param(i, j int) []complex128 {
-	out := make([]complex128, len(n.FrequencyHz))
-	for k := range out {
-		out[k] = n.At(k, i-1, j-1)
-	}
-	return out
-}
-
-// NoisePoint is one line of a two-port noise-parameter block.
-type NoisePoint struct {
-	FrequencyHz      float64
-	MinNoiseFigureDB float64
-	// GammaOpt is the optimum source reflection coefficient.
-	GammaOpt complex128
-	// EffectiveNoiseResistanceOhm is Rn in ohms (version 1 files store it
-	// normalised to the reference resistance; it is scaled back here).
-	EffectiveNoiseResistanceOhm float64
-}
-
 // Trace is a two-column CSV trace: a frequency and one value in dB (or
 // dBm/Hz for noise density).
 type Trace struct {

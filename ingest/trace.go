@@ -8,6 +8,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"gtpack.example/gtpack/ingest/touchstone"
 )
 
 // WriteTrace writes t as a trace CSV with the frequency column in
@@ -45,47 +47,6 @@ func WriteTrace(w io.Writer, t *Trace, frequencyUnit string) error {
 	return bw.Flush()
 }
 
-// isDecimal reports whether s is a plain decimal number: an optional sign,
-// digits with an optional point, an optional exponent. strconv.ParseFloat
-// alone also takes "inf", "nan", hex floats and underscores, none of which
-// a measurement file should hold.
-func isDecimal(s string) bool {
-	i := 0
-	if i < len(s) && (s[i] == '+' || s[i] == '-') {
-		i++
-	}
-	digits := 0
-	for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-		i++
-		digits++
-	}
-	if i < len(s) && s[i] == '.' {
-		i++
-		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-			i++
-			digits++
-		}
-	}
-	if digits == 0 {
-		return false
-	}
-	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
-		i++
-		if i < len(s) && (s[i] == '+' || s[i] == '-') {
-			i++
-		}
-		ed := 0
-		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-			i++
-			ed++
-		}
-		if ed == 0 {
-			return false
-		}
-	}
-	return i == len(s)
-}
-
 // parseDecimal parses a finite decimal number.
 func parseDecimal(s string) (float64, error) {
 	return parseScaled(s, 0)
@@ -93,121 +54,21 @@ func parseDecimal(s string) (float64, error) {
 
 // parseScaled parses the decimal s times 10^exp, rounding once: the
 // exponent is added to the text, so "10.7" in GHz is exactly the float64
-// nearest 10.7e9.
+// nearest 10.7e9. The numbers are the Touchstone reader's
+// (touchstone.ParseNumber): a plain decimal only, since strconv.ParseFloat
+// alone also takes "inf", "nan", hex floats and underscores, none of which
+// a measurement file should hold.
 func parseScaled(s string, exp int) (float64, error) {
-	if v, ok := fastScaled(s, exp); ok {
+	v, err := touchstone.ParseNumber(s, exp)
+	switch {
+	case err == nil:
 		return v, nil
-	}
-	if s == "" {
+	case s == "":
 		return 0, errors.New("empty; expected a number")
-	}
-	if !isDecimal(s) {
+	case err == strconv.ErrSyntax:
 		return 0, errors.New("is not a number; expected a decimal number such as 11.7 or 1.17e10")
 	}
-	if exp == 0 {
-		v, err := strconv.ParseFloat(s, 64)
-		if err != nil || math.IsInf(v, 0) {
-			return 0, errors.New("out of range; expected a finite number")
-		}
-		return v, nil
-	}
-	mant, e := s, 0
-	if i := strings.IndexAny(s, "eE"); i >= 0 {
-		mant = s[:i]
-		x, err := strconv.Atoi(s[i+1:])
-		if err != nil || x > 100000 || x < -100000 {
-			return 0, errors.New("exponent out of range; expected a finite number")
-		}
-		e = x
-	}
-	v, err := strconv.ParseFloat(mant+"e"+strconv.Itoa(e+exp), 64)
-	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, errors.New("out of range; expected a finite number")
-	}
-	return v, nil
-}
-
-// fastScaled is parseScaled's short way for the numbers a trace is made
-// of. A decimal of at most 15 significant digits whose scale, with exp,
-// is within 10^+-22: its digits make a whole number m below 2^53 and the
-// value is m * 10^k or m / 10^-k; both operands are exact in a float64,
-// so the one rounding of the product or quotient gives the float64
-// nearest the decimal (Clinger 1990, "How to read floating point numbers
-// accurately", the fast path; strconv.ParseFloat takes it too). Up to 19
-// digits, or a wider scale: the Eisel-Lemire algorithm the Touchstone
-// reader uses (tsEiselLemire), exact when it answers. ok is false for
-// anything else, which parseScaled reads the long way, errors included.
-//
-// It is tsScan's decomposition with the unit's power of ten added before
-// the one rounding (scaling tsScan's result would round twice), on a
-// string, and shares its tables: tsPow10 and tsEiselLemire.
-func fastScaled(s string, exp int) (float64, bool) {
-	i, neg := 0, false
-	if len(s) > 0 && (s[0] == '+' || s[0] == '-') {
-		neg, i = s[0] == '-', 1
-	}
-	var m uint64
-	digits, frac, seen := 0, 0, false
-	for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
-		seen = true
-		if m == 0 && s[i] == '0' {
-			continue // leading zeros are not significant
-		}
-		m = m*10 + uint64(s[i]-'0')
-		digits++
-	}
-	if i < len(s) && s[i] == '.' {
-		for i++; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
-			seen = true
-			frac++
-			if m == 0 && s[i] == '0' {
-				continue
-			}
-			m = m*10 + uint64(s[i]-'0')
-			digits++
-		}
-	}
-	if !seen || digits > 19 {
-		return 0, false
-	}
-	k := exp - frac
-	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
-		i++
-		eneg := false
-		if i < len(s) && (s[i] == '+' || s[i] == '-') {
-			eneg, i = s[i] == '-', i+1
-		}
-		e, ed := 0, 0
-		for ; i < len(s) && s[i] >= '0' && s[i] <= '9' && ed < 4; i++ {
-			e = e*10 + int(s[i]-'0')
-			ed++
-		}
-		if ed == 0 {
-			return 0, false
-		}
-		if eneg {
-			e = -e
-		}
-		k += e
-	}
-	if i != len(s) {
-		return 0, false
-	}
-	if digits > 15 || k < -22 || k > 22 {
-		// Up to 19 digits (all of a float64 written in full) fit m; the
-		// Eisel-Lemire algorithm rounds them correctly or says it cannot.
-		return tsEiselLemire(m, k, neg)
-	}
-	v := float64(m) // m < 10^15 < 2^53: exact
-	if k >= 0 {
-		v *= tsPow10[k]
-	} else {
-		v /= tsPow10[-k]
-	}
-	if neg {
-		v = -v
-	}
-	return v, true
+	return 0, errors.New("out of range; expected a finite number")
 }
 
 // formatScaled writes v times 10^exp as decimal text with the shortest

@@ -4,9 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"math"
-	"math/rand/v2"
 	"reflect"
-	"strconv"
 	"strings"
 	"testing"
 	"unicode"
@@ -291,75 +289,6 @@ func BenchmarkReadTrace(b *testing.B) {
 	for b.Loop() {
 		if _, err := ReadTrace(bytes.NewReader(data), "b.csv"); err != nil {
 			b.Fatal(err)
-		}
-	}
-}
-
-// TestFastScaledMatchesStrconv checks the short way of parseScaled against
-// strconv.ParseFloat, the standard library's correctly rounded reader, on
-// the same decimal with the scale written as an exponent. The short way
-// rests on Clinger's fast path (Clinger 1990: m < 2^53 and |k| <= 22 give
-// an exactly rounded m*10^k).
-func TestFastScaledMatchesStrconv(t *testing.T) {
-	ref := func(s string, exp int) float64 {
-		mant, e := s, 0
-		if i := strings.IndexAny(s, "eE"); i >= 0 {
-			mant = s[:i]
-			e, _ = strconv.Atoi(s[i+1:])
-		}
-		v, err := strconv.ParseFloat(mant+"e"+strconv.Itoa(e+exp), 64)
-		if err != nil {
-			t.Fatalf("%q: %v", s, err)
-		}
-		return v
-	}
-	cases := []string{"0", "-0", "+0.000", "1", "-1", "10.7", "10.7025625", "12.75", "0.1", "0.3",
-		"-174.123456", "9007199254740991", "123456789012345", "0.000000000000001", "1e22", "1e-22",
-		"4.35e-7", "2.5E+3", "007.50", ".5", "5.", "-.25e1", "999999999999999", "0.1234567890123456"}
-	r := rand.New(rand.NewPCG(7, 11))
-	for n := 0; n < 20000; n++ {
-		whole := r.Int64N(1_000_000)
-		fracDigits := r.IntN(10)
-		s := strconv.FormatInt(whole, 10)
-		if fracDigits > 0 {
-			f := strconv.FormatInt(r.Int64N(1_000_000_000), 10)
-			s += "." + f[:min(len(f), fracDigits)]
-		}
-		if r.IntN(2) == 0 {
-			s = "-" + s
-		}
-		if r.IntN(4) == 0 {
-			s += "e" + strconv.Itoa(r.IntN(21)-10)
-		}
-		cases = append(cases, s)
-	}
-	// Values written in full (17 digits, as a float64 prints), as the
-	// noise traces of the demo archive hold them.
-	for n := 0; n < 20000; n++ {
-		v := -180 + 200*r.Float64()
-		cases = append(cases, strconv.FormatFloat(v, 'g', -1, 64), strconv.FormatFloat(v*1e-9, 'g', -1, 64))
-	}
-	fast := 0
-	for _, s := range cases {
-		for _, exp := range []int{0, 3, 6, 9} {
-			got, ok := fastScaled(s, exp)
-			if !ok {
-				continue
-			}
-			fast++
-			want := ref(s, exp)
-			if math.Float64bits(got) != math.Float64bits(want) {
-				t.Fatalf("fastScaled(%q, %d) = %v, strconv reads %v", s, exp, got, want)
-			}
-		}
-	}
-	// Most of these take the short way; those that cannot must say so.
-	if fast < len(cases)*3 {
-		t.Errorf("only %d of %d readings took the short way", fast, len(cases)*4)
-	}
-	for _, s := range []string{"", "-", ".", "e5", "1e", "1.2.3", "0x10", "1,5", "NaN", "Inf", "1e99999", "12345678901234567890", " 1", "1e-400"} {
-		if _, ok := fastScaled(s, 9); ok {
-			t.Errorf("fastScaled(%q) took the short way; expected the long one", s)
 		}
 	}
 }

@@ -13,6 +13,7 @@ import (
 	"strings"
 
 	"gtpack.example/gtpack/ingest"
+	"gtpack.example/gtpack/ingest/touchstone"
 )
 
 // Write writes the archive into dir (created; refuses a non-empty dir) and
@@ -304,7 +305,7 @@ func (w *writer) run(r *RunTruth) {
 	w.file(r.Dir+"/run.yaml", w.runYAML(r, pre, post))
 }
 
-func (w *writer) touchstone(r *RunTruth, name string, v touchstoneVariant, file int, n *ingest.Network) {
+func (w *writer) touchstone(r *RunTruth, name string, v touchstoneVariant, file int, n *touchstone.Network) {
 	if w.err != nil {
 		return
 	}
@@ -318,7 +319,7 @@ func (w *writer) touchstone(r *RunTruth, name string, v touchstoneVariant, file 
 		what += ", after the unit"
 	}
 	var buf bytes.Buffer
-	err := ingest.WriteTouchstone(&buf, n, ingest.TouchstoneFormat{
+	err := touchstone.Write(&buf, n, touchstone.Format{
 		Version:       v.version,
 		Parameter:     "S",
 		Format:        v.format,
@@ -342,8 +343,8 @@ func (w *writer) noisy(r *RunTruth, file, trace int) *rand.Rand {
 	return rngFor(w.t.Options.Seed, purposeFile, uint64(r.Order), uint64(file*8+trace))
 }
 
-func newNetwork(freqs []float64) *ingest.Network {
-	return &ingest.Network{
+func newNetwork(freqs []float64) *touchstone.Network {
+	return &touchstone.Network{
 		Ports:       2,
 		FrequencyHz: append([]float64(nil), freqs...),
 		Z0:          []float64{50, 50},
@@ -354,7 +355,7 @@ func newNetwork(freqs []float64) *ingest.Network {
 func polar(db, rad float64) complex128 { return cmplx.Rect(math.Pow(10, db/20), rad) }
 
 // referenceNetwork is the reference horn in the range: S21 = G_ref - RL.
-func (w *writer) referenceNetwork(r *RunTruth, freqs []float64, rl func(float64) float64, file int) *ingest.Network {
+func (w *writer) referenceNetwork(r *RunTruth, freqs []float64, rl func(float64) float64, file int) *touchstone.Network {
 	t := w.t
 	rng := w.noisy(r, file, 0)
 	n := newNetwork(freqs)
@@ -372,7 +373,7 @@ func (w *writer) referenceNetwork(r *RunTruth, freqs []float64, rl func(float64)
 }
 
 // unitNetwork is the unit under test in the range: S21 = G_aut - RL.
-func (w *writer) unitNetwork(r *RunTruth, b int, freqs []float64) *ingest.Network {
+func (w *writer) unitNetwork(r *RunTruth, b int, freqs []float64) *touchstone.Network {
 	t := w.t
 	rng := w.noisy(r, 2+b, 0)
 	n := newNetwork(freqs)

@@ -21,15 +21,15 @@ rounds=${ROUNDS:-5}
 dir=$(mktemp -d)
 trap 'rm -rf "$dir"' EXIT INT TERM
 cd "$root"
-GTPACK_TS_BENCH_WRITE="$dir" go test ./ingest/ -run '^TestTouchstoneBenchHelper$' -count=1 >/dev/null
-go test -c -o "$dir/ingest.test" ./ingest/
+GTPACK_TS_BENCH_WRITE="$dir" go test ./ingest/touchstone/ -run '^TestTouchstoneBenchHelper$' -count=1 >/dev/null
+go test -c -o "$dir/touchstone.test" ./ingest/touchstone/
 : >"$dir/go100.txt"
 : >"$dir/go400.txt"
 : >"$dir/skrf.txt"
 r=0
 while [ "$r" -lt "$rounds" ]; do
 	for gc in 100 400; do
-		GOGC=$gc GTPACK_TS_BENCH_READ="$dir" GTPACK_TS_BENCH_BATCHES=2 "$dir/ingest.test" -test.run '^TestTouchstoneBenchHelper$' -test.count=1 -test.v |
+		GOGC=$gc GTPACK_TS_BENCH_READ="$dir" GTPACK_TS_BENCH_BATCHES=2 "$dir/touchstone.test" -test.run '^TestTouchstoneBenchHelper$' -test.count=1 -test.v |
 			grep '^gtpack ' >>"$dir/go$gc.txt"
 	done
 	SKRF_BENCH_BATCHES=2 "$py" testdata/scripts/bench_touchstone_skrf.py "$dir"/bench_*.s2p >>"$dir/skrf.txt"

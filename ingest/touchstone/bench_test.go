@@ -1,4 +1,4 @@
-package ingest
+package touchstone
 
 import (
 	"bytes"
@@ -31,13 +31,13 @@ func benchNetwork(points int) *Network {
 // benchFile returns a 2-port file of points frequency points. Formats RI,
 // MA and DB are written as instruments write them, 9 significant digits
 // (the corpus's instrument exports carry 7 to 10); "RI-full" is
-// WriteTouchstone's output, shortest round-trip digits (up to 17), which
+// Write's output, shortest round-trip digits (up to 17), which
 // takes the reader's slower path for long mantissas.
 func benchFile(tb testing.TB, points int, format string) []byte {
 	n := benchNetwork(points)
 	var buf bytes.Buffer
 	if format == "RI-full" {
-		err := WriteTouchstone(&buf, n, TouchstoneFormat{Version: 1, Parameter: "S", Format: "RI", FrequencyUnit: "GHz",
+		err := Write(&buf, n, Format{Version: 1, Parameter: "S", Format: "RI", FrequencyUnit: "GHz",
 			Comments: []string{"2-port benchmark file, made-up data"}})
 		if err != nil {
 			tb.Fatal(err)
@@ -49,7 +49,7 @@ func benchFile(tb testing.TB, points int, format string) []byte {
 	for k, f := range n.FrequencyHz {
 		buf.Write(strconv.AppendFloat(num[:0], f/1e9, 'f', 6, 64))
 		for _, idx := range []int{0, 2, 1, 3} {
-			a, b := tsPair(n.S[4*k+idx], format)
+			a, b := pair(n.S[4*k+idx], format)
 			buf.WriteByte(' ')
 			buf.Write(strconv.AppendFloat(num[:0], a, 'g', 9, 64))
 			buf.WriteByte(' ')
@@ -70,7 +70,7 @@ func BenchmarkReadTouchstone(b *testing.B) {
 			b.SetBytes(int64(len(data)))
 			b.ReportAllocs()
 			for b.Loop() {
-				n, err := ReadTouchstone(bytes.NewReader(data), "bench.s2p")
+				n, err := readTest(bytes.NewReader(data), "bench.s2p")
 				if err != nil || len(n.FrequencyHz) != 10000 {
 					b.Fatal(err)
 				}
@@ -123,7 +123,7 @@ func TestTouchstoneBenchHelper(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				n, err := ReadTouchstone(f, filepath.Base(p))
+				n, err := readTest(f, filepath.Base(p))
 				f.Close()
 				if err != nil || len(n.FrequencyHz) != 10000 {
 					t.Fatalf("%s: %v", p, err)
@@ -143,4 +143,34 @@ func cpuSeconds() float64 {
 		return 0
 	}
 	return float64(ru.Utime.Sec+ru.Stime.Sec) + float64(ru.Utime.Usec+ru.Stime.Usec)/1e6
+}
+
+// BenchmarkTouchstoneScanLine times the number scanner alone on the data
+// lines of the benchmark files (each line in its own buffer with room
+// after it, the line ending first, as the reader's lines have).
+func BenchmarkTouchstoneScanLine(b *testing.B) {
+	for _, format := range benchFormats {
+		data := benchFile(b, 2000, format)
+		var lines [][]byte
+		for _, l := range bytes.Split(data, []byte("\n")) {
+			if len(l) > 0 && l[0] != '!' && l[0] != '#' {
+				buf := make([]byte, len(l), len(l)+fastPad)
+				copy(buf, l)
+				buf[:len(l)+1][len(l)] = '\n'
+				lines = append(lines, buf)
+			}
+		}
+		b.Run(format, func(b *testing.B) {
+			b.SetBytes(int64(len(data)))
+			dst := make([]float64, 0, 64)
+			for b.Loop() {
+				for _, l := range lines {
+					vals, bad := scanLine(l, dst[:0])
+					if bad >= 0 || len(vals) != 9 {
+						b.Fatal(string(l))
+					}
+				}
+			}
+		})
+	}
 }

@@ -1,4 +1,4 @@
-package ingest
+package touchstone
 
 import (
 	"bufio"
@@ -10,12 +10,12 @@ import (
 	"strings"
 )
 
-// TouchstoneFormat says how WriteTouchstone writes.
+// Format says how Write writes.
 //
 // Empty fields take these defaults: Version 1, Parameter S, Format RI,
 // FrequencyUnit GHz, R 50 (or the ports' reference impedance when they all
 // share one).
-type TouchstoneFormat struct {
+type Format struct {
 	Version       int     // 1 or 2
 	Parameter     string  // S, Y, Z (H, G for 2 ports): converted from the Network's S
 	Format        string  // DB, MA, RI
@@ -24,11 +24,11 @@ type TouchstoneFormat struct {
 	Comments      []string
 }
 
-// tsZeroDB is what DB format writes for an exact zero: 10^(-7000/20)
+// zeroDB is what DB format writes for an exact zero: 10^(-7000/20)
 // underflows to exactly 0 in float64, so the zero reads back as zero.
-const tsZeroDB = -7000
+const zeroDB = -7000
 
-// WriteTouchstone writes n as a Touchstone file in the form f describes.
+// Write writes n as a Touchstone file in the form f describes.
 // Numbers are written with the shortest representation that reads back to
 // the same float64 (strconv 'g', -1), so RI data round-trips exactly and DB,
 // MA and Y/Z/H/G data to within the rounding of the conversions.
@@ -36,8 +36,8 @@ const tsZeroDB = -7000
 // A version-1 file has one reference resistance: every port's Z0 must
 // equal R. Version 2 writes [Reference] when the ports differ from R.
 // Complex reference impedances are not written.
-func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
-	if err := tsCheckNetwork(n); err != nil {
+func Write(w io.Writer, n *Network, f Format) error {
+	if err := checkNetwork(n); err != nil {
 		return err
 	}
 	if f.Version == 0 {
@@ -79,7 +79,7 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 	R := f.R
 	if R == 0 {
 		R = 50
-		if tsAllEqual(n.Z0) {
+		if allEqual(n.Z0) {
 			R = n.Z0[0]
 		}
 	}
@@ -108,7 +108,7 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 	if f.Version == 2 {
 		bw.WriteString("[Version] 2.0\n")
 	}
-	fmt.Fprintf(bw, "# %s %s %s R %s\n", unitName, param, format, tsFmtNum(R))
+	fmt.Fprintf(bw, "# %s %s %s R %s\n", unitName, param, format, formatNum(R))
 	if f.Version == 2 {
 		fmt.Fprintf(bw, "[Number of Ports] %d\n", N)
 		if N == 2 {
@@ -121,7 +121,7 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 		if !sameAsR {
 			bw.WriteString("[Reference]")
 			for _, z := range n.Z0 {
-				bw.WriteString(" " + tsFmtNum(z))
+				bw.WriteString(" " + formatNum(z))
 			}
 			bw.WriteString("\n")
 		}
@@ -129,13 +129,13 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 	}
 
 	m := make([]complex128, N*N)
-	order := tsWriteOrder(N, f.Version)
+	order := writeOrder(N, f.Version)
 	var ws []complex128
 	num := make([]byte, 0, 64)
 	for k, fHz := range n.FrequencyHz {
 		copy(m, n.S[k*N*N:(k+1)*N*N])
 		if param != "S" {
-			if err := tsFromS(m, param, n.Z0, f.Version, R, &ws); err != nil {
+			if err := fromS(m, param, n.Z0, f.Version, R, &ws); err != nil {
 				return fmt.Errorf("touchstone: %s-parameters at %v Hz: %v", param, fHz, err)
 			}
 		}
@@ -147,7 +147,7 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 			if N > 2 && p > 0 && (p%N == 0 || (p%N)%4 == 0) {
 				bw.WriteString("\n")
 			}
-			a, b := tsPair(m[idx], format)
+			a, b := pair(m[idx], format)
 			bw.WriteByte(' ')
 			bw.Write(strconv.AppendFloat(num[:0], a, 'g', -1, 64))
 			bw.WriteByte(' ')
@@ -165,8 +165,8 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 				rn /= R
 			}
 			mag, ang := cmplx.Abs(p.GammaOpt), cmplx.Phase(p.GammaOpt)*180/math.Pi
-			fmt.Fprintf(bw, "%s %s %s %s %s\n", tsFmtNum(p.FrequencyHz/unit), tsFmtNum(p.MinNoiseFigureDB),
-				tsFmtNum(mag), tsFmtNum(ang), tsFmtNum(rn))
+			fmt.Fprintf(bw, "%s %s %s %s %s\n", formatNum(p.FrequencyHz/unit), formatNum(p.MinNoiseFigureDB),
+				formatNum(mag), formatNum(ang), formatNum(rn))
 		}
 	}
 	if f.Version == 2 {
@@ -175,10 +175,10 @@ func WriteTouchstone(w io.Writer, n *Network, f TouchstoneFormat) error {
 	return bw.Flush()
 }
 
-// tsWriteOrder lists the row-major matrix indices in the order the file
+// writeOrder lists the row-major matrix indices in the order the file
 // holds them: 11 21 12 22 for a version-1 2-port, row-major otherwise
 // (version 2 declares 12_21 for 2 ports).
-func tsWriteOrder(N, version int) []int {
+func writeOrder(N, version int) []int {
 	if N == 2 && version == 1 {
 		return []int{0, 2, 1, 3}
 	}
@@ -189,7 +189,7 @@ func tsWriteOrder(N, version int) []int {
 	return o
 }
 
-func tsPair(c complex128, format string) (float64, float64) {
+func pair(c complex128, format string) (float64, float64) {
 	switch format {
 	case "RI":
 		return real(c), imag(c)
@@ -198,12 +198,12 @@ func tsPair(c complex128, format string) (float64, float64) {
 	}
 	mag := cmplx.Abs(c)
 	if mag == 0 {
-		return tsZeroDB, 0
+		return zeroDB, 0
 	}
 	return 20 * math.Log10(mag), cmplx.Phase(c) * 180 / math.Pi
 }
 
-func tsAllEqual(v []float64) bool {
+func allEqual(v []float64) bool {
 	for _, x := range v {
 		if x != v[0] {
 			return false
@@ -212,7 +212,7 @@ func tsAllEqual(v []float64) bool {
 	return len(v) > 0
 }
 
-func tsCheckNetwork(n *Network) error {
+func checkNetwork(n *Network) error {
 	if n == nil || n.Ports < 1 {
 		return fmt.Errorf("touchstone: the network has no ports")
 	}
@@ -252,88 +252,6 @@ func tsCheckNetwork(n *Network) error {
 		if bad(p.FrequencyHz) || p.FrequencyHz < 0 || (k > 0 && p.FrequencyHz <= n.Noise[k-1].FrequencyHz) ||
 			bad(p.MinNoiseFigureDB) || cmplx.IsNaN(p.GammaOpt) || cmplx.IsInf(p.GammaOpt) || bad(p.EffectiveNoiseResistanceOhm) {
 			return fmt.Errorf("touchstone: noise point %d is not finite or its frequency is not above the previous one", k)
-		}
-	}
-	return nil
-}
-
-// tsFromS converts one S matrix in place to param, with per-port real
-// reference impedances z0; version 1 normalises to R.
-func tsFromS(m []complex128, param string, z0 []float64, version int, R float64, ws *[]complex128) error {
-	N := len(z0)
-	a, b := tsScratch(ws, N)
-	switch param {
-	case "Z", "H", "G":
-		// zn = (I - S)^-1 (I + S); Z = D^-1 zn D^-1.
-		for i := range m {
-			a[i], b[i] = -m[i], m[i]
-		}
-		for i := 0; i < N; i++ {
-			a[i*N+i]++
-			b[i*N+i]++
-		}
-		if !tsSolve(a, b, N) {
-			return tsErrSingular
-		}
-		for i := 0; i < N; i++ {
-			for j := 0; j < N; j++ {
-				m[i*N+j] = b[i*N+j] * complex(math.Sqrt(z0[i]*z0[j]), 0)
-			}
-		}
-	case "Y":
-		// yn = (I + S)^-1 (I - S); Y = D yn D.
-		for i := range m {
-			a[i], b[i] = m[i], -m[i]
-		}
-		for i := 0; i < N; i++ {
-			a[i*N+i]++
-			b[i*N+i]++
-		}
-		if !tsSolve(a, b, N) {
-			return tsErrSingular
-		}
-		for i := 0; i < N; i++ {
-			for j := 0; j < N; j++ {
-				m[i*N+j] = b[i*N+j] / complex(math.Sqrt(z0[i]*z0[j]), 0)
-			}
-		}
-	}
-	switch param {
-	case "H":
-		z11, z12, z21, z22 := m[0], m[1], m[2], m[3]
-		if z22 == 0 {
-			return tsErrSingular
-		}
-		m[0], m[1], m[2], m[3] = (z11*z22-z12*z21)/z22, z12/z22, -z21/z22, 1/z22
-	case "G":
-		z11, z12, z21, z22 := m[0], m[1], m[2], m[3]
-		if z11 == 0 {
-			return tsErrSingular
-		}
-		m[0], m[1], m[2], m[3] = 1/z11, -z12/z11, z21/z11, (z11*z22-z12*z21)/z11
-	}
-	if version == 1 {
-		r := complex(R, 0)
-		switch param {
-		case "Z":
-			for i := range m {
-				m[i] /= r
-			}
-		case "Y":
-			for i := range m {
-				m[i] *= r
-			}
-		case "H":
-			m[0] /= r
-			m[3] *= r
-		case "G":
-			m[0] *= r
-			m[3] /= r
-		}
-	}
-	for _, v := range m {
-		if cmplx.IsNaN(v) || cmplx.IsInf(v) {
-			return tsErrSingular
 		}
 	}
 	return nil
