@@ -22,7 +22,8 @@ func ResultJSON(u *reduce.Unit) ([]byte, error) {
 	if u == nil {
 		return nil, errors.New("render: ResultJSON of a nil unit")
 	}
-	return appendIndented(nil, unitToWire(u), 0, "\n")
+	sink := new(listSink)
+	return appendIndentedLists(nil, unitToWire(u, sink), 0, "\n", sink)
 }
 
 // FleetJSON returns fleet.json: the bytes WriteFleetJSON writes.

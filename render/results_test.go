@@ -27,7 +27,7 @@ func TestResultJSONMatchesEncodingJSON(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want, err := json.Marshal(unitToWire(u))
+	want, err := json.Marshal(unitToWire(u, nil))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -90,17 +90,17 @@ type beamWire struct {
 	PhiDeg       num    `json:"phi_deg"`
 	Polarization string `json:"polarization,omitempty"`
 
-	FrequencyHz               nums `json:"frequency_hz"`
-	S21DB                     nums `json:"s21_db"`
-	RangeLossDB               nums `json:"range_loss_db"`
-	RangeDriftDB              nums `json:"range_drift_db,omitempty"`
-	GainDBi                   nums `json:"gain_dbi"`
-	GainExpandedUncertaintyDB nums `json:"gain_expanded_uncertainty_db"`
+	FrequencyHz               beamNums `json:"frequency_hz"`
+	S21DB                     beamNums `json:"s21_db"`
+	RangeLossDB               beamNums `json:"range_loss_db"`
+	RangeDriftDB              beamNums `json:"range_drift_db,omitzero"`
+	GainDBi                   beamNums `json:"gain_dbi"`
+	GainExpandedUncertaintyDB beamNums `json:"gain_expanded_uncertainty_db"`
 
-	GTdBPerK                nums             `json:"gt_db_per_k"`
-	GTExpandedUncertaintyDB nums             `json:"gt_expanded_uncertainty_db"`
+	GTdBPerK                beamNums         `json:"gt_db_per_k"`
+	GTExpandedUncertaintyDB beamNums         `json:"gt_expanded_uncertainty_db"`
 	GTForm                  reduce.GTForm    `json:"gt_form"`
-	NoiseRelativeKT0DB      nums             `json:"noise_relative_kt0_db,omitempty"`
+	NoiseRelativeKT0DB      beamNums         `json:"noise_relative_kt0_db,omitzero"`
 	OtherForm               *otherFormWire   `json:"other_form,omitempty"`
 	Noise                   []noiseStatsWire `json:"noise_statistics,omitempty"`
 	Interpolated            []string         `json:"interpolated,omitempty"`
@@ -114,13 +114,13 @@ type limitCurveWire struct {
 	Name     string          `json:"name"`
 	Quantity reduce.Quantity `json:"quantity"`
 	Start    int             `json:"start"`
-	LimitDB  nums            `json:"limit_db"`
+	LimitDB  beamNums        `json:"limit_db"`
 }
 
 type otherFormWire struct {
 	Form               reduce.GTForm `json:"form"`
-	GTdBPerK           nums          `json:"gt_db_per_k"`
-	DifferenceDB       nums          `json:"difference_db"`
+	GTdBPerK           beamNums      `json:"gt_db_per_k"`
+	DifferenceDB       beamNums      `json:"difference_db"`
 	MaxAbsDifferenceDB num           `json:"max_abs_difference_db"`
 	MeanDifferenceDB   num           `json:"mean_difference_db"`
 }
@@ -135,7 +135,7 @@ type noiseStatsWire struct {
 
 type budgetWire struct {
 	Terms      []budgetTermWire `json:"terms"`
-	CombinedDB nums             `json:"combined_db"`
+	CombinedDB beamNums         `json:"combined_db"`
 	CoverageK  num              `json:"coverage_k"`
 }
 
@@ -147,19 +147,19 @@ type budgetTermWire struct {
 	Source             reduce.TermSource `json:"source"`
 	Distribution       string            `json:"distribution"`
 	Divisor            num               `json:"divisor"`
-	StandardDB         nums              `json:"standard_db,omitempty"`
+	StandardDB         beamNums          `json:"standard_db,omitzero"`
 	ConstantStandardDB *num              `json:"constant_standard_db,omitempty"`
 }
 
 type projectionWire struct {
-	PassiveGainDBi          num    `json:"passive_gain_dbi"`
-	ChamberAntennaK         num    `json:"chamber_antenna_k"`
-	OperatingAntennaK       num    `json:"operating_antenna_k"`
-	SystemNoiseK            nums   `json:"system_noise_k"`
-	ReceiverNoiseK          nums   `json:"receiver_noise_k"`
-	OperatingGTdBPerK       nums   `json:"operating_gt_db_per_k"`
-	Assumptions             string `json:"assumptions"`
-	NegativeReceiverNoiseHz nums   `json:"negative_receiver_noise_hz,omitempty"`
+	PassiveGainDBi          num      `json:"passive_gain_dbi"`
+	ChamberAntennaK         num      `json:"chamber_antenna_k"`
+	OperatingAntennaK       num      `json:"operating_antenna_k"`
+	SystemNoiseK            beamNums `json:"system_noise_k"`
+	ReceiverNoiseK          beamNums `json:"receiver_noise_k"`
+	OperatingGTdBPerK       beamNums `json:"operating_gt_db_per_k"`
+	Assumptions             string   `json:"assumptions"`
+	NegativeReceiverNoiseHz beamNums `json:"negative_receiver_noise_hz,omitzero"`
 }
 
 type limitResultWire struct {
@@ -335,7 +335,9 @@ func floatOrNaN(p *num) float64 {
 	return float64(*p)
 }
 
-func unitToWire(u *reduce.Unit) *unitWire {
+// unitToWire is the wire form of u whose beams' lists go to sink (nil:
+// written in place; see beamNums).
+func unitToWire(u *reduce.Unit, sink *listSink) *unitWire {
 	w := &unitWire{
 		Schema: ResultSchema, Serial: u.Serial, Product: u.Product, Run: u.Run,
 		Started: stamp(u.Started), Verdict: u.Verdict, DecisionRule: u.DecisionRule, SpecTitle: u.SpecTitle,
@@ -343,7 +345,7 @@ func unitToWire(u *reduce.Unit) *unitWire {
 			DriftToleranceDB: num(u.Station.DriftToleranceDB), MethodToleranceDB: num(u.Station.MethodToleranceDB)},
 		Reference: referenceWire(u.Reference),
 		Operator:  u.Operator, AmbientC: num(u.AmbientC), Firmware: u.Firmware,
-		Beams:      list(convert(u.Beams, beamToWire)),
+		Beams:      list(convert(u.Beams, func(b reduce.Beam) beamWire { return beamToWire(b, sink) })),
 		Limits:     list(convert(u.Limits, limitResultToWire)),
 		Flags:      list(convert(u.Flags, func(f reduce.Flag) flagWire { return flagWire(f) })),
 		Problems:   list(u.Problems),
@@ -383,44 +385,46 @@ func unitToWire(u *reduce.Unit) *unitWire {
 	return w
 }
 
-func beamToWire(b reduce.Beam) beamWire {
+// beamToWire is the wire form of a beam whose lists go to sink (nil:
+// written in place; see beamNums).
+func beamToWire(b reduce.Beam, sink *listSink) beamWire {
+	l := func(xs []float64) beamNums { return beamNums{xs, sink} }
 	w := beamWire{ID: b.ID, ThetaDeg: num(b.ThetaDeg), PhiDeg: num(b.PhiDeg), Polarization: b.Polarization,
-		FrequencyHz: b.FrequencyHz, S21DB: b.S21DB, RangeLossDB: b.RangeLossDB, RangeDriftDB: b.RangeDriftDB,
-		GainDBi: b.GainDBi, GainExpandedUncertaintyDB: b.GainExpandedUncertaintyDB,
-		GTdBPerK: b.GTdBPerK, GTExpandedUncertaintyDB: b.GTExpandedUncertaintyDB, GTForm: b.GTForm,
-		NoiseRelativeKT0DB: b.NoiseRelativeKT0DB,
+		FrequencyHz: l(b.FrequencyHz), S21DB: l(b.S21DB), RangeLossDB: l(b.RangeLossDB), RangeDriftDB: l(b.RangeDriftDB),
+		GainDBi: l(b.GainDBi), GainExpandedUncertaintyDB: l(b.GainExpandedUncertaintyDB),
+		GTdBPerK: l(b.GTdBPerK), GTExpandedUncertaintyDB: l(b.GTExpandedUncertaintyDB), GTForm: b.GTForm,
+		NoiseRelativeKT0DB: l(b.NoiseRelativeKT0DB),
 		Noise: convert(b.Noise, func(n reduce.NoiseStatistics) noiseStatsWire {
 			return noiseStatsWire{File: n.File, Quantity: n.Quantity, ScatterDB: num(n.ScatterDB), RadiometerDB: num(n.RadiometerDB), SmoothingPoints: n.SmoothingPoints}
 		}),
 		Interpolated: b.Interpolated,
-		GainBudget:   budgetToWire(b.GainBudget),
-		GTBudget:     budgetToWire(b.GTBudget),
+		GainBudget:   budgetToWire(b.GainBudget, sink),
+		GTBudget:     budgetToWire(b.GTBudget, sink),
 		LimitCurves: convert(b.LimitCurves, func(c reduce.LimitCurve) limitCurveWire {
-			return limitCurveWire{Name: c.Name, Quantity: c.Quantity, Start: c.Start, LimitDB: c.LimitDB}
+			return limitCurveWire{Name: c.Name, Quantity: c.Quantity, Start: c.Start, LimitDB: l(c.LimitDB)}
 		}),
 	}
 	if o := b.OtherForm; o != nil {
-		w.OtherForm = &otherFormWire{Form: o.Form, GTdBPerK: o.GTdBPerK, DifferenceDB: o.DifferenceDB,
+		w.OtherForm = &otherFormWire{Form: o.Form, GTdBPerK: l(o.GTdBPerK), DifferenceDB: l(o.DifferenceDB),
 			MaxAbsDifferenceDB: num(o.MaxAbsDifferenceDB), MeanDifferenceDB: num(o.MeanDifferenceDB)}
 	}
 	if p := b.Projection; p != nil {
 		w.Projection = &projectionWire{PassiveGainDBi: num(p.PassiveGainDBi), ChamberAntennaK: num(p.ChamberAntennaK),
-			OperatingAntennaK: num(p.OperatingAntennaK), SystemNoiseK: p.SystemNoiseK, ReceiverNoiseK: p.ReceiverNoiseK,
-			OperatingGTdBPerK: p.OperatingGTdBPerK, Assumptions: p.Assumptions, NegativeReceiverNoiseHz: p.NegativeReceiverNoiseHz}
+			OperatingAntennaK: num(p.OperatingAntennaK), SystemNoiseK: l(p.SystemNoiseK), ReceiverNoiseK: l(p.ReceiverNoiseK),
+			OperatingGTdBPerK: l(p.OperatingGTdBPerK), Assumptions: p.Assumptions, NegativeReceiverNoiseHz: l(p.NegativeReceiverNoiseHz)}
 	}
 	return w
 }
 
-func budgetToWire(b reduce.Budget) budgetWire {
-	return budgetWire{Terms: list(convert(b.Terms, budgetTermToWire)), CombinedDB: b.CombinedDB, CoverageK: num(b.CoverageK)}
-}
-
-func budgetTermToWire(t reduce.BudgetTerm) budgetTermWire {
-	w := budgetTermWire{Name: t.Name, Source: t.Source, Distribution: t.Distribution, Divisor: num(t.Divisor), StandardDB: t.StandardDB}
-	if x, ok := constant(t.StandardDB); ok {
-		w.StandardDB, w.ConstantStandardDB = nil, optional(x)
-	}
-	return w
+func budgetToWire(b reduce.Budget, sink *listSink) budgetWire {
+	terms := list(convert(b.Terms, func(t reduce.BudgetTerm) budgetTermWire {
+		w := budgetTermWire{Name: t.Name, Source: t.Source, Distribution: t.Distribution, Divisor: num(t.Divisor), StandardDB: beamNums{t.StandardDB, sink}}
+		if x, ok := constant(t.StandardDB); ok {
+			w.StandardDB, w.ConstantStandardDB = beamNums{}, optional(x)
+		}
+		return w
+	}))
+	return budgetWire{Terms: terms, CombinedDB: beamNums{b.CombinedDB, sink}, CoverageK: num(b.CoverageK)}
 }
 
 // constant is the one finite value every item of xs holds, if it holds
@@ -534,28 +538,28 @@ func unitFromWire(w *unitWire) *reduce.Unit {
 
 func beamFromWire(w beamWire) reduce.Beam {
 	b := reduce.Beam{ID: w.ID, ThetaDeg: float64(w.ThetaDeg), PhiDeg: float64(w.PhiDeg), Polarization: w.Polarization,
-		FrequencyHz: w.FrequencyHz, S21DB: w.S21DB, RangeLossDB: w.RangeLossDB, RangeDriftDB: w.RangeDriftDB,
-		GainDBi: w.GainDBi, GainExpandedUncertaintyDB: w.GainExpandedUncertaintyDB,
-		GTdBPerK: w.GTdBPerK, GTExpandedUncertaintyDB: w.GTExpandedUncertaintyDB, GTForm: w.GTForm,
-		NoiseRelativeKT0DB: w.NoiseRelativeKT0DB,
+		FrequencyHz: w.FrequencyHz.xs, S21DB: w.S21DB.xs, RangeLossDB: w.RangeLossDB.xs, RangeDriftDB: w.RangeDriftDB.xs,
+		GainDBi: w.GainDBi.xs, GainExpandedUncertaintyDB: w.GainExpandedUncertaintyDB.xs,
+		GTdBPerK: w.GTdBPerK.xs, GTExpandedUncertaintyDB: w.GTExpandedUncertaintyDB.xs, GTForm: w.GTForm,
+		NoiseRelativeKT0DB: w.NoiseRelativeKT0DB.xs,
 		Noise: convert(w.Noise, func(n noiseStatsWire) reduce.NoiseStatistics {
 			return reduce.NoiseStatistics{File: n.File, Quantity: n.Quantity, ScatterDB: float64(n.ScatterDB), RadiometerDB: float64(n.RadiometerDB), SmoothingPoints: n.SmoothingPoints}
 		}),
 		Interpolated: w.Interpolated,
-		GainBudget:   budgetFromWire(w.GainBudget, len(w.FrequencyHz), w.GainExpandedUncertaintyDB),
-		GTBudget:     budgetFromWire(w.GTBudget, len(w.FrequencyHz), w.GTExpandedUncertaintyDB),
+		GainBudget:   budgetFromWire(w.GainBudget, len(w.FrequencyHz.xs), w.GainExpandedUncertaintyDB.xs),
+		GTBudget:     budgetFromWire(w.GTBudget, len(w.FrequencyHz.xs), w.GTExpandedUncertaintyDB.xs),
 		LimitCurves: convert(w.LimitCurves, func(c limitCurveWire) reduce.LimitCurve {
-			return reduce.LimitCurve{Name: c.Name, Quantity: c.Quantity, Start: c.Start, LimitDB: c.LimitDB}
+			return reduce.LimitCurve{Name: c.Name, Quantity: c.Quantity, Start: c.Start, LimitDB: c.LimitDB.xs}
 		}),
 	}
 	if o := w.OtherForm; o != nil {
-		b.OtherForm = &reduce.OtherForm{Form: o.Form, GTdBPerK: o.GTdBPerK, DifferenceDB: o.DifferenceDB,
+		b.OtherForm = &reduce.OtherForm{Form: o.Form, GTdBPerK: o.GTdBPerK.xs, DifferenceDB: o.DifferenceDB.xs,
 			MaxAbsDifferenceDB: float64(o.MaxAbsDifferenceDB), MeanDifferenceDB: float64(o.MeanDifferenceDB)}
 	}
 	if p := w.Projection; p != nil {
 		b.Projection = &reduce.Projection{PassiveGainDBi: float64(p.PassiveGainDBi), ChamberAntennaK: float64(p.ChamberAntennaK),
-			OperatingAntennaK: float64(p.OperatingAntennaK), SystemNoiseK: p.SystemNoiseK, ReceiverNoiseK: p.ReceiverNoiseK,
-			OperatingGTdBPerK: p.OperatingGTdBPerK, Assumptions: p.Assumptions, NegativeReceiverNoiseHz: p.NegativeReceiverNoiseHz}
+			OperatingAntennaK: float64(p.OperatingAntennaK), SystemNoiseK: p.SystemNoiseK.xs, ReceiverNoiseK: p.ReceiverNoiseK.xs,
+			OperatingGTdBPerK: p.OperatingGTdBPerK.xs, Assumptions: p.Assumptions, NegativeReceiverNoiseHz: p.NegativeReceiverNoiseHz.xs}
 	}
 	return b
 }
@@ -564,9 +568,9 @@ func beamFromWire(w beamWire) reduce.Beam {
 // (restoreBudgetValues): a constant term at each of the n frequencies, and
 // the expanded uncertainty the beam's list (the same one in reduce).
 func budgetFromWire(w budgetWire, n int, expanded []float64) reduce.Budget {
-	b := reduce.Budget{CombinedDB: w.CombinedDB, CoverageK: float64(w.CoverageK)}
+	b := reduce.Budget{CombinedDB: w.CombinedDB.xs, CoverageK: float64(w.CoverageK)}
 	b.Terms = convert(w.Terms, func(t budgetTermWire) reduce.BudgetTerm {
-		rt := reduce.BudgetTerm{Name: t.Name, Source: t.Source, Distribution: t.Distribution, Divisor: float64(t.Divisor), StandardDB: t.StandardDB}
+		rt := reduce.BudgetTerm{Name: t.Name, Source: t.Source, Distribution: t.Distribution, Divisor: float64(t.Divisor), StandardDB: t.StandardDB.xs}
 		if t.ConstantStandardDB != nil {
 			rt.StandardDB = make([]float64, n)
 			for k := range rt.StandardDB {

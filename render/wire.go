@@ -75,6 +75,43 @@ func (xs *nums) UnmarshalJSON(b []byte) error {
 	return nil
 }
 
+// beamNums is a list of numbers of a beam in result.json: the bulk of the
+// file (some 400,000 numbers for 16 beams). encoding/json checks and
+// copies again every byte a MarshalJSON returns, which for these lists
+// cost more than writing them, so with a sink the list is left to it:
+// MarshalJSON writes listMark in its place, and indentJSON writes the
+// sink's lists where the marks are, in order (encoding/json writes the
+// fields in order). Without a sink it is written as nums.
+type beamNums struct {
+	xs   []float64
+	sink *listSink
+}
+
+// listSink holds the lists of beamNums whose MarshalJSON has run, in order.
+type listSink struct {
+	lists  [][]float64
+	points int
+}
+
+// listMark stands for a list of a sink in encoding/json's output: valid
+// JSON that no number of the wire form is written as (num writes no
+// exponent below 1e21, and e+21 above).
+const listMark = "[0e0]"
+
+func (l beamNums) MarshalJSON() ([]byte, error) {
+	if l.sink == nil {
+		return nums(l.xs).MarshalJSON()
+	}
+	l.sink.lists = append(l.sink.lists, l.xs)
+	l.sink.points += len(l.xs)
+	return []byte(listMark), nil
+}
+
+func (l *beamNums) UnmarshalJSON(b []byte) error { return (*nums)(&l.xs).UnmarshalJSON(b) }
+
+// IsZero makes omitzero leave out an empty list, as omitempty does a nums.
+func (l beamNums) IsZero() bool { return len(l.xs) == 0 }
+
 // parseNumber reads one JSON value that should be a number or null (NaN).
 func parseNumber(b []byte) (float64, error) {
 	if string(b) == "null" {
@@ -149,14 +186,27 @@ func jsonKind(b []byte) string {
 // appendIndented appends the JSON of the wire struct v, indented as
 // indentJSON says from depth on, and then suffix.
 func appendIndented(dst []byte, v any, depth int, suffix string) ([]byte, error) {
+	return appendIndentedLists(dst, v, depth, suffix, nil)
+}
+
+// appendIndentedLists is appendIndented of a v whose beamNums go to sink.
+func appendIndentedLists(dst []byte, v any, depth int, suffix string, sink *listSink) ([]byte, error) {
 	compact, err := json.Marshal(v)
 	if err != nil {
 		return nil, err
 	}
 	if dst == nil {
-		dst = make([]byte, 0, len(compact)+len(compact)/8)
+		n := len(compact) + len(compact)/8
+		if sink != nil {
+			n += sink.points * jsonFloatSize
+		}
+		dst = make([]byte, 0, n)
 	}
-	return append(indentJSON(dst, compact, depth), suffix...), nil
+	dst, rest := indentJSON(dst, compact, depth, sink)
+	if rest != 0 {
+		return nil, fmt.Errorf("render: %d lists of numbers not written", rest)
+	}
+	return append(dst, suffix...), nil
 }
 
 // indentJSON appends src, JSON as json.Marshal writes it (no space outside
@@ -164,8 +214,14 @@ func appendIndented(dst []byte, v any, depth int, suffix string) ([]byte, error)
 // a list whose first item is a number, a boolean or null stands on one
 // line as it is: its items are separated by a comma alone. The wire
 // structs make every list hold items of one kind, so such a list holds no
-// list, object or string. depth is the level src stands at.
-func indentJSON(dst, src []byte, depth int) []byte {
+// list, object or string. depth is the level src stands at. Each
+// listMark is replaced by the next list of sink (nil: none); rest is how
+// many lists were left.
+func indentJSON(dst, src []byte, depth int, sink *listSink) (out []byte, rest int) {
+	var lists [][]float64
+	if sink != nil {
+		lists = sink.lists
+	}
 	for i := 0; i < len(src); i++ {
 		c := src[i]
 		switch c {
@@ -186,6 +242,12 @@ func indentJSON(dst, src []byte, depth int) []byte {
 				continue
 			}
 			if c == '[' && next != '{' && next != '[' && next != '"' {
+				if len(lists) > 0 && bytes.HasPrefix(src[i:], []byte(listMark)) {
+					dst = appendFloatList(dst, lists[0])
+					lists = lists[1:]
+					i += len(listMark) - 1
+					continue
+				}
 				n := bytes.IndexByte(src[i:], ']')
 				dst = append(dst, src[i:i+n+1]...)
 				i += n
@@ -204,7 +266,7 @@ func indentJSON(dst, src []byte, depth int) []byte {
 			dst = append(dst, c)
 		}
 	}
-	return dst
+	return dst, len(lists)
 }
 
 // appendNewline starts a new line indented to depth.
