@@ -543,3 +543,12 @@ func mustTime(s string) time.Time {
 	}
 	return t
 }
+
+// mustDate parses a date YYYY-MM-DD of a test.
+func mustDate(s string) time.Time {
+	t, err := time.Parse(time.DateOnly, s)
+	if err != nil {
+		panic(err)
+	}
+	return t
+}

@@ -30,11 +30,11 @@ type RangeCheck struct {
 	Beam     string
 	GTdBPerK *float64
 	// ReferenceCertificate, ReferenceCalibrated and ReferenceDue are the
-	// reference antenna's (dates YYYY-MM-DD); PastDue says whether the run
-	// started after the due date.
+	// reference antenna's (dates, zero when not stated); PastDue says
+	// whether the run started after the due date.
 	ReferenceCertificate string
-	ReferenceCalibrated  string
-	ReferenceDue         string
+	ReferenceCalibrated  time.Time
+	ReferenceDue         time.Time
 	PastDue              bool
 }
 
@@ -42,8 +42,8 @@ type RangeCheck struct {
 type ReferenceHealth struct {
 	ID          string
 	Certificate string
-	Calibrated  string
-	Due         string
+	Calibrated  time.Time
+	Due         time.Time
 	// RunsAfterDue are the runs that used it after its due date, in time
 	// order.
 	RunsAfterDue []RangePoint
@@ -110,11 +110,8 @@ func RangeCheckOf(run *ingest.Run, st *ingest.Station, ref *ingest.Reference, rl
 		c.DriftToleranceDB = st.DriftToleranceDB
 	}
 	if ref != nil {
-		c.ReferenceCertificate, c.ReferenceCalibrated = ref.Certificate, formatDate(ref.Calibrated)
-		if !ref.Due.IsZero() {
-			c.ReferenceDue = formatDate(ref.Due)
-			c.PastDue = !run.Started.IsZero() && run.Started.After(ref.Due)
-		}
+		c.ReferenceCertificate, c.ReferenceCalibrated, c.ReferenceDue = ref.Certificate, ref.Calibrated, ref.Due
+		c.PastDue = !ref.Due.IsZero() && !run.Started.IsZero() && run.Started.After(ref.Due)
 	}
 	return c
 }

@@ -21,7 +21,7 @@ func TestRangeCheckOf(t *testing.T) {
 		DriftDB: []float64{0.01, 0.02, 0.03, 0.04}}
 	c := RangeCheckOf(run, &ingest.Station{DriftToleranceDB: 0.25}, ref, rl)
 	// Centre (10 + 13.5)/2 = 11.75 GHz: 12 GHz is nearer than 11.
-	if c == nil || c.FrequencyHz != 12e9 || c.RangeLossDB != 52 || c.DriftDB == nil || *c.DriftDB != 0.03 || !c.PastDue || c.ReferenceDue != "2027-02-10" || c.DriftToleranceDB != 0.25 {
+	if c == nil || c.FrequencyHz != 12e9 || c.RangeLossDB != 52 || c.DriftDB == nil || *c.DriftDB != 0.03 || !c.PastDue || !c.ReferenceDue.Equal(mustDate("2027-02-10")) || c.DriftToleranceDB != 0.25 {
 		t.Errorf("range check %+v", c)
 	}
 	run.Started = time.Date(2027, 2, 9, 9, 0, 0, 0, time.UTC)

@@ -140,8 +140,8 @@ type ReferenceInfo struct {
 	ID          string
 	Description string
 	Certificate string
-	Calibrated  string
-	Due         string
+	Calibrated  time.Time // dates, zero when not stated
+	Due         time.Time
 	GainKind    string
 	// Expired is true when the run started after the due date.
 	Expired bool

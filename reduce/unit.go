@@ -207,7 +207,7 @@ func reduceInto(u *Unit, in Input, cons *consequences) {
 
 	if ref := in.Reference; ref != nil {
 		u.Reference = ReferenceInfo{ID: ref.ID, Description: ref.Description, Certificate: ref.Certificate,
-			Calibrated: formatDate(ref.Calibrated), Due: formatDate(ref.Due), GainKind: ref.GainKind}
+			Calibrated: ref.Calibrated, Due: ref.Due, GainKind: ref.GainKind}
 		ctx.certificate = ref.Certificate
 		if ref.CoverageK > 0 && !math.IsInf(ref.CoverageK, 0) {
 			ctx.referenceK = ref.CoverageK

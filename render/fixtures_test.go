@@ -57,7 +57,7 @@ func fixtureUnit(t testing.TB, beams, points int) *reduce.Unit {
 		},
 		Reference: reduce.ReferenceInfo{
 			ID: "horn-0042", Description: "Ku-band standard gain horn",
-			Certificate: "LAB-26-0211", Calibrated: "2025-10-10", Due: "2026-10-10",
+			Certificate: "LAB-26-0211", Calibrated: mustDate("2025-10-10"), Due: mustDate("2026-10-10"),
 			GainKind: "realized", Expired: true,
 		},
 		Operator: hostileOperator,
@@ -474,6 +474,15 @@ func TestFixtureShape(t *testing.T) {
 // mustTime parses an RFC 3339 time of a test.
 func mustTime(s string) time.Time {
 	t, err := time.Parse(time.RFC3339, s)
+	if err != nil {
+		panic(err)
+	}
+	return t
+}
+
+// mustDate parses a date YYYY-MM-DD of a test.
+func mustDate(s string) time.Time {
+	t, err := time.Parse(time.DateOnly, s)
 	if err != nil {
 		panic(err)
 	}

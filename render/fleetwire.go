@@ -134,8 +134,8 @@ type rangePointWire struct {
 type referenceHealthWire struct {
 	ID           string           `json:"id"`
 	Certificate  string           `json:"certificate"`
-	Calibrated   string           `json:"calibrated"`
-	Due          string           `json:"due"`
+	Calibrated   day              `json:"calibrated"`
+	Due          day              `json:"due"`
 	RunsAfterDue []rangePointWire `json:"runs_after_due"`
 }
 
@@ -222,7 +222,7 @@ func rangeChartToWire(c reduce.RangeChart) rangeChartWire {
 }
 
 func referenceHealthToWire(r reduce.ReferenceHealth) referenceHealthWire {
-	return referenceHealthWire{ID: r.ID, Certificate: r.Certificate, Calibrated: r.Calibrated, Due: r.Due,
+	return referenceHealthWire{ID: r.ID, Certificate: r.Certificate, Calibrated: day(r.Calibrated), Due: day(r.Due),
 		RunsAfterDue: list(convert(r.RunsAfterDue, rangePointToWire))}
 }
 
@@ -285,8 +285,8 @@ type rangeCheckRecord struct {
 	Beam                 string `json:"beam,omitempty"`
 	GTdBPerK             *exact `json:"gt_db_per_k,omitempty"`
 	ReferenceCertificate string `json:"reference_certificate,omitempty"`
-	ReferenceCalibrated  string `json:"reference_calibrated,omitempty"`
-	ReferenceDue         string `json:"reference_due,omitempty"`
+	ReferenceCalibrated  day    `json:"reference_calibrated,omitzero"`
+	ReferenceDue         day    `json:"reference_due,omitzero"`
 	PastDue              bool   `json:"past_due,omitempty"`
 }
 
@@ -294,16 +294,16 @@ func rangeCheckToRecord(c reduce.RangeCheck) rangeCheckRecord {
 	return rangeCheckRecord{Run: c.Run, Started: stamp(c.Started), Station: c.Station, Reference: c.Reference,
 		FrequencyHz: exact(c.FrequencyHz), RangeLossDB: exact(c.RangeLossDB), DriftDB: (*exact)(c.DriftDB),
 		DriftToleranceDB: exact(c.DriftToleranceDB), Beam: c.Beam, GTdBPerK: (*exact)(c.GTdBPerK),
-		ReferenceCertificate: c.ReferenceCertificate, ReferenceCalibrated: c.ReferenceCalibrated,
-		ReferenceDue: c.ReferenceDue, PastDue: c.PastDue}
+		ReferenceCertificate: c.ReferenceCertificate, ReferenceCalibrated: day(c.ReferenceCalibrated),
+		ReferenceDue: day(c.ReferenceDue), PastDue: c.PastDue}
 }
 
 func rangeCheckFromRecord(r rangeCheckRecord) reduce.RangeCheck {
 	return reduce.RangeCheck{Run: r.Run, Started: time.Time(r.Started), Station: r.Station, Reference: r.Reference,
 		FrequencyHz: float64(r.FrequencyHz), RangeLossDB: float64(r.RangeLossDB), DriftDB: (*float64)(r.DriftDB),
 		DriftToleranceDB: float64(r.DriftToleranceDB), Beam: r.Beam, GTdBPerK: (*float64)(r.GTdBPerK),
-		ReferenceCertificate: r.ReferenceCertificate, ReferenceCalibrated: r.ReferenceCalibrated,
-		ReferenceDue: r.ReferenceDue, PastDue: r.PastDue}
+		ReferenceCertificate: r.ReferenceCertificate, ReferenceCalibrated: time.Time(r.ReferenceCalibrated),
+		ReferenceDue: time.Time(r.ReferenceDue), PastDue: r.PastDue}
 }
 
 type boresightRecord struct {

@@ -34,7 +34,7 @@ func healthFleet() *reduce.Fleet {
 		us = append(us, reduce.UnitSummary{Serial: serial, Product: "KU-PANEL-16", Started: started, Verdict: reduce.VerdictPass,
 			RangeChecks: []reduce.RangeCheck{{Run: "runs/" + serial + "/a", Started: started, Station: "range-b", Reference: "horn-0042",
 				FrequencyHz: 11.725e9, RangeLossDB: v, DriftDB: &drift, DriftToleranceDB: 0.25,
-				ReferenceCertificate: "LAB-26-0211", ReferenceCalibrated: "2026-02-10", ReferenceDue: "2027-06-01", PastDue: t.After(due)}}})
+				ReferenceCertificate: "LAB-26-0211", ReferenceCalibrated: mustDate("2026-02-10"), ReferenceDue: mustDate("2027-06-01"), PastDue: t.After(due)}}})
 	}
 	gold := reduce.UnitSummary{Serial: "KP16-GOLD-01", Product: "KU-PANEL-16", Started: mustTime("2027-07-01T09:00:00Z"), Verdict: reduce.VerdictPass, CheckUnit: true}
 	for k := 0; k < 12; k++ {

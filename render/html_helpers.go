@@ -60,6 +60,7 @@ func loadPages() (*template.Template, error) {
 			"inc":     func(i int) int { return i + 1 },
 			"noise":   noiseLabel,
 			"time":    timeText,
+			"date":    dateOf,
 			"count":   func(m map[reduce.Verdict]int, v string) int { return m[reduce.Verdict(v)] },
 		})
 		t, err := t.ParseFS(templates.FS, "*.tmpl")

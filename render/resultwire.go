@@ -78,8 +78,8 @@ type referenceWire struct {
 	ID          string `json:"id"`
 	Description string `json:"description"`
 	Certificate string `json:"certificate"`
-	Calibrated  string `json:"calibrated"`
-	Due         string `json:"due"`
+	Calibrated  day    `json:"calibrated"`
+	Due         day    `json:"due"`
 	GainKind    string `json:"gain_kind"`
 	Expired     bool   `json:"expired"`
 }
@@ -255,8 +255,8 @@ type rangeCheckWire struct {
 	Beam                 string `json:"beam,omitempty"`
 	GTdBPerK             *num   `json:"gt_db_per_k,omitempty"`
 	ReferenceCertificate string `json:"reference_certificate,omitempty"`
-	ReferenceCalibrated  string `json:"reference_calibrated,omitempty"`
-	ReferenceDue         string `json:"reference_due,omitempty"`
+	ReferenceCalibrated  day    `json:"reference_calibrated,omitzero"`
+	ReferenceDue         day    `json:"reference_due,omitzero"`
 	PastDue              bool   `json:"past_due,omitempty"`
 }
 
@@ -343,8 +343,9 @@ func unitToWire(u *reduce.Unit, sink *listSink) *unitWire {
 		Started: stamp(u.Started), Verdict: u.Verdict, DecisionRule: u.DecisionRule, SpecTitle: u.SpecTitle,
 		Station: stationWire{ID: u.Station.ID, Description: u.Station.Description, ReceiverMatch: num(u.Station.ReceiverMatch),
 			DriftToleranceDB: num(u.Station.DriftToleranceDB), MethodToleranceDB: num(u.Station.MethodToleranceDB)},
-		Reference: referenceWire(u.Reference),
-		Operator:  u.Operator, AmbientC: num(u.AmbientC), Firmware: u.Firmware,
+		Reference: referenceWire{ID: u.Reference.ID, Description: u.Reference.Description, Certificate: u.Reference.Certificate,
+			Calibrated: day(u.Reference.Calibrated), Due: day(u.Reference.Due), GainKind: u.Reference.GainKind, Expired: u.Reference.Expired},
+		Operator: u.Operator, AmbientC: num(u.AmbientC), Firmware: u.Firmware,
 		Beams:      list(convert(u.Beams, func(b reduce.Beam) beamWire { return beamToWire(b, sink) })),
 		Limits:     list(convert(u.Limits, limitResultToWire)),
 		Flags:      list(convert(u.Flags, func(f reduce.Flag) flagWire { return flagWire(f) })),
@@ -459,8 +460,8 @@ func rangeCheckToWire(c reduce.RangeCheck) rangeCheckWire {
 	return rangeCheckWire{Run: c.Run, Started: stamp(c.Started), Station: c.Station, Reference: c.Reference,
 		FrequencyHz: num(c.FrequencyHz), RangeLossDB: num(c.RangeLossDB), DriftDB: ptrNum(c.DriftDB),
 		DriftToleranceDB: num(c.DriftToleranceDB), Beam: c.Beam, GTdBPerK: ptrNum(c.GTdBPerK),
-		ReferenceCertificate: c.ReferenceCertificate, ReferenceCalibrated: c.ReferenceCalibrated,
-		ReferenceDue: c.ReferenceDue, PastDue: c.PastDue}
+		ReferenceCertificate: c.ReferenceCertificate, ReferenceCalibrated: day(c.ReferenceCalibrated),
+		ReferenceDue: day(c.ReferenceDue), PastDue: c.PastDue}
 }
 
 func rangeCheckPtrToWire(c *reduce.RangeCheck) *rangeCheckWire {
@@ -487,8 +488,9 @@ func unitFromWire(w *unitWire) *reduce.Unit {
 		DecisionRule: w.DecisionRule, SpecTitle: w.SpecTitle,
 		Station: reduce.StationInfo{ID: w.Station.ID, Description: w.Station.Description, ReceiverMatch: float64(w.Station.ReceiverMatch),
 			DriftToleranceDB: float64(w.Station.DriftToleranceDB), MethodToleranceDB: float64(w.Station.MethodToleranceDB)},
-		Reference: reduce.ReferenceInfo(w.Reference),
-		Operator:  w.Operator, AmbientC: float64(w.AmbientC), Firmware: w.Firmware,
+		Reference: reduce.ReferenceInfo{ID: w.Reference.ID, Description: w.Reference.Description, Certificate: w.Reference.Certificate,
+			Calibrated: time.Time(w.Reference.Calibrated), Due: time.Time(w.Reference.Due), GainKind: w.Reference.GainKind, Expired: w.Reference.Expired},
+		Operator: w.Operator, AmbientC: float64(w.AmbientC), Firmware: w.Firmware,
 		Beams:    convert(w.Beams, beamFromWire),
 		Limits:   convert(w.Limits, limitResultFromWire),
 		Flags:    convert(w.Flags, func(f flagWire) reduce.Flag { return reduce.Flag(f) }),
@@ -598,8 +600,8 @@ func rangeCheckFromWire(w rangeCheckWire) reduce.RangeCheck {
 	return reduce.RangeCheck{Run: w.Run, Started: time.Time(w.Started), Station: w.Station, Reference: w.Reference,
 		FrequencyHz: float64(w.FrequencyHz), RangeLossDB: float64(w.RangeLossDB), DriftDB: ptrFloat(w.DriftDB),
 		DriftToleranceDB: float64(w.DriftToleranceDB), Beam: w.Beam, GTdBPerK: ptrFloat(w.GTdBPerK),
-		ReferenceCertificate: w.ReferenceCertificate, ReferenceCalibrated: w.ReferenceCalibrated,
-		ReferenceDue: w.ReferenceDue, PastDue: w.PastDue}
+		ReferenceCertificate: w.ReferenceCertificate, ReferenceCalibrated: time.Time(w.ReferenceCalibrated),
+		ReferenceDue: time.Time(w.ReferenceDue), PastDue: w.PastDue}
 }
 
 func rangeCheckPtrFromWire(w *rangeCheckWire) *reduce.RangeCheck {

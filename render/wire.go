@@ -22,7 +22,8 @@ import (
 //     one bad point), and null reads back as NaN;
 //   - nums is a list of them, written and read as a whole (a result.json
 //     holds some 400,000 numbers, nearly all in such lists);
-//   - stamp is a time as RFC 3339 in UTC, "" for the zero time.
+//   - stamp is a time as RFC 3339 in UTC, day a date (YYYY-MM-DD), both ""
+//     for the zero time.
 //
 // appendIndented lays the compact encoding out with indentJSON.
 
@@ -153,7 +154,29 @@ func (t *stamp) UnmarshalText(b []byte) error {
 	return nil
 }
 
-// wireValueError is a value that num, nums or stamp refuse. encoding/json
+// day is a date of the wire form: YYYY-MM-DD in UTC, "" for the zero
+// time.
+type day time.Time
+
+// IsZero makes omitzero leave out the zero time.
+func (t day) IsZero() bool { return time.Time(t).IsZero() }
+
+func (t day) MarshalText() ([]byte, error) { return []byte(dateOf(time.Time(t))), nil }
+
+func (t *day) UnmarshalText(b []byte) error {
+	if len(b) == 0 {
+		*t = day{}
+		return nil
+	}
+	v, err := time.Parse(time.DateOnly, string(b))
+	if err != nil {
+		return &wireValueError{text: strconv.AppendQuote(nil, string(b)), what: "the text " + strconv.Quote(string(b)), want: "a date YYYY-MM-DD"}
+	}
+	*t = day(v)
+	return nil
+}
+
+// wireValueError is a value that num, nums, stamp or day refuse. encoding/json
 // does not say where a value it hands them stands, so text is that value's
 // JSON text, for wireProblem to find.
 type wireValueError struct {

@@ -692,7 +692,7 @@ func summaryFields(u *reduce.Unit) [][2]any {
 	if ref.Description != "" {
 		refText += " - " + ref.Description
 	}
-	due := ref.Due
+	due := dateOf(ref.Due)
 	if ref.Expired {
 		due += " (expired before the run)"
 	}
@@ -745,7 +745,7 @@ func summaryFields(u *reduce.Unit) [][2]any {
 		{"Station", station},
 		{"Reference", refText},
 		{"Reference certificate", ref.Certificate},
-		{"Reference calibrated", ref.Calibrated},
+		{"Reference calibrated", dateOf(ref.Calibrated)},
 		{"Reference due", due},
 		{"Operator", u.Operator},
 		{"Ambient (°C)", u.AmbientC},
