@@ -272,7 +272,7 @@ func writeMonthlyYield(b *xlBook, sheet string, f *reduce.Fleet) {
 		first := r
 		for _, m := range p.Months {
 			b.set(sheet, 1, r, p.Product)
-			b.setDate(sheet, 2, r, m.Month, nfMonth)
+			b.setMonth(sheet, 2, r, m.Month, nfMonth)
 			for j, v := range []any{m.Units, m.VerdictCounts[reduce.VerdictPass], m.VerdictCounts[reduce.VerdictConditionalPass],
 				m.VerdictCounts[reduce.VerdictConditionalFail], m.VerdictCounts[reduce.VerdictFail], m.VerdictCounts[reduce.VerdictIncomplete],
 				m.FirstPassYield, m.FinalYield, m.Retested} {

@@ -556,8 +556,8 @@ func histogramChart(ms []float64) (chartSpec, error) {
 		Caption: fmt.Sprintf("Each unit counted once at its worst margin over all limits; bins of %s dB aligned on 0 dB; red bins are below the limit; the number above a bar is its count.", fmtFixed(step, 2))}, err
 }
 
-// epochMS is an RFC 3339 time in milliseconds since 1970 (a time axis's
-// value); ok is false when it does not parse.
+// epochMS is t, to the second as result.json writes it, in milliseconds
+// since 1970 (a time axis's value); ok is false for the zero time.
 func epochMS(t time.Time) (int64, bool) {
 	if t.IsZero() {
 		return 0, false

@@ -431,10 +431,10 @@ func (b *xlBook) setRow(sheet string, row int, values ...any) {
 	}
 }
 
-// setDate writes a date cell (dateCell) with a date format; a text
-// that is not a date is written as text.
-func (b *xlBook) setDate(sheet string, col, row int, s, format string) {
-	d := dateCell(s)
+// setMonth writes a month (monthCell) as a date cell with a date format;
+// a text that is not a month is written as text.
+func (b *xlBook) setMonth(sheet string, col, row int, s, format string) {
+	d := monthCell(s)
 	if !d.ok {
 		b.set(sheet, col, row, d.text)
 		return
@@ -1054,13 +1054,10 @@ type xlDate struct {
 	text   string
 }
 
-// dateCell reads an RFC 3339 time (or a YYYY-MM-DD or YYYY-MM date) for a
-// date cell.
-func dateCell(s string) xlDate {
-	for _, layout := range []string{time.RFC3339, "2006-01-02", "2006-01"} {
-		if t, err := time.Parse(layout, s); err == nil {
-			return xlDate{serial: excelSerial(t), ok: true, text: s}
-		}
+// monthCell reads a month, YYYY-MM (reduce.MonthYield), for a date cell.
+func monthCell(s string) xlDate {
+	if t, err := time.Parse("2006-01", s); err == nil {
+		return xlDate{serial: excelSerial(t), ok: true, text: s}
 	}
 	return xlDate{text: s}
 }
