@@ -14,18 +14,21 @@ import (
 
 // The wire form of result.json, fleet.json and the build's cache records:
 // structs of render's own (resultwire.go, fleetwire.go), which
-// encoding/json writes and reads, with three types of this file for what
-// it does not do as the contract wants:
+// encoding/json writes and reads, with the types of this file for what it
+// does not do as the contract wants:
 //
 //   - num is a number rounded as appendJSONFloat says, null when it is not
 //     finite (NaN, +Inf, -Inf have no JSON form; a unit is not refused for
 //     one bad point), and null reads back as NaN;
 //   - nums is a list of them, written and read as a whole (a result.json
-//     holds some 400,000 numbers, nearly all in such lists);
+//     holds some 400,000 numbers, nearly all in such lists), and beamNums
+//     the same for a beam's lists, which can skip encoding/json's copy;
 //   - stamp is a time as RFC 3339 in UTC, day a date (YYYY-MM-DD), both ""
 //     for the zero time.
 //
-// appendIndented lays the compact encoding out with indentJSON.
+// The cache records' numbers are exact and exacts (fleetwire.go).
+// appendIndented lays the compact encoding out with indentJSON: two spaces
+// a level, each list of numbers on one line.
 
 // num is a float64 of the wire form.
 type num float64
