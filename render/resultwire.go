@@ -12,10 +12,10 @@ import (
 // the budgets short (below).
 const ResultSchema = 2
 
-// The wire form of result.json: fields in the
-// order the contract has them (archive-format.md, "Site layout"), empty
-// lists as [] rather than null, so that readers can take the length of any
-// list the contract names. Schema 2 writes the budgets short: a term the
+// The wire form of result.json (archive-format.md, "Site layout", names
+// its main fields): field names and order are public, empty lists are []
+// rather than null, so that readers can take the length of any list the
+// contract names. Schema 2 writes the budgets short: a term the
 // same at every frequency as one value (constant_standard_db), no
 // expanded_db beside the beam's expanded uncertainty (the same list), and
 // no stated values beside the standard ones (value = standard * divisor).
