@@ -31,7 +31,7 @@ func Divisor(distribution string, coverageK float64) (float64, error) {
 
 // NewBudgetTerm builds a budget row from its stated values per frequency
 // point (expanded U or half-width) and its divisor.
-func NewBudgetTerm(name, source, distribution string, divisor float64, valuesDB []float64) BudgetTerm {
+func NewBudgetTerm(name string, source TermSource, distribution string, divisor float64, valuesDB []float64) BudgetTerm {
 	t := BudgetTerm{
 		Name:         name,
 		Source:       source,
@@ -115,14 +115,14 @@ func buildBudgets(ctx *beamContext, b *Beam, refU, refMismatch, autMatch []float
 		if ctx.certificate != "" {
 			name += " (certificate " + ctx.certificate + ")"
 		}
-		common = append(common, NewBudgetTerm(name, sourceData, distributionNormal, ctx.referenceK, refU))
+		common = append(common, NewBudgetTerm(name, SourceData, distributionNormal, ctx.referenceK, refU))
 	}
 	if b.RangeDriftDB != nil {
 		half := make([]float64, n)
 		for i, d := range b.RangeDriftDB {
 			half[i] = d / 2
 		}
-		common = append(common, NewBudgetTerm("Range drift (pre/post), half-width drift/2", sourceData,
+		common = append(common, NewBudgetTerm("Range drift (pre/post), half-width drift/2", SourceData,
 			distributionRect, math.Sqrt(3), half))
 	}
 	mismatch := func(name string, gamma []float64) BudgetTerm {
@@ -130,16 +130,16 @@ func buildBudgets(ctx *beamContext, b *Beam, refU, refMismatch, autMatch []float
 		for i, g := range gamma {
 			a[i] = MismatchHalfWidthDB(g, ctx.receiverMatch)
 		}
-		return NewBudgetTerm(name, sourceData, distributionUShaped, math.Sqrt2, a)
+		return NewBudgetTerm(name, SourceData, distributionUShaped, math.Sqrt2, a)
 	}
 	if refMismatch != nil {
-		common = append(common, NewBudgetTerm("Mismatch of the reference antenna at the receiver port", sourceData,
+		common = append(common, NewBudgetTerm("Mismatch of the reference antenna at the receiver port", SourceData,
 			distributionUShaped, math.Sqrt2, refMismatch))
 	}
 	station := func(terms []stationTerm) []BudgetTerm {
 		var out []BudgetTerm
 		for _, t := range terms {
-			out = append(out, ctx.constantTerm(t.name, sourceStation, t.distribution, t.divisor, t.valueDB, n))
+			out = append(out, ctx.constantTerm(t.name, SourceStation, t.distribution, t.divisor, t.valueDB, n))
 		}
 		return out
 	}
@@ -154,12 +154,12 @@ func buildBudgets(ctx *beamContext, b *Beam, refU, refMismatch, autMatch []float
 	}
 	if b.GTdBPerK != nil {
 		terms := append([]BudgetTerm(nil), common...)
-		terms = append(terms, ctx.constantTerm("Noise trace scatter ("+scatterFile+")", sourceData,
+		terms = append(terms, ctx.constantTerm("Noise trace scatter ("+scatterFile+")", SourceData,
 			distributionNormal, 1, scatterDB, n))
 		if ctx.ambientOK && !b.Projection.Usable() {
 			terms = append(terms, ctx.constantTerm(fmt.Sprintf(
 				"Ambient temperature %.2f K against 290 K, half-width |10 log10(T_amb/290)|", ctx.ambientK),
-				sourceData, distributionRect, math.Sqrt(3), AmbientHalfWidthDB(ctx.ambientK), n))
+				SourceData, distributionRect, math.Sqrt(3), AmbientHalfWidthDB(ctx.ambientK), n))
 		}
 		terms = append(terms, station(ctx.stationGT)...)
 		b.GTBudget = CombineBudget(terms, n, ExpandedCoverageK)

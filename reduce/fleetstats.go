@@ -172,11 +172,11 @@ func (b *FleetBuilder) Add(u UnitSummary) error {
 			}
 		}
 		if j < 0 {
-			rec.Limits = append(rec.Limits, FleetUnitLimit{Name: intern(l.Name), WorstMarginDB: math.NaN(), Verdict: intern(l.Verdict)})
+			rec.Limits = append(rec.Limits, FleetUnitLimit{Name: intern(l.Name), WorstMarginDB: math.NaN(), Verdict: Verdict(intern(string(l.Verdict)))})
 			rec.judged = append(rec.judged, fleetJudged{worst: math.Inf(1), rank: -1})
 			j = len(rec.Limits) - 1
 		} else {
-			rec.Limits[j].Verdict = intern(WorseVerdict(rec.Limits[j].Verdict, l.Verdict))
+			rec.Limits[j].Verdict = Verdict(intern(string(WorseVerdict(rec.Limits[j].Verdict, l.Verdict))))
 		}
 		e, jd := &rec.Limits[j], &rec.judged[j]
 		if !projFinite(l.WorstMarginDB) {
@@ -258,7 +258,7 @@ func (p *fleetProductAcc) at(i, k int) float64 {
 
 // Finish returns the fleet of the units added so far.
 func (b *FleetBuilder) Finish() *Fleet {
-	f := &Fleet{Schema: FleetSchema, Units: make([]FleetUnit, len(b.units)), Products: []ProductFleet{}}
+	f := &Fleet{Units: make([]FleetUnit, len(b.units)), Products: []ProductFleet{}}
 	names := make([]string, 0, len(b.products))
 	for n := range b.products {
 		names = append(names, n)
@@ -281,47 +281,26 @@ func (b *FleetBuilder) Finish() *Fleet {
 
 // product computes one product's statistics.
 func (b *FleetBuilder) product(name string, acc *fleetProductAcc) ProductFleet {
-	p := ProductFleet{Product: name, Units: len(acc.units), VerdictCounts: map[string]int{},
+	p := ProductFleet{Product: name, Units: len(acc.units), VerdictCounts: map[Verdict]int{},
 		Limits: []LimitStats{}, Watch: []WatchEntry{}}
 	for _, i := range acc.units {
 		p.VerdictCounts[b.units[i].Verdict]++
 	}
-	// Test order: start (parsed once per unit), then serial.
-	type key struct {
-		t      time.Time
-		parsed bool
-		rec    *fleetRecord
-	}
-	keys := make([]key, len(acc.units))
+	// Test order: start, then serial.
+	inTestOrder := make([]*fleetRecord, len(acc.units))
 	for j, i := range acc.units {
-		r := &b.units[i]
-		t, err := time.Parse(time.RFC3339, r.Started)
-		keys[j] = key{t, err == nil, r}
+		inTestOrder[j] = &b.units[i]
 	}
-	before := func(a, c *key) bool {
-		switch {
-		case a.parsed && c.parsed:
-			return a.t.Before(c.t)
-		case a.parsed:
-			return true
-		case c.parsed:
-			return false
-		}
-		return a.rec.Started < c.rec.Started
-	}
-	sort.SliceStable(keys, func(a, c int) bool {
-		if before(&keys[a], &keys[c]) {
+	sort.SliceStable(inTestOrder, func(a, c int) bool {
+		ra, rc := inTestOrder[a], inTestOrder[c]
+		if fleetTestBefore(ra.Started, rc.Started) {
 			return true
 		}
-		if before(&keys[c], &keys[a]) {
+		if fleetTestBefore(rc.Started, ra.Started) {
 			return false
 		}
-		return keys[a].rec.Serial < keys[c].rec.Serial
+		return ra.Serial < rc.Serial
 	})
-	inTestOrder := make([]*fleetRecord, len(keys))
-	for j := range keys {
-		inTestOrder[j] = keys[j].rec
-	}
 	var limitNames []string
 	seen := map[string]bool{}
 	for _, u := range inTestOrder {
@@ -342,10 +321,10 @@ func (b *FleetBuilder) product(name string, acc *fleetProductAcc) ProductFleet {
 
 // passed says whether a verdict counts towards yield: pass or
 // conditional pass.
-func passed(v string) bool { return v == VerdictPass || v == VerdictConditionalPass }
+func passed(v Verdict) bool { return v == VerdictPass || v == VerdictConditionalPass }
 
 // judged says whether a verdict is a judgement (not incomplete).
-func judged(v string) bool { _, ok := fleetVerdictRank(v); return ok }
+func judged(v Verdict) bool { _, ok := fleetVerdictRank(v); return ok }
 
 // yields are the first-pass and final yields of units (in test order),
 // overall and per calendar month of the acceptance run.
@@ -357,12 +336,12 @@ func yields(units []*fleetRecord) (firstPass, final float64, months []MonthYield
 	counts := map[string]*acc{}
 	for _, u := range units {
 		m := "unknown"
-		if t, err := time.Parse(time.RFC3339, u.Started); err == nil {
-			m = t.UTC().Format("2006-01")
+		if !u.Started.IsZero() {
+			m = u.Started.UTC().Format("2006-01")
 		}
 		my := byMonth[m]
 		if my == nil {
-			my = &MonthYield{Month: m, VerdictCounts: map[string]int{}}
+			my = &MonthYield{Month: m, VerdictCounts: map[Verdict]int{}}
 			byMonth[m] = my
 			counts[m] = &acc{}
 		}
@@ -405,7 +384,7 @@ func yields(units []*fleetRecord) (firstPass, final float64, months []MonthYield
 
 // fleetVerdictRank ranks a judged verdict, best first; ok is false for
 // incomplete or unknown verdicts.
-func fleetVerdictRank(v string) (rank int, ok bool) {
+func fleetVerdictRank(v Verdict) (rank int, ok bool) {
 	switch v {
 	case VerdictPass:
 		return 0, true
@@ -422,7 +401,7 @@ func fleetVerdictRank(v string) (rank int, ok bool) {
 // fleetLimit is the statistics of one limit; us is in test order.
 func fleetLimit(name string, us []*fleetRecord) LimitStats {
 	ls := LimitStats{Name: name, Outliers: []Outlier{}}
-	ls.Chart = ControlChart{Serials: []string{}, Started: []string{}, ValuesDB: []float64{}, Beyond: []int{}}
+	ls.Chart = ControlChart{Serials: []string{}, Started: []time.Time{}, ValuesDB: []float64{}, Beyond: []int{}}
 	cp, _ := fleetVerdictRank(VerdictConditionalPass)
 	for _, u := range us {
 		var jd *fleetJudged
@@ -605,20 +584,13 @@ func fleetMedian(x []float64) float64 {
 	return sortedMedian(s)
 }
 
-// fleetTestBefore orders two starts: RFC 3339 times compare as instants,
-// and come before starts that do not parse, which compare as text.
-func fleetTestBefore(a, b string) bool {
-	ta, ea := time.Parse(time.RFC3339, a)
-	tb, eb := time.Parse(time.RFC3339, b)
-	switch {
-	case ea == nil && eb == nil:
-		return ta.Before(tb)
-	case ea == nil:
-		return true
-	case eb == nil:
-		return false
+// fleetTestBefore orders two starts: known starts as instants, before
+// unknown (zero) ones.
+func fleetTestBefore(a, b time.Time) bool {
+	if a.IsZero() || b.IsZero() {
+		return !a.IsZero() && b.IsZero()
 	}
-	return a < b
+	return a.Before(b)
 }
 
 // maxBandGridPoints bounds the golden band's grid: the builder keeps every

@@ -6,6 +6,7 @@ import (
 	"math"
 	"reflect"
 	"testing"
+	"time"
 )
 
 // marginUnits makes one unit per margin, serials U01..., started one day
@@ -20,7 +21,7 @@ func marginUnits(margins []float64) []UnitSummary {
 		us = append(us, UnitSummary{
 			Serial:  fmt.Sprintf("U%02d", i+1),
 			Product: "P",
-			Started: fmt.Sprintf("2026-11-%02dT09:00:00Z", i+1),
+			Started: mustTime(fmt.Sprintf("2026-11-%02dT09:00:00Z", i+1)),
 			Verdict: v,
 			Limits:  []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: m, Verdict: v}},
 		})
@@ -108,7 +109,7 @@ func TestFleetModifiedZOutliers(t *testing.T) {
 func TestFleetYieldAndVerdicts(t *testing.T) {
 	// Yield = (pass + conditional-pass)/judged; incomplete results are not
 	// judged. Per unit the worst margin over the limit's beams counts.
-	lim := func(beam string, m float64, v string) LimitResult {
+	lim := func(beam string, m float64, v Verdict) LimitResult {
 		return LimitResult{Name: "G/T", Beam: beam, WorstMarginDB: m, Verdict: v}
 	}
 	us := []UnitSummary{
@@ -124,7 +125,7 @@ func TestFleetYieldAndVerdicts(t *testing.T) {
 		t.Fatalf("products %+v", f.Products)
 	}
 	p := f.Products[0]
-	wantCounts := map[string]int{VerdictPass: 1, VerdictConditionalPass: 1, VerdictConditionalFail: 1, VerdictFail: 1, VerdictIncomplete: 1}
+	wantCounts := map[Verdict]int{VerdictPass: 1, VerdictConditionalPass: 1, VerdictConditionalFail: 1, VerdictFail: 1, VerdictIncomplete: 1}
 	if p.Units != 5 || !reflect.DeepEqual(p.VerdictCounts, wantCounts) {
 		t.Errorf("units %d counts %v", p.Units, p.VerdictCounts)
 	}
@@ -153,7 +154,7 @@ func bandFleet() []UnitSummary {
 		}
 		us = append(us, UnitSummary{
 			Serial: fmt.Sprintf("U%02d", u), Product: "P", Verdict: VerdictPass,
-			Started:   fmt.Sprintf("2026-10-%02dT08:00:00Z", 20-u),
+			Started:   mustTime(fmt.Sprintf("2026-10-%02dT08:00:00Z", 20-u)),
 			Limits:    []LimitResult{{Name: "L", WorstMarginDB: 1 + off, Verdict: VerdictPass}},
 			Boresight: tr,
 		})
@@ -263,9 +264,10 @@ func TestFleetDeterministic(t *testing.T) {
 	if string(a) != string(b) {
 		t.Error("fleet JSON depends on the order of units")
 	}
-	empty, err := json.Marshal(ComputeFleet(nil))
-	if err != nil || string(empty) != `{"schema":2,"units":[],"products":[],"stations":[],"references":[],"check_units":[]}` {
-		t.Errorf("empty fleet: %s %v", empty, err)
+	empty := ComputeFleet(nil)
+	if empty.Units == nil || empty.Products == nil || empty.Stations == nil || empty.References == nil || empty.CheckUnits == nil ||
+		len(empty.Units)+len(empty.Products)+len(empty.Stations)+len(empty.References)+len(empty.CheckUnits) > 0 {
+		t.Errorf("empty fleet: %+v, want empty lists", empty)
 	}
 }
 
@@ -286,7 +288,7 @@ func BenchmarkComputeFleet(b *testing.B) {
 			ls = append(ls, LimitResult{Name: name, WorstMarginDB: 1 + off, Verdict: VerdictPass})
 		}
 		us = append(us, UnitSummary{Serial: fmt.Sprintf("S%05d", u), Product: "P", Verdict: VerdictPass,
-			Started: fmt.Sprintf("2026-%02d-%02dT08:00:00Z", 1+u%12, 1+u%28), Limits: ls, Boresight: tr})
+			Started: mustTime(fmt.Sprintf("2026-%02d-%02dT08:00:00Z", 1+u%12, 1+u%28)), Limits: ls, Boresight: tr})
 	}
 	for b.Loop() {
 		ComputeFleet(us)
@@ -308,7 +310,7 @@ func TestFleetWatchIgnoresPointScatter(t *testing.T) {
 			tr.GTdBPerK = append(tr.GTdBPerK, 3+0.02*float64(u%4)+scatter)
 		}
 		us = append(us, UnitSummary{Serial: fmt.Sprintf("W%02d", u), Product: "P", Verdict: VerdictPass,
-			Started: fmt.Sprintf("2026-10-%02dT08:00:00Z", 1+u), Boresight: tr})
+			Started: mustTime(fmt.Sprintf("2026-10-%02dT08:00:00Z", 1+u)), Boresight: tr})
 	}
 	// W05 is 1 dB low from 11.0 to 11.25 GHz (points 400..500).
 	for k := 400; k <= 500; k++ {
@@ -340,7 +342,7 @@ func TestFleetBuilderUnitLimits(t *testing.T) {
 		results    []LimitResult
 		beam       string
 		worst      float64 // NaN: none finite
-		verdict    string
+		verdict    Verdict
 		chartValue float64 // NaN: not judged, not on the chart
 	}{
 		{"one beam", []LimitResult{{Beam: "b00", WorstMarginDB: 0.5, Verdict: VerdictPass}}, "b00", 0.5, VerdictPass, 0.5},
@@ -479,8 +481,8 @@ func TestFleetBandGridBounded(t *testing.T) {
 //	December: U06 fail then fail (2 runs): 0/1 and 0/1; retested 1.
 //	Overall:  first pass 2/5 = 0.4, final 3/5 = 0.6.
 func TestFleetYieldByMonth(t *testing.T) {
-	mk := func(serial, started, first, final string, runs int) UnitSummary {
-		return UnitSummary{Serial: serial, Product: "P", Started: started, Verdict: final, FirstVerdict: first, Runs: runs,
+	mk := func(serial, started string, first, final Verdict, runs int) UnitSummary {
+		return UnitSummary{Serial: serial, Product: "P", Started: mustTime(started), Verdict: final, FirstVerdict: first, Runs: runs,
 			Limits: []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: 1, Verdict: final}}}
 	}
 	us := []UnitSummary{
@@ -531,4 +533,22 @@ func TestFleetSmallSamples(t *testing.T) {
 	if ls.Chart.TooFew || ls.Indicative {
 		t.Errorf("thirty units: too few %v indicative %v", ls.Chart.TooFew, ls.Indicative)
 	}
+}
+
+// mustTime parses an RFC 3339 time of a test.
+func mustTime(s string) time.Time {
+	t, err := time.Parse(time.RFC3339, s)
+	if err != nil {
+		panic(err)
+	}
+	return t
+}
+
+// mustDate parses a date YYYY-MM-DD of a test.
+func mustDate(s string) time.Time {
+	t, err := time.Parse(time.DateOnly, s)
+	if err != nil {
+		panic(err)
+	}
+	return t
 }

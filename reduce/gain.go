@@ -60,7 +60,7 @@ func (ctx *beamContext) constantRow(v float64, n int) []float64 {
 }
 
 // constantTerm is a budget row whose value is the same at every point.
-func (ctx *beamContext) constantTerm(name, source, distribution string, divisor, valueDB float64, n int) BudgetTerm {
+func (ctx *beamContext) constantTerm(name string, source TermSource, distribution string, divisor, valueDB float64, n int) BudgetTerm {
 	return BudgetTerm{Name: name, Source: source, Distribution: distribution, Divisor: divisor,
 		ValueDB: ctx.constantRow(valueDB, n), StandardDB: ctx.constantRow(math.Abs(valueDB)/divisor, n)}
 }

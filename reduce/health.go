@@ -12,41 +12,41 @@ import (
 // range loss at the centre of its reference measurement's grid, the
 // pre/post drift there, and what the run used.
 type RangeCheck struct {
-	Run       string `json:"run"`
-	Started   string `json:"started"`
-	Station   string `json:"station"`
-	Reference string `json:"reference"`
+	Run       string
+	Started   time.Time
+	Station   string
+	Reference string
 	// FrequencyHz is where it is read: the grid point nearest the centre
 	// of the range-loss grid.
-	FrequencyHz float64 `json:"frequency_hz"`
-	RangeLossDB float64 `json:"range_loss_db"`
+	FrequencyHz float64
+	RangeLossDB float64
 	// DriftDB is |RL_pre - RL_post| there; nil with one measurement.
-	DriftDB *float64 `json:"drift_db,omitempty"`
+	DriftDB *float64
 	// DriftToleranceDB is the station's allowed drift (0 when unknown).
-	DriftToleranceDB float64 `json:"drift_tolerance_db,omitempty"`
+	DriftToleranceDB float64
 	// Beam and GTdBPerK are the G/T of the beam nearest boresight at the
 	// grid point nearest FrequencyHz (what a check unit's chart shows);
 	// nil when no beam has a G/T.
-	Beam     string   `json:"beam,omitempty"`
-	GTdBPerK *float64 `json:"gt_db_per_k,omitempty"`
+	Beam     string
+	GTdBPerK *float64
 	// ReferenceCertificate, ReferenceCalibrated and ReferenceDue are the
-	// reference antenna's (dates YYYY-MM-DD); PastDue says whether the run
-	// started after the due date.
-	ReferenceCertificate string `json:"reference_certificate,omitempty"`
-	ReferenceCalibrated  string `json:"reference_calibrated,omitempty"`
-	ReferenceDue         string `json:"reference_due,omitempty"`
-	PastDue              bool   `json:"past_due,omitempty"`
+	// reference antenna's (dates, zero when not stated); PastDue says
+	// whether the run started after the due date.
+	ReferenceCertificate string
+	ReferenceCalibrated  time.Time
+	ReferenceDue         time.Time
+	PastDue              bool
 }
 
 // ReferenceHealth is a reference antenna as the runs used it.
 type ReferenceHealth struct {
-	ID          string `json:"id"`
-	Certificate string `json:"certificate"`
-	Calibrated  string `json:"calibrated"`
-	Due         string `json:"due"`
+	ID          string
+	Certificate string
+	Calibrated  time.Time
+	Due         time.Time
 	// RunsAfterDue are the runs that used it after its due date, in time
 	// order.
-	RunsAfterDue []RangePoint `json:"runs_after_due"`
+	RunsAfterDue []RangePoint
 }
 
 // ReferencesHealth lists each reference antenna the checks name, by id,
@@ -54,7 +54,7 @@ type ReferenceHealth struct {
 // The dates are those of the latest run's record of it.
 func ReferencesHealth(checks map[string][]RangeCheck) []ReferenceHealth {
 	byID := map[string]*ReferenceHealth{}
-	latest := map[string]string{}
+	latest := map[string]time.Time{}
 	serials := make([]string, 0, len(checks))
 	for s := range checks {
 		serials = append(serials, s)
@@ -67,7 +67,7 @@ func ReferencesHealth(checks map[string][]RangeCheck) []ReferenceHealth {
 				r = &ReferenceHealth{ID: c.Reference, RunsAfterDue: []RangePoint{}}
 				byID[c.Reference] = r
 			}
-			if c.Started >= latest[c.Reference] {
+			if !c.Started.Before(latest[c.Reference]) {
 				latest[c.Reference] = c.Started
 				r.Certificate, r.Calibrated, r.Due = c.ReferenceCertificate, c.ReferenceCalibrated, c.ReferenceDue
 			}
@@ -78,7 +78,7 @@ func ReferencesHealth(checks map[string][]RangeCheck) []ReferenceHealth {
 	}
 	out := []ReferenceHealth{}
 	for _, r := range byID {
-		sort.SliceStable(r.RunsAfterDue, func(i, j int) bool { return r.RunsAfterDue[i].Started < r.RunsAfterDue[j].Started })
+		sort.SliceStable(r.RunsAfterDue, func(i, j int) bool { return r.RunsAfterDue[i].Started.Before(r.RunsAfterDue[j].Started) })
 		out = append(out, *r)
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].ID < out[j].ID })
@@ -101,9 +101,7 @@ func RangeCheckOf(run *ingest.Run, st *ingest.Station, ref *ingest.Reference, rl
 		return nil
 	}
 	c := &RangeCheck{Run: run.Dir, Station: run.Station, Reference: run.Reference, FrequencyHz: f[k], RangeLossDB: rl.RangeLossDB[k]}
-	if !run.Started.IsZero() {
-		c.Started = run.Started.UTC().Format(time.RFC3339)
-	}
+	c.Started = run.Started.UTC()
 	if len(rl.DriftDB) == len(f) && finite(rl.DriftDB[k]) {
 		d := rl.DriftDB[k]
 		c.DriftDB = &d
@@ -112,11 +110,8 @@ func RangeCheckOf(run *ingest.Run, st *ingest.Station, ref *ingest.Reference, rl
 		c.DriftToleranceDB = st.DriftToleranceDB
 	}
 	if ref != nil {
-		c.ReferenceCertificate, c.ReferenceCalibrated = ref.Certificate, formatDate(ref.Calibrated)
-		if !ref.Due.IsZero() {
-			c.ReferenceDue = formatDate(ref.Due)
-			c.PastDue = !run.Started.IsZero() && run.Started.After(ref.Due)
-		}
+		c.ReferenceCertificate, c.ReferenceCalibrated, c.ReferenceDue = ref.Certificate, ref.Calibrated, ref.Due
+		c.PastDue = !ref.Due.IsZero() && !run.Started.IsZero() && run.Started.After(ref.Due)
 	}
 	return c
 }
@@ -130,33 +125,33 @@ const RangeBaselineRuns = 20
 // RangeChart is the individuals control chart of one station and
 // reference antenna's range loss at band centre, run by run.
 type RangeChart struct {
-	Station     string  `json:"station"`
-	Reference   string  `json:"reference"`
-	FrequencyHz float64 `json:"frequency_hz"`
+	Station     string
+	Reference   string
+	FrequencyHz float64
 	// DriftToleranceDB is the station's allowed pre/post drift, as the
 	// latest run recorded it (0 when unknown).
-	DriftToleranceDB float64 `json:"drift_tolerance_db"`
+	DriftToleranceDB float64
 	// Points are the runs in time order (then by serial and run).
-	Points []RangePoint `json:"points"`
+	Points []RangePoint
 	// Baseline is the number of first points the limits are set on
 	// (at most RangeBaselineRuns).
-	Baseline int     `json:"baseline"`
-	CentreDB float64 `json:"centre_db"`
-	LCLDB    float64 `json:"lcl_db"`
-	UCLDB    float64 `json:"ucl_db"`
+	Baseline int
+	CentreDB float64
+	LCLDB    float64
+	UCLDB    float64
 	// OutOfControl are the indexes of the points beyond the limits; none
 	// while the baseline has fewer than MinChartPoints points (TooFew).
-	OutOfControl []int `json:"out_of_control"`
-	TooFew       bool  `json:"too_few,omitempty"`
+	OutOfControl []int
+	TooFew       bool
 }
 
 // RangePoint is one run on a range chart.
 type RangePoint struct {
-	Serial      string   `json:"serial"`
-	Run         string   `json:"run"`
-	Started     string   `json:"started"`
-	RangeLossDB float64  `json:"range_loss_db"`
-	DriftDB     *float64 `json:"drift_db"`
+	Serial      string
+	Run         string
+	Started     time.Time
+	RangeLossDB float64
+	DriftDB     *float64
 }
 
 // RangeCharts groups the range checks of every run of every unit by
@@ -168,16 +163,14 @@ func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
 	type key struct{ station, reference string }
 	type point struct {
 		RangePoint
-		t   time.Time
 		hz  float64
 		tol float64
 	}
 	byPair := map[key][]point{}
 	for serial, cs := range checks {
 		for _, c := range cs {
-			t, _ := time.Parse(time.RFC3339, c.Started)
 			k := key{c.Station, c.Reference}
-			byPair[k] = append(byPair[k], point{RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB}, t, c.FrequencyHz, c.DriftToleranceDB})
+			byPair[k] = append(byPair[k], point{RangePoint{Serial: serial, Run: c.Run, Started: c.Started, RangeLossDB: c.RangeLossDB, DriftDB: c.DriftDB}, c.FrequencyHz, c.DriftToleranceDB})
 		}
 	}
 	keys := make([]key, 0, len(byPair))
@@ -193,8 +186,8 @@ func RangeCharts(checks map[string][]RangeCheck) []RangeChart {
 	for _, k := range keys {
 		ps := byPair[k]
 		sort.Slice(ps, func(i, j int) bool {
-			if !ps[i].t.Equal(ps[j].t) {
-				return ps[i].t.Before(ps[j].t)
+			if !ps[i].Started.Equal(ps[j].Started) {
+				return ps[i].Started.Before(ps[j].Started)
 			}
 			if ps[i].Serial != ps[j].Serial {
 				return ps[i].Serial < ps[j].Serial
@@ -262,25 +255,25 @@ func baselineChart(values []float64) individuals {
 // CheckUnitChart is a check unit's G/T at band centre run by run, as an
 // individuals chart with limits set on its first runs.
 type CheckUnitChart struct {
-	Serial      string  `json:"serial"`
-	Station     string  `json:"station"`
-	Beam        string  `json:"beam"`
-	FrequencyHz float64 `json:"frequency_hz"`
+	Serial      string
+	Station     string
+	Beam        string
+	FrequencyHz float64
 	// Points are its runs in time order.
-	Points       []CheckPoint `json:"points"`
-	Baseline     int          `json:"baseline"`
-	CentreDB     float64      `json:"centre_db_per_k"`
-	LCLDB        float64      `json:"lcl_db_per_k"`
-	UCLDB        float64      `json:"ucl_db_per_k"`
-	OutOfControl []int        `json:"out_of_control"`
-	TooFew       bool         `json:"too_few,omitempty"`
+	Points       []CheckPoint
+	Baseline     int
+	CentreDB     float64
+	LCLDB        float64
+	UCLDB        float64
+	OutOfControl []int
+	TooFew       bool
 }
 
 // CheckPoint is one run of a check unit.
 type CheckPoint struct {
-	Run      string  `json:"run"`
-	Started  string  `json:"started"`
-	GTdBPerK float64 `json:"gt_db_per_k"`
+	Run      string
+	Started  time.Time
+	GTdBPerK float64
 }
 
 // CheckUnitCharts charts every check unit's runs that have a G/T at band
@@ -307,7 +300,7 @@ func CheckUnitCharts(checks map[string][]RangeCheck) []CheckUnitChart {
 		sort.Strings(stations)
 		for _, st := range stations {
 			cs := byStation[st]
-			sort.SliceStable(cs, func(i, j int) bool { return cs[i].Started < cs[j].Started })
+			sort.SliceStable(cs, func(i, j int) bool { return cs[i].Started.Before(cs[j].Started) })
 			ch := CheckUnitChart{Serial: serial, Station: st, Beam: cs[len(cs)-1].Beam, FrequencyHz: cs[len(cs)-1].FrequencyHz}
 			values := make([]float64, len(cs))
 			for i, c := range cs {

@@ -21,7 +21,7 @@ func TestRangeCheckOf(t *testing.T) {
 		DriftDB: []float64{0.01, 0.02, 0.03, 0.04}}
 	c := RangeCheckOf(run, &ingest.Station{DriftToleranceDB: 0.25}, ref, rl)
 	// Centre (10 + 13.5)/2 = 11.75 GHz: 12 GHz is nearer than 11.
-	if c == nil || c.FrequencyHz != 12e9 || c.RangeLossDB != 52 || c.DriftDB == nil || *c.DriftDB != 0.03 || !c.PastDue || c.ReferenceDue != "2027-02-10" || c.DriftToleranceDB != 0.25 {
+	if c == nil || c.FrequencyHz != 12e9 || c.RangeLossDB != 52 || c.DriftDB == nil || *c.DriftDB != 0.03 || !c.PastDue || !c.ReferenceDue.Equal(mustDate("2027-02-10")) || c.DriftToleranceDB != 0.25 {
 		t.Errorf("range check %+v", c)
 	}
 	run.Started = time.Date(2027, 2, 9, 9, 0, 0, 0, time.UTC)
@@ -50,11 +50,11 @@ func TestRangeChartsPlantedStep(t *testing.T) {
 		}
 		serial := fmt.Sprintf("U%02d", i+1)
 		checks[serial] = append(checks[serial], RangeCheck{Run: "runs/" + serial, Station: "chamber-2", Reference: "horn-r7",
-			Started: time.Date(2027, 1, 1, 0, 0, 0, 0, time.UTC).AddDate(0, 0, i).Format(time.RFC3339), FrequencyHz: 11.7e9, RangeLossDB: v})
+			Started: time.Date(2027, 1, 1, 0, 0, 0, 0, time.UTC).AddDate(0, 0, i), FrequencyHz: 11.7e9, RangeLossDB: v})
 	}
 	// Another pair, with too few runs to call any out of control.
-	checks["G1"] = []RangeCheck{{Run: "runs/G1/a", Station: "chamber-2", Reference: "horn-s1", Started: "2027-01-05T00:00:00Z", RangeLossDB: 40},
-		{Run: "runs/G1/b", Station: "chamber-2", Reference: "horn-s1", Started: "2027-01-06T00:00:00Z", RangeLossDB: 45}}
+	checks["G1"] = []RangeCheck{{Run: "runs/G1/a", Station: "chamber-2", Reference: "horn-s1", Started: mustTime("2027-01-05T00:00:00Z"), RangeLossDB: 40},
+		{Run: "runs/G1/b", Station: "chamber-2", Reference: "horn-s1", Started: mustTime("2027-01-06T00:00:00Z"), RangeLossDB: 45}}
 	charts := RangeCharts(checks)
 	if len(charts) != 2 || charts[0].Reference != "horn-r7" || charts[1].Reference != "horn-s1" {
 		t.Fatalf("charts %+v", charts)
@@ -81,16 +81,16 @@ func TestCheckUnitsLeaveTheYield(t *testing.T) {
 	gt := func(v float64) *float64 { return &v }
 	var us []UnitSummary
 	for i := 0; i < 3; i++ {
-		us = append(us, UnitSummary{Serial: fmt.Sprintf("U%02d", i+1), Product: "P", Started: fmt.Sprintf("2027-01-%02dT09:00:00Z", i+1), Verdict: VerdictPass,
+		us = append(us, UnitSummary{Serial: fmt.Sprintf("U%02d", i+1), Product: "P", Started: mustTime(fmt.Sprintf("2027-01-%02dT09:00:00Z", i+1)), Verdict: VerdictPass,
 			Runs: 1, FirstVerdict: VerdictPass, Limits: []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: 1, Verdict: VerdictPass}}})
 	}
-	golden := UnitSummary{Serial: "GOLD-01", Product: "P", Started: "2027-01-20T09:00:00Z", Verdict: VerdictFail, Runs: 12, FirstVerdict: VerdictFail,
+	golden := UnitSummary{Serial: "GOLD-01", Product: "P", Started: mustTime("2027-01-20T09:00:00Z"), Verdict: VerdictFail, Runs: 12, FirstVerdict: VerdictFail,
 		CheckUnit: true, Limits: []LimitResult{{Name: "L", Beam: "b00", WorstMarginDB: -1, Verdict: VerdictFail}}}
 	for k := 0; k < 12; k++ {
 		golden.RangeChecks = append(golden.RangeChecks, RangeCheck{Run: fmt.Sprintf("runs/GOLD-01/%02d", k), Station: "chamber-2", Reference: "horn-r7",
-			Started: fmt.Sprintf("2027-01-%02dT08:00:00Z", k+5), FrequencyHz: 11.7e9, RangeLossDB: 50, Beam: "b00", GTdBPerK: gt(3.0 + 0.01*float64(k%2))})
+			Started: mustTime(fmt.Sprintf("2027-01-%02dT08:00:00Z", k+5)), FrequencyHz: 11.7e9, RangeLossDB: 50, Beam: "b00", GTdBPerK: gt(3.0 + 0.01*float64(k%2))})
 	}
-	other := UnitSummary{Serial: "GOLD-02", Product: "GOLDEN-ONLY", Started: "2027-01-21T09:00:00Z", Verdict: VerdictPass, CheckUnit: true}
+	other := UnitSummary{Serial: "GOLD-02", Product: "GOLDEN-ONLY", Started: mustTime("2027-01-21T09:00:00Z"), Verdict: VerdictPass, CheckUnit: true}
 	f := ComputeFleet(append(us, golden, other))
 	if len(f.Products) != 1 {
 		t.Fatalf("products %+v, want P alone", f.Products)

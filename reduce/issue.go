@@ -8,49 +8,52 @@ import (
 	"gtpack.example/gtpack/ingest"
 )
 
+// IssueState is the state of a unit's report as an issued document.
+type IssueState string
+
 // Issue states of a unit's report.
 const (
 	// IssueIssued: an approval names the unit's inputs and verdict.
-	IssueIssued = "issued"
+	IssueIssued IssueState = "issued"
 	// IssueDraft: no approval yet, or the report cannot be issued (no
 	// laboratory, an incomplete unit).
-	IssueDraft = "draft"
+	IssueDraft IssueState = "draft"
 	// IssueVoid: a draft whose earlier revision's approval named other
 	// inputs or another verdict.
-	IssueVoid = "void"
+	IssueVoid IssueState = "void"
 )
 
 // Issue is the state of a unit's report as a document a laboratory issues
 // (contract, "approvals/<serial>/*.yaml"; ISO/IEC 17025 clause 7.8).
 type Issue struct {
-	State string `json:"state"`
+	State IssueState
 	// Revision is the issued revision, or for a draft the revision it
 	// would be once approved (1 for a unit never approved).
-	Revision int `json:"revision"`
+	Revision int
 	// ReportNumber is <report_prefix>-<serial>-R<revision>; "" without a
 	// laboratory.
-	ReportNumber string `json:"report_number,omitempty"`
-	// Issued is the date of issue (the revision's first approval), RFC
-	// 3339; "" for a draft.
-	Issued     string      `json:"issued,omitempty"`
-	Signatures []Signature `json:"signatures,omitempty"`
+	ReportNumber string
+	// Issued is the date of issue (the revision's first approval); zero
+	// for a draft.
+	Issued     time.Time
+	Signatures []Signature
 	// Replaces is the report number of the revision before, from R2 on.
-	Replaces string `json:"replaces,omitempty"`
+	Replaces string
 	// Void says which approval no longer holds and why (state void).
-	Void string `json:"void,omitempty"`
+	Void string
 	// Why says what keeps a draft from being issued now.
-	Why string `json:"why,omitempty"`
+	Why string
 	// InputsSHA256 is the digest of the unit's inputs the approvals name.
-	InputsSHA256 string `json:"inputs_sha256"`
+	InputsSHA256 string
 }
 
 // Signature is one approval of the issued revision.
 type Signature struct {
-	By      string `json:"by"`
-	Role    string `json:"role,omitempty"`
-	Date    string `json:"date"`
-	Comment string `json:"comment,omitempty"`
-	File    string `json:"file"`
+	By      string
+	Role    string
+	Date    time.Time
+	Comment string
+	File    string
 }
 
 // ReportNumber is the number of a revision of a serial's report.
@@ -72,7 +75,7 @@ func ReportNumber(lab *ingest.Lab, serial string, revision int) string {
 // the unit is complete; otherwise it is a draft of the next revision, void
 // when an earlier approval exists (which then names other inputs or
 // another verdict).
-func IssueOf(lab *ingest.Lab, serial, inputsSHA256, verdict string, problems int, approvals []*ingest.Approval) Issue {
+func IssueOf(lab *ingest.Lab, serial, inputsSHA256 string, verdict Verdict, problems int, approvals []*ingest.Approval) Issue {
 	revOf := map[string]int{}
 	var byRev [][]*ingest.Approval // approvals of revision i+1
 	for _, a := range approvals {
@@ -89,7 +92,7 @@ func IssueOf(lab *ingest.Lab, serial, inputsSHA256, verdict string, problems int
 	if r, ok := revOf[inputsSHA256]; ok && complete && lab != nil {
 		var sigs []Signature
 		for _, a := range byRev[r-1] {
-			if a.Verdict == verdict {
+			if Verdict(a.Verdict) == verdict {
 				sigs = append(sigs, signatureOf(a))
 			}
 		}
@@ -111,7 +114,7 @@ func IssueOf(lab *ingest.Lab, serial, inputsSHA256, verdict string, problems int
 		if last.InputsSHA256 != inputsSHA256 {
 			what = append(what, fmt.Sprintf("inputs %s (the unit's are now %s)", short(last.InputsSHA256), short(inputsSHA256)))
 		}
-		if last.Verdict != verdict {
+		if Verdict(last.Verdict) != verdict {
 			what = append(what, fmt.Sprintf("verdict %s (the unit's is now %s)", last.Verdict, verdict))
 		}
 		if len(what) > 0 {
@@ -140,7 +143,7 @@ func IssueOf(lab *ingest.Lab, serial, inputsSHA256, verdict string, problems int
 }
 
 func signatureOf(a *ingest.Approval) Signature {
-	return Signature{By: a.ApprovedBy, Role: a.Role, Date: a.Date.UTC().Format(time.RFC3339), Comment: a.Comment, File: a.File}
+	return Signature{By: a.ApprovedBy, Role: a.Role, Date: a.Date, Comment: a.Comment, File: a.File}
 }
 
 func short(h string) string {

@@ -27,13 +27,13 @@ func TestIssueOf(t *testing.T) {
 
 	// Never approved: a draft of R1 with its number.
 	is := IssueOf(lab, serial, h1, "pass", 0, nil)
-	if is.State != IssueDraft || is.Revision != 1 || is.ReportNumber != "EATL-GT-QDA-26-0001-R1" || is.Issued != "" || !strings.Contains(is.Why, "not yet approved by the laboratory") {
+	if is.State != IssueDraft || is.Revision != 1 || is.ReportNumber != "EATL-GT-QDA-26-0001-R1" || !is.Issued.IsZero() || !strings.Contains(is.Why, "not yet approved by the laboratory") {
 		t.Errorf("never approved: %+v", is)
 	}
 	// R1 issued; a co-signature adds a signature, not a revision; the date
 	// of issue is the first approval's.
 	is = IssueOf(lab, serial, h1, "pass", 0, []*ingest.Approval{r1, cosign})
-	if is.State != IssueIssued || is.Revision != 1 || len(is.Signatures) != 2 || is.Issued != "2026-11-04T10:00:00Z" || is.Replaces != "" || is.ReportNumber != "EATL-GT-QDA-26-0001-R1" {
+	if is.State != IssueIssued || is.Revision != 1 || len(is.Signatures) != 2 || !is.Issued.Equal(mustTime("2026-11-04T10:00:00Z")) || is.Replaces != "" || is.ReportNumber != "EATL-GT-QDA-26-0001-R1" {
 		t.Errorf("R1 co-signed: %+v", is)
 	}
 	// A changed input makes R1 void: a draft of R2 that names R1 and says
@@ -63,10 +63,10 @@ func TestIssueOf(t *testing.T) {
 	}
 	// An incomplete unit, or one with problems, is not issued.
 	for _, tc := range []struct {
-		verdict  string
+		verdict  Verdict
 		problems int
 	}{{VerdictIncomplete, 1}, {"pass", 2}} {
-		is = IssueOf(lab, serial, h1, tc.verdict, tc.problems, []*ingest.Approval{ap(h1, tc.verdict, "A", 4)})
+		is = IssueOf(lab, serial, h1, tc.verdict, tc.problems, []*ingest.Approval{ap(h1, string(tc.verdict), "A", 4)})
 		if is.State == IssueIssued || !strings.Contains(is.Why, "incomplete") {
 			t.Errorf("%s with %d problems: %+v", tc.verdict, tc.problems, is)
 		}

@@ -10,7 +10,7 @@ import (
 )
 
 // verdictRank orders verdicts from best to worst.
-func verdictRank(v string) int {
+func verdictRank(v Verdict) int {
 	switch v {
 	case VerdictPass:
 		return 0
@@ -26,19 +26,19 @@ func verdictRank(v string) int {
 
 // WorseVerdict returns the worse of two verdicts (pass < conditional-pass
 // < conditional-fail < fail < incomplete).
-func WorseVerdict(a, b string) string {
+func WorseVerdict(a, b Verdict) Verdict {
 	if verdictRank(b) > verdictRank(a) {
 		return b
 	}
 	return a
 }
 
-// Verdict judges a measured value against a lower limit (ILAC-G8:09/2019,
+// Judge judges a measured value against a lower limit (ILAC-G8:09/2019,
 // ISO 14253-1): marginDB = x - L, expandedU = U. With rule "simple" it is
 // pass when x >= L, else fail. Any other rule is guarded acceptance with
 // guard band w = U: pass when x - U >= L, fail when x + U < L, otherwise
 // conditional-pass (x >= L) or conditional-fail (x < L).
-func Verdict(rule string, marginDB, expandedU float64) string {
+func Judge(rule string, marginDB, expandedU float64) Verdict {
 	if rule == ruleSimple {
 		if marginDB >= 0 {
 			return VerdictPass
@@ -166,7 +166,7 @@ func EvaluateLimits(spec *ingest.Spec, beams []Beam) ([]LimitResult, []*ingest.P
 			problem(l.Line, "limit %q not judged: %v", l.Name, err)
 			continue
 		}
-		if l.Quantity != quantityGT && l.Quantity != quantityGain {
+		if q := Quantity(l.Quantity); q != QuantityGT && q != QuantityGain {
 			problem(l.Line, "limit %q: quantity %q is not gt or gain: not judged", l.Name, l.Quantity)
 			continue
 		}
@@ -201,7 +201,7 @@ func judgeBeam(l *ingest.Limit, cache *limitCache, rule string, b *Beam) (*Limit
 	curve := cache.curve
 	x, u := b.GTdBPerK, b.GTExpandedUncertaintyDB
 	what := "G/T"
-	if l.Quantity == quantityGain {
+	if Quantity(l.Quantity) == QuantityGain {
 		x, u, what = b.GainDBi, b.GainExpandedUncertaintyDB, "gain"
 	}
 	if len(x) == 0 || len(x) != len(b.FrequencyHz) {
@@ -233,7 +233,7 @@ func judgeBeam(l *ingest.Limit, cache *limitCache, rule string, b *Beam) (*Limit
 		return nil, fmt.Sprintf("limit %q cannot judge beam %s: no frequency of the beam lies in the band %s to %s",
 			l.Name, b.ID, formatGHz(lo), formatGHz(hi))
 	}
-	r := &LimitResult{Name: l.Name, Quantity: l.Quantity, Beam: b.ID, Statistic: l.Statistic,
+	r := &LimitResult{Name: l.Name, Quantity: Quantity(l.Quantity), Beam: b.ID, Statistic: l.Statistic,
 		LimitCurve: limitVertices(l, curve, law)}
 	limAt := cache.on(b.FrequencyHz)
 	if l.Statistic == "mean" {
@@ -247,13 +247,13 @@ func judgeBeam(l *ingest.Limit, cache *limitCache, rule string, b *Beam) (*Limit
 		r.ValueDB, r.LimitDB, r.ExpandedUncertaintyDB = sx/m, sl/m, su/m
 		r.WorstMarginDB = r.ValueDB - r.LimitDB
 		r.AtFrequencyHz = (lo + hi) / 2
-		r.Verdict = Verdict(rule, r.WorstMarginDB, r.ExpandedUncertaintyDB)
+		r.Verdict = Judge(rule, r.WorstMarginDB, r.ExpandedUncertaintyDB)
 	} else {
 		first := true
 		for _, i := range idx {
 			lim := limAt[i] + law
 			m := x[i] - lim
-			v := Verdict(rule, m, uAt(i))
+			v := Judge(rule, m, uAt(i))
 			if first || verdictRank(v) > verdictRank(r.Verdict) ||
 				(verdictRank(v) == verdictRank(r.Verdict) && m < r.WorstMarginDB) {
 				first = false
@@ -266,7 +266,7 @@ func judgeBeam(l *ingest.Limit, cache *limitCache, rule string, b *Beam) (*Limit
 	for k, i := range idx {
 		curveDB[k] = limAt[i] + law
 	}
-	b.LimitCurves = append(b.LimitCurves, LimitCurve{Name: l.Name, Quantity: l.Quantity, Start: idx[0], LimitDB: curveDB})
+	b.LimitCurves = append(b.LimitCurves, LimitCurve{Name: l.Name, Quantity: Quantity(l.Quantity), Start: idx[0], LimitDB: curveDB})
 	f := b.FrequencyHz
 	tol := gridTolerance * hi
 	if f[0] > lo+tol || f[len(f)-1] < hi-tol {

@@ -14,7 +14,7 @@ func TestVerdictILACG8(t *testing.T) {
 	cases := []struct {
 		rule      string
 		margin, u float64
-		want      string
+		want      Verdict
 	}{
 		{"simple", 0.5, 0.25, VerdictPass},
 		{"simple", 0, 0.25, VerdictPass}, // x exactly at the limit: pass under simple acceptance
@@ -29,8 +29,8 @@ func TestVerdictILACG8(t *testing.T) {
 		{"guarded", -0.5, 0.25, VerdictFail},
 	}
 	for _, c := range cases {
-		if got := Verdict(c.rule, c.margin, c.u); got != c.want {
-			t.Errorf("Verdict(%s, margin %g, U %g) = %s, want %s", c.rule, c.margin, c.u, got, c.want)
+		if got := Judge(c.rule, c.margin, c.u); got != c.want {
+			t.Errorf("Judge(%s, margin %g, U %g) = %s, want %s", c.rule, c.margin, c.u, got, c.want)
 		}
 	}
 	// Ordering pass < conditional-pass < conditional-fail < fail (ILAC-G8 decision outcomes).

@@ -29,7 +29,6 @@ type Input struct {
 // verdict is incomplete.
 func ReduceUnit(in Input) (u *Unit) {
 	u = &Unit{
-		Schema:   ResultSchema,
 		Beams:    []Beam{},
 		Limits:   []LimitResult{},
 		Flags:    []Flag{},
@@ -152,9 +151,7 @@ func reduceInto(u *Unit, in Input, cons *consequences) {
 		u.Problems = append(u.Problems, *p)
 	}
 	u.Serial, u.Product, u.Run = run.Serial, run.Product, run.Dir
-	if !run.Started.IsZero() {
-		u.Started = run.Started.UTC().Format(time.RFC3339)
-	}
+	u.Started = run.Started.UTC()
 	u.Operator, u.AmbientC, u.Firmware = run.Operator, run.AmbientC, run.Firmware
 	if l := in.Lab; l != nil {
 		u.Lab = &LabInfo{Name: l.Name, Address: l.Address, Contact: l.Contact, Accreditation: l.Accreditation}
@@ -210,7 +207,7 @@ func reduceInto(u *Unit, in Input, cons *consequences) {
 
 	if ref := in.Reference; ref != nil {
 		u.Reference = ReferenceInfo{ID: ref.ID, Description: ref.Description, Certificate: ref.Certificate,
-			Calibrated: formatDate(ref.Calibrated), Due: formatDate(ref.Due), GainKind: ref.GainKind}
+			Calibrated: ref.Calibrated, Due: ref.Due, GainKind: ref.GainKind}
 		ctx.certificate = ref.Certificate
 		if ref.CoverageK > 0 && !math.IsInf(ref.CoverageK, 0) {
 			ctx.referenceK = ref.CoverageK
@@ -473,7 +470,7 @@ func boresightGTAt(beams []Beam, f float64) (string, *float64) {
 
 // unitVerdict is the worst verdict of the limits, or incomplete when a
 // problem was met or nothing was judged.
-func unitVerdict(u *Unit) string {
+func unitVerdict(u *Unit) Verdict {
 	if len(u.Problems) > 0 || len(u.Limits) == 0 {
 		return VerdictIncomplete
 	}
@@ -532,11 +529,11 @@ func stationTerms(st *ingest.Station, problem func(*ingest.Problem)) (gain, gt [
 		term := stationTerm{name: name, distribution: dist, divisor: div, valueDB: math.Abs(t.ValueDB)}
 		used := false
 		for _, a := range t.AppliesTo {
-			switch a {
-			case quantityGain:
+			switch Quantity(a) {
+			case QuantityGain:
 				gain = append(gain, term)
 				used = true
-			case quantityGT:
+			case QuantityGT:
 				gt = append(gt, term)
 				used = true
 			}

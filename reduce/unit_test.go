@@ -256,7 +256,7 @@ func TestReduceUnitFlags(t *testing.T) {
 	}
 	in.Reference.Due = time.Date(2026, 11, 2, 0, 0, 0, 0, time.UTC) // a day before the run
 	u := ReduceUnit(in)
-	kinds := map[string]bool{}
+	kinds := map[FlagKind]bool{}
 	for _, f := range u.Flags {
 		kinds[f.Kind] = true
 	}

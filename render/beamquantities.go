@@ -28,7 +28,7 @@ type beamQuantity struct {
 	nameOf     func(*reduce.Beam) string
 	// limit is the quantity's name in reduce's limits (LimitResult and
 	// LimitCurve Quantity), "" when no limit is set on it.
-	limit string
+	limit reduce.Quantity
 
 	// csv is the quantity's name in the per-frequency CSV, whose column of
 	// a beam is <beam>_<csv>; "" when the CSV leaves it out. A beam has
@@ -68,17 +68,17 @@ var beamQuantities = []beamQuantity{
 		name: "Range drift", unit: "dB", csv: "range_drift_db", shared: true, decimals: 4, // hundredths of a dB
 		sheet: 90, onSheet: func(b *reduce.Beam) bool { return b.RangeDriftDB != nil }, format: nfDB, width: 11},
 	{key: "gain_dbi", get: func(b *reduce.Beam) []float64 { return b.GainDBi },
-		name: "Gain", unit: "dBi", limit: "gain", csv: "gain_dbi", decimals: 3, sheet: 30, format: nfDB, width: 11},
+		name: "Gain", unit: "dBi", limit: reduce.QuantityGain, csv: "gain_dbi", decimals: 3, sheet: 30, format: nfDB, width: 11},
 	{key: "gain_expanded_uncertainty_db", get: func(b *reduce.Beam) []float64 { return b.GainExpandedUncertaintyDB },
 		name: "Gain U", unit: "dB", csv: "gain_u_db", decimals: 3, sheet: 40, format: nfDB, width: 11},
 	{key: "gt_db_per_k", get: func(b *reduce.Beam) []float64 { return b.GTdBPerK },
-		name: "G/T", unit: "dB/K", limit: "gt", csv: "gt_db_per_k", decimals: 3, sheet: 60, format: nfDB, width: 11},
+		name: "G/T", unit: "dB/K", limit: reduce.QuantityGT, csv: "gt_db_per_k", decimals: 3, sheet: 60, format: nfDB, width: 11},
 	{key: "gt_expanded_uncertainty_db", get: func(b *reduce.Beam) []float64 { return b.GTExpandedUncertaintyDB },
 		name: "G/T U", unit: "dB", csv: "gt_u_db", decimals: 3, sheet: 70, format: nfDB, width: 11},
 	{key: "noise_relative_kt0_db", get: func(b *reduce.Beam) []float64 { return b.NoiseRelativeKT0DB }, optional: true,
 		name: "Noise above kT0", unit: "dB", csv: "noise_rel_kt0_db", decimals: 3, sheet: 50, format: nfDB, width: 12},
 	{key: "other_form.gt_db_per_k", get: func(b *reduce.Beam) []float64 { return otherForm(b).GTdBPerK }, optional: true,
-		nameOf: func(b *reduce.Beam) string { return "G/T " + otherForm(b).Form }, unit: "dB/K",
+		nameOf: func(b *reduce.Beam) string { return "G/T " + string(otherForm(b).Form) }, unit: "dB/K",
 		csv: "gt_other_form_db_per_k", decimals: 3, sheet: 100, onSheet: hasOtherForm, format: nfDB, width: 14},
 	{key: "other_form.difference_db", get: func(b *reduce.Beam) []float64 { return otherForm(b).DifferenceDB }, optional: true,
 		name: "Form difference", unit: "dB", sheet: 110, onSheet: hasOtherForm, format: nfDB, width: 12},
@@ -126,7 +126,7 @@ func quantityOf(key string) *beamQuantity {
 // limitQuantity is the quantity a limit is on (LimitCurve.Quantity,
 // LimitResult.Quantity): reduce knows "gt" and "gain" and refuses others;
 // G/T for a name the table does not know.
-func limitQuantity(name string) *beamQuantity {
+func limitQuantity(name reduce.Quantity) *beamQuantity {
 	for i := range beamQuantities {
 		if beamQuantities[i].limit == name {
 			return &beamQuantities[i]

@@ -40,7 +40,7 @@ func TestBeamQuantitiesTable(t *testing.T) {
 			t.Errorf("%s, which the report's charts draw, is not in the CSV", key)
 		}
 	}
-	for _, limit := range []string{"gt", "gain"} {
+	for _, limit := range []reduce.Quantity{reduce.QuantityGT, reduce.QuantityGain} {
 		if q := limitQuantity(limit); q.limit != limit {
 			t.Errorf("no quantity for the limits on %q", limit)
 		}

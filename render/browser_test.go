@@ -22,6 +22,8 @@ import (
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
+
+	"gtpack.example/gtpack/reduce"
 )
 
 // These tests open the pages in a real browser (Chromium, headless, no
@@ -388,7 +390,7 @@ func TestBrowserIndex(t *testing.T) {
 	}
 	// A verdict count filters the table to that verdict.
 	for _, tc := range []struct {
-		verdict string
+		verdict reduce.Verdict
 		rows    int
 	}{{"fail", 2}, {"conditional-pass", 1}, {"pass", 21}, {"incomplete", 1}} {
 		got := eval[string](t, ctx, fmt.Sprintf(`(function () {

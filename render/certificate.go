@@ -52,14 +52,16 @@ type signatureRow struct {
 
 // certLimit is one limit name's result over the beams it applies to.
 type certLimit struct {
-	Name, Quantity, Statistic string
-	Beams                     int
+	Name      string
+	Quantity  reduce.Quantity
+	Statistic string
+	Beams     int
 	// Beam is where the worst margin is; WorstMarginDB the smallest finite
 	// margin (NaN when none), with the value, the limit and U there.
 	Beam                   string
 	WorstMarginDB          float64
 	ValueDB, LimitDB, UDB  float64
-	Verdict                string
+	Verdict                reduce.Verdict
 	HasMargin, OnlyOneBeam bool
 }
 
@@ -78,7 +80,7 @@ type historyRow struct {
 // reduce's Issue, but never issued without a laboratory, a report number
 // and a signature.
 type shownIssue struct {
-	State                  string
+	State                  reduce.IssueState
 	Issued                 bool
 	Why, Void              string
 	ReportNumber, Replaces string
@@ -111,7 +113,7 @@ func issueShown(u *reduce.Unit) shownIssue {
 	}
 	if c.Issued {
 		c.RevisionText = "Revision " + itoaRev(c.Revision)
-		c.IssueDate = dateText(is.Issued)
+		c.IssueDate = dateOf(is.Issued)
 		c.Why, c.Void = "", ""
 	} else {
 		if c.Why == "" {
@@ -200,9 +202,9 @@ func limitSummary(ls []reduce.LimitResult) []certLimit {
 func historyRows(hs []reduce.HistoryEntry) ([]historyRow, error) {
 	rows := make([]historyRow, len(hs))
 	for i, h := range hs {
-		r := historyRow{HistoryEntry: h, N: i + 1, Date: dateText(h.Started), MarginDB: math.NaN()}
-		if h.WorstMarginDB != nil && finite(*h.WorstMarginDB) {
-			r.MarginDB, r.HasMargin = *h.WorstMarginDB, true
+		r := historyRow{HistoryEntry: h, N: i + 1, Date: dateOf(h.Started), MarginDB: math.NaN()}
+		if finite(h.WorstMarginDB) {
+			r.MarginDB, r.HasMargin = h.WorstMarginDB, true
 		}
 		if h.Notes != "" {
 			notes, err := markdown(h.Notes)
@@ -216,22 +218,11 @@ func historyRows(hs []reduce.HistoryEntry) ([]historyRow, error) {
 	return rows, nil
 }
 
-// dateText is the date of an RFC 3339 time in UTC (yyyy-mm-dd); any other
-// text is shown as it is.
-func dateText(s string) string {
-	t, err := time.Parse(time.RFC3339, s)
-	if err != nil {
-		return s
-	}
-	return t.UTC().Format("2006-01-02")
-}
-
-// dateTimeText is an RFC 3339 time as "yyyy-mm-dd hh:mm UTC" (seconds when
-// they are not zero); any other text is shown as it is.
-func dateTimeText(s string) string {
-	t, err := time.Parse(time.RFC3339, s)
-	if err != nil {
-		return s
+// dateTimeText is a time as "yyyy-mm-dd hh:mm UTC" (seconds when they
+// are not zero), "" for the zero time.
+func dateTimeText(t time.Time) string {
+	if t.IsZero() {
+		return ""
 	}
 	t = t.UTC()
 	if t.Second() != 0 {

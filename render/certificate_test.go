@@ -3,6 +3,7 @@ package render
 import (
 	"bytes"
 	"encoding/json"
+	"math"
 	"reflect"
 	"strings"
 	"testing"
@@ -33,14 +34,14 @@ func issueUnit(t *testing.T, is reduce.Issue) *reduce.Unit {
 }
 
 var (
-	issuedR1 = reduce.Issue{State: reduce.IssueIssued, Revision: 1, ReportNumber: "EATL-GT-KP16-00017-R1", Issued: "2026-11-04T10:00:00Z",
+	issuedR1 = reduce.Issue{State: reduce.IssueIssued, Revision: 1, ReportNumber: "EATL-GT-KP16-00017-R1", Issued: mustTime("2026-11-04T10:00:00Z"),
 		Signatures: []reduce.Signature{
-			{By: "A. Example", Role: "Quality engineer", Date: "2026-11-04T10:00:00Z", File: "approvals/KP16-00017/20261104T100000Z-a-example.yaml"},
-			{By: "B. Example", Role: "Laboratory manager", Date: "2026-11-04T11:30:00Z", File: "approvals/KP16-00017/20261104T113000Z-b-example.yaml"},
+			{By: "A. Example", Role: "Quality engineer", Date: mustTime("2026-11-04T10:00:00Z"), File: "approvals/KP16-00017/20261104T100000Z-a-example.yaml"},
+			{By: "B. Example", Role: "Laboratory manager", Date: mustTime("2026-11-04T11:30:00Z"), File: "approvals/KP16-00017/20261104T113000Z-b-example.yaml"},
 		}}
-	issuedR2 = reduce.Issue{State: reduce.IssueIssued, Revision: 2, ReportNumber: "EATL-GT-KP16-00017-R2", Issued: "2026-11-09T09:00:00Z",
+	issuedR2 = reduce.Issue{State: reduce.IssueIssued, Revision: 2, ReportNumber: "EATL-GT-KP16-00017-R2", Issued: mustTime("2026-11-09T09:00:00Z"),
 		Replaces:   "EATL-GT-KP16-00017-R1",
-		Signatures: []reduce.Signature{{By: "A. Example", Role: "Quality engineer", Date: "2026-11-09T09:00:00Z", File: "approvals/KP16-00017/20261109T090000Z-a-example.yaml"}}}
+		Signatures: []reduce.Signature{{By: "A. Example", Role: "Quality engineer", Date: mustTime("2026-11-09T09:00:00Z"), File: "approvals/KP16-00017/20261109T090000Z-a-example.yaml"}}}
 	voidR2 = reduce.Issue{State: reduce.IssueVoid, Revision: 2, ReportNumber: "EATL-GT-KP16-00017-R2", Replaces: "EATL-GT-KP16-00017-R1",
 		Void: "R1, approved by A. Example on 2026-11-04T10:00:00Z (approvals/KP16-00017/20261104T100000Z-a-example.yaml), named inputs 0123456789ab (the unit's are now 9f1c2e5a7b3d)",
 		Why:  "not yet approved by the laboratory: its approval issues this report as revision 2"}
@@ -67,7 +68,7 @@ func TestCertificateStates(t *testing.T) {
 	tests := []struct {
 		name        string
 		u           *reduce.Unit
-		state       string
+		state       reduce.IssueState
 		issued      bool
 		boxes       []string // in the @page rule
 		want        []string // in the page
@@ -181,7 +182,7 @@ func TestNeverIssuedWithoutLabNumberOrSignature(t *testing.T) {
 		if strings.Contains(page, "ISSUED") || strings.Contains(page, "Approved by") || !strings.Contains(page, `<div class="draft-word">`) {
 			t.Errorf("%s: the report reads as issued", name)
 		}
-		if sum := summaryFields(u); sum[16][0] != "Issue state" || sum[16][1] != stateDraft {
+		if sum := summaryFields(u); sum[16][0] != "Issue state" || sum[16][1] != string(stateDraft) {
 			t.Errorf("%s: workbook summary row %v", name, sum[16])
 		}
 	}
@@ -194,9 +195,9 @@ func TestCertificateRetest(t *testing.T) {
 	u := issueUnit(t, issuedR1)
 	m := -0.982866
 	u.History = []reduce.HistoryEntry{
-		{Run: "2026/10/KP16-00017/run-1", Started: "2026-10-28T14:02:00Z", Verdict: reduce.VerdictFail,
-			WorstLimit: "Gain at boresight", WorstBeam: "b00", WorstMarginDB: &m, Notes: hostileNotes},
-		{Run: "2026/10/KP16-00017/run-2", Started: "2026-10-30T08:00:00Z", Verdict: reduce.VerdictIncomplete},
+		{Run: "2026/10/KP16-00017/run-1", Started: mustTime("2026-10-28T14:02:00Z"), Verdict: reduce.VerdictFail,
+			WorstLimit: "Gain at boresight", WorstBeam: "b00", WorstMarginDB: m, Notes: hostileNotes},
+		{Run: "2026/10/KP16-00017/run-2", Started: mustTime("2026-10-30T08:00:00Z"), Verdict: reduce.VerdictIncomplete, WorstMarginDB: math.NaN()},
 	}
 	page := string(mustReport(t, u))
 	for _, want := range []string{
@@ -310,8 +311,8 @@ func TestUnitWorkbookIssueState(t *testing.T) {
 func TestResultJSONIssueRoundTrip(t *testing.T) {
 	u := issueUnit(t, issuedR2)
 	m := -0.982866
-	u.History = []reduce.HistoryEntry{{Run: "2026/10/KP16-00017/run-1", Started: "2026-10-28T14:02:00Z", Verdict: reduce.VerdictFail,
-		WorstLimit: "Gain at boresight", WorstBeam: "b00", WorstMarginDB: &m, Notes: "cable not seated"}}
+	u.History = []reduce.HistoryEntry{{Run: "2026/10/KP16-00017/run-1", Started: mustTime("2026-10-28T14:02:00Z"), Verdict: reduce.VerdictFail,
+		WorstLimit: "Gain at boresight", WorstBeam: "b00", WorstMarginDB: m, Notes: "cable not seated"}}
 	first, err := ResultJSON(u)
 	if err != nil {
 		t.Fatal(err)

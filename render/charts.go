@@ -205,7 +205,7 @@ func gtChart(u *reduce.Unit, cols csvCols, focus int) (chartSpec, error) {
 		}
 		fb := focusBeam{ID: b.ID, GT: gi, U: ui}
 		for _, l := range u.Limits {
-			if l.Beam != b.ID || l.Quantity != "gt" {
+			if l.Beam != b.ID || l.Quantity != reduce.QuantityGT {
 				continue
 			}
 			ll := limitLine{Name: "limit: " + l.Name}

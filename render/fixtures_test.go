@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"testing"
+	"time"
 
 	"gtpack.example/gtpack/ingest"
 	"gtpack.example/gtpack/reduce"
@@ -43,11 +44,10 @@ func fixtureUnit(t testing.TB, beams, points int) *reduce.Unit {
 		freq[k] = f0 + (f1-f0)*float64(k)/float64(points-1)
 	}
 	u := &reduce.Unit{
-		Schema:       reduce.ResultSchema,
 		Serial:       hostileSerial,
 		Product:      "KU-PANEL-16",
 		Run:          "2026/11/KP16-00017/run-2",
-		Started:      "2026-11-03T09:15:00Z",
+		Started:      mustTime("2026-11-03T09:15:00Z"),
 		Verdict:      reduce.VerdictConditionalPass,
 		DecisionRule: "guarded",
 		SpecTitle:    "Ku-band receive panel, acceptance",
@@ -57,7 +57,7 @@ func fixtureUnit(t testing.TB, beams, points int) *reduce.Unit {
 		},
 		Reference: reduce.ReferenceInfo{
 			ID: "horn-0042", Description: "Ku-band standard gain horn",
-			Certificate: "LAB-26-0211", Calibrated: "2025-10-10", Due: "2026-10-10",
+			Certificate: "LAB-26-0211", Calibrated: mustDate("2025-10-10"), Due: mustDate("2026-10-10"),
 			GainKind: "realized", Expired: true,
 		},
 		Operator: hostileOperator,
@@ -207,7 +207,7 @@ func fixtureUnit(t testing.TB, beams, points int) *reduce.Unit {
 		{File: "2026/11/KP16-00017/run-2/notes.md", Line: 0, Message: `file has a byte-order mark <img src=x onerror="window.__pwned=7">`},
 	}
 	u.History = []reduce.HistoryEntry{
-		{Run: "2026/10/KP16-00017/run-1", Started: "2026-10-28T14:02:00Z", Verdict: reduce.VerdictFail},
+		{Run: "2026/10/KP16-00017/run-1", Started: mustTime("2026-10-28T14:02:00Z"), Verdict: reduce.VerdictFail, WorstMarginDB: math.NaN()},
 	}
 	inputs := []string{"run.yaml", "ref-pre.s2p", "ref-post.s2p", "elements.csv", "notes.md"}
 	for b := 0; b < beams; b++ {
@@ -252,7 +252,7 @@ func fixtureBudget(n int, gt bool) reduce.Budget {
 	}
 	bud := reduce.Budget{CoverageK: 2, CombinedDB: make([]float64, n), ExpandedDB: make([]float64, n)}
 	for _, tm := range terms {
-		bt := reduce.BudgetTerm{Name: tm.name, Source: tm.source, Distribution: tm.dist, Divisor: tm.div,
+		bt := reduce.BudgetTerm{Name: tm.name, Source: reduce.TermSource(tm.source), Distribution: tm.dist, Divisor: tm.div,
 			ValueDB: make([]float64, n), StandardDB: make([]float64, n)}
 		for k := 0; k < n; k++ {
 			v := tm.value // a station's figure holds across the band
@@ -315,18 +315,18 @@ func fixtureFleet(t testing.TB) *reduce.Fleet {
 func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary) {
 	t.Helper()
 	const n = 24
-	fl := &reduce.Fleet{Schema: reduce.FleetSchema}
+	fl := &reduce.Fleet{}
 	var sums []reduce.UnitSummary
-	verdicts := map[string]int{}
+	verdicts := map[reduce.Verdict]int{}
 	margins := make([]float64, n)
 	serials := make([]string, n)
-	started := make([]string, n)
+	started := make([]time.Time, n)
 	for i := 0; i < n; i++ {
 		serials[i] = fmt.Sprintf("KP16-%05d", i+1)
 		if i == 5 {
 			serials[i] = hostileSerial
 		}
-		started[i] = fmt.Sprintf("2026-11-%02dT%02d:00:00Z", 1+i/4, 8+i%4*2)
+		started[i] = mustTime(fmt.Sprintf("2026-11-%02dT%02d:00:00Z", 1+i/4, 8+i%4*2))
 		margins[i] = 0.9 + 0.35*math.Sin(float64(i)*1.3)
 		v := reduce.VerdictPass
 		switch {
@@ -359,7 +359,7 @@ func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary
 		}
 		sums = append(sums, sum)
 	}
-	sums = append(sums, reduce.UnitSummary{Serial: "XB4-00001", Product: "X-BAND-4", Started: "2026-11-20T10:00:00Z",
+	sums = append(sums, reduce.UnitSummary{Serial: "XB4-00001", Product: "X-BAND-4", Started: mustTime("2026-11-20T10:00:00Z"),
 		Verdict: reduce.VerdictFail, Limits: []reduce.LimitResult{{Name: "G/T at boresight", Quantity: "gt", Beam: "b00",
 			Statistic: "min", WorstMarginDB: -0.31, AtFrequencyHz: 8.1e9, ValueDB: -4.31, LimitDB: -4, ExpandedUncertaintyDB: 0.6,
 			Verdict: reduce.VerdictFail}}})
@@ -426,12 +426,12 @@ func fixtureFleetAndSummaries(t testing.TB) (*reduce.Fleet, []reduce.UnitSummary
 			// Invented demo values: two months of the 24 units.
 			FirstPassYield: 21.0 / 23, FinalYield: 22.0 / 23,
 			Months: []reduce.MonthYield{
-				{Month: "2026-10", Units: 12, VerdictCounts: map[string]int{reduce.VerdictPass: 11, reduce.VerdictFail: 1}, FirstPassYield: 11.0 / 12, FinalYield: 11.0 / 12, Retested: 1},
-				{Month: "2026-11", Units: 12, VerdictCounts: map[string]int{reduce.VerdictPass: 10, reduce.VerdictConditionalPass: 1, reduce.VerdictIncomplete: 1}, FirstPassYield: 10.0 / 11, FinalYield: 1, Retested: 1},
+				{Month: "2026-10", Units: 12, VerdictCounts: map[reduce.Verdict]int{reduce.VerdictPass: 11, reduce.VerdictFail: 1}, FirstPassYield: 11.0 / 12, FinalYield: 11.0 / 12, Retested: 1},
+				{Month: "2026-11", Units: 12, VerdictCounts: map[reduce.Verdict]int{reduce.VerdictPass: 10, reduce.VerdictConditionalPass: 1, reduce.VerdictIncomplete: 1}, FirstPassYield: 10.0 / 11, FinalYield: 1, Retested: 1},
 			}},
-		{Product: "X-BAND-4", Units: 1, VerdictCounts: map[string]int{reduce.VerdictFail: 1},
+		{Product: "X-BAND-4", Units: 1, VerdictCounts: map[reduce.Verdict]int{reduce.VerdictFail: 1},
 			Limits: []reduce.LimitStats{{Name: "G/T at boresight", Units: 1, Passed: 0, Yield: 0, MeanMarginDB: -0.31,
-				Indicative: true, Chart: reduce.ControlChart{Serials: []string{"XB4-00001"}, Started: []string{"2026-11-20T10:00:00Z"}, ValuesDB: []float64{-0.31}, CentreDB: -0.31, UpperDB: -0.31, LowerDB: -0.31, TooFew: true}}},
+				Indicative: true, Chart: reduce.ControlChart{Serials: []string{"XB4-00001"}, Started: []time.Time{mustTime("2026-11-20T10:00:00Z")}, ValuesDB: []float64{-0.31}, CentreDB: -0.31, UpperDB: -0.31, LowerDB: -0.31, TooFew: true}}},
 			Watch: nil},
 	}
 	return fl, sums
@@ -469,4 +469,22 @@ func TestFixtureShape(t *testing.T) {
 			t.Errorf("fleet units not sorted by serial at %d", i)
 		}
 	}
+}
+
+// mustTime parses an RFC 3339 time of a test.
+func mustTime(s string) time.Time {
+	t, err := time.Parse(time.RFC3339, s)
+	if err != nil {
+		panic(err)
+	}
+	return t
+}
+
+// mustDate parses a date YYYY-MM-DD of a test.
+func mustDate(s string) time.Time {
+	t, err := time.Parse(time.DateOnly, s)
+	if err != nil {
+		panic(err)
+	}
+	return t
 }

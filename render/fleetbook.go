@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"time"
 
 	"gtpack.example/gtpack/reduce"
 )
@@ -108,7 +109,7 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*red
 	values := make([]any, len(cols))
 	for i := range f.Units {
 		u := &f.Units[i]
-		values = append(values[:0], u.Serial, u.Product, dateCell(u.Started), u.Verdict)
+		values = append(values[:0], u.Serial, u.Product, timeCell(u.Started), string(u.Verdict))
 		for _, n := range names {
 			values = append(values, worstMargin(u, n))
 		}
@@ -120,7 +121,7 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*red
 		if fi.Revision > 0 {
 			revision = fi.Revision
 		}
-		values = append(values, runs, fi.FirstVerdict, fi.State, revision, fi.ReportNumber)
+		values = append(values, runs, string(fi.FirstVerdict), string(fi.State), revision, fi.ReportNumber)
 		t.rows = append(t.rows, bulkRow(styles, values...))
 	}
 	b.addBulk(sheet, t)
@@ -133,14 +134,14 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*red
 
 // verdictColumns are the verdicts of the Products sheet: the known ones in
 // order, then any other found, sorted.
-func verdictColumns(f *reduce.Fleet) []string {
-	var vs []string
-	known := map[string]bool{}
+func verdictColumns(f *reduce.Fleet) []reduce.Verdict {
+	var vs []reduce.Verdict
+	known := map[reduce.Verdict]bool{}
 	for _, vc := range verdictColours {
 		vs = append(vs, vc.verdict)
 		known[vc.verdict] = true
 	}
-	var other []string
+	var other []reduce.Verdict
 	for _, p := range f.Products {
 		for v := range p.VerdictCounts {
 			if !known[v] {
@@ -149,7 +150,7 @@ func verdictColumns(f *reduce.Fleet) []string {
 			}
 		}
 	}
-	sort.Strings(other)
+	sort.Slice(other, func(i, j int) bool { return other[i] < other[j] })
 	return append(vs, other...)
 }
 
@@ -157,7 +158,7 @@ func writeFleetProducts(b *xlBook, sheet string, f *reduce.Fleet) {
 	vs := verdictColumns(f)
 	cols := []xlColumn{{"Product", "", 18}, {"Units", nfInt, 8}}
 	for _, v := range vs {
-		cols = append(cols, xlColumn{v, nfInt, 16})
+		cols = append(cols, xlColumn{string(v), nfInt, 16})
 	}
 	b.table(sheet, 1, cols, true)
 	for i, p := range f.Products {
@@ -215,7 +216,7 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 			title := t.first + len(t.rows)
 			t.rows = append(t.rows, bulkRow(nil, p.Product+": "+l.Name), bulkRow(nil, "Serial", "Started (UTC)", "Worst margin (dB)", "Beyond limits"))
 			first := title + 2
-			lo, hi := "", ""
+			var lo, hi time.Time
 			for i, v := range c.ValuesDB {
 				var serial, flag any
 				started := at(c.Started, i)
@@ -225,27 +226,27 @@ func writeControlChart(b *xlBook, sheet string, f *reduce.Fleet) {
 				if beyond[i] {
 					flag = "yes"
 				}
-				if d := dateCell(started); d.ok {
-					if lo == "" || started < lo {
+				if !started.IsZero() {
+					if lo.IsZero() || started.Before(lo) {
 						lo = started
 					}
-					if hi == "" || started > hi {
+					if hi.IsZero() || started.After(hi) {
 						hi = started
 					}
 				}
-				t.rows = append(t.rows, bulkRow(styles, serial, dateCell(started), v, flag))
+				t.rows = append(t.rows, bulkRow(styles, serial, timeCell(started), v, flag))
 			}
 			last := t.first + len(t.rows) - 1
-			if last-first < 1 || lo == "" {
+			if last-first < 1 || lo.IsZero() {
 				continue
 			}
 			// The lines of the block beside it, two points each (the first
 			// and last run date), in the block's header row and first two rows.
 			hdr := &t.rows[first-1-t.first]
 			*hdr = append(*hdr, bulkRow(nil, nil, "At (UTC)", "Centre (dB)", "Upper (dB)", "Lower (dB)", "Limit (dB)")...)
-			for k, at := range []string{lo, hi} {
+			for k, at := range []time.Time{lo, hi} {
 				row := &t.rows[first+k-t.first]
-				*row = append(*row, bulkRow(styles[len(cols):], nil, dateCell(at), c.CentreDB, c.UpperDB, c.LowerDB, 0.0)...)
+				*row = append(*row, bulkRow(styles[len(cols):], nil, timeCell(at), c.CentreDB, c.UpperDB, c.LowerDB, 0.0)...)
 			}
 			x := b.ref(sheet, 6, first, first+1)
 			series := []xySeries{{name: b.ref(sheet, 3, first-1, first-1), x: b.ref(sheet, 2, first, last), y: b.ref(sheet, 3, first, last), markers: true}}
@@ -271,7 +272,7 @@ func writeMonthlyYield(b *xlBook, sheet string, f *reduce.Fleet) {
 		first := r
 		for _, m := range p.Months {
 			b.set(sheet, 1, r, p.Product)
-			b.setDate(sheet, 2, r, m.Month, nfMonth)
+			b.setMonth(sheet, 2, r, m.Month, nfMonth)
 			for j, v := range []any{m.Units, m.VerdictCounts[reduce.VerdictPass], m.VerdictCounts[reduce.VerdictConditionalPass],
 				m.VerdictCounts[reduce.VerdictConditionalFail], m.VerdictCounts[reduce.VerdictFail], m.VerdictCounts[reduce.VerdictIncomplete],
 				m.FirstPassYield, m.FinalYield, m.Retested} {
@@ -304,7 +305,7 @@ func writeStation(b *xlBook, sheet string, st reduce.RangeChart) {
 		out[i] = true
 	}
 	t := &bulkSheet{first: 5, width: len(cols)}
-	lo, hi := "", ""
+	var lo, hi time.Time
 	for i, p := range st.Points {
 		var drift any
 		if p.DriftDB != nil {
@@ -314,18 +315,18 @@ func writeStation(b *xlBook, sheet string, st reduce.RangeChart) {
 		if out[i] {
 			flag = "yes"
 		}
-		if dateCell(p.Started).ok {
-			if lo == "" || p.Started < lo {
+		if !p.Started.IsZero() {
+			if lo.IsZero() || p.Started.Before(lo) {
 				lo = p.Started
 			}
-			if hi == "" || p.Started > hi {
+			if hi.IsZero() || p.Started.After(hi) {
 				hi = p.Started
 			}
 		}
-		t.rows = append(t.rows, bulkRow(styles, p.Serial, p.Run, dateCell(p.Started), p.RangeLossDB, drift, flag))
+		t.rows = append(t.rows, bulkRow(styles, p.Serial, p.Run, timeCell(p.Started), p.RangeLossDB, drift, flag))
 	}
 	b.addBulk(sheet, t)
-	if len(st.Points) < 2 || lo == "" || st.Baseline < 2 {
+	if len(st.Points) < 2 || lo.IsZero() || st.Baseline < 2 {
 		return
 	}
 	// The lines beside the table, two points each (the first and last
@@ -333,12 +334,12 @@ func writeStation(b *xlBook, sheet string, st reduce.RangeChart) {
 	b.setRow(sheet, 4, nil, nil, nil, nil, nil, nil, nil, "At (UTC)", "Centre (dB)", "Upper control limit (dB)", "Lower control limit (dB)")
 	b.check(b.f.SetCellStyle(sheet, "H4", "K4", b.header))
 	sideStyles := []int{b.numStyle(nfDate), b.numStyle(nfDB), b.numStyle(nfDB), b.numStyle(nfDB)}
-	for k, at := range []string{lo, hi} {
+	for k, at := range []time.Time{lo, hi} {
 		row := &t.rows[k]
 		for len(*row) < len(cols)+1 {
 			*row = append(*row, bulkCell{})
 		}
-		*row = append(*row, bulkRow(sideStyles, dateCell(at), st.CentreDB, st.UCLDB, st.LCLDB)...)
+		*row = append(*row, bulkRow(sideStyles, timeCell(at), st.CentreDB, st.UCLDB, st.LCLDB)...)
 	}
 	t.width = 11
 	last := 4 + len(st.Points)

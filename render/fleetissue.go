@@ -7,8 +7,10 @@ import "gtpack.example/gtpack/reduce"
 // many runs it had and its first run's verdict (a retested unit's first
 // verdict is not its last).
 type fleetIssue struct {
-	State, ReportNumber, FirstVerdict string
-	Revision, Runs                    int
+	State          reduce.IssueState
+	ReportNumber   string
+	FirstVerdict   reduce.Verdict
+	Revision, Runs int
 }
 
 // Retested is true for a unit with more than one run.

@@ -110,7 +110,7 @@ func TestFleetWorkbookIssueColumns(t *testing.T) {
 			return s
 		}
 		got := []any{s.cell(r, 7), s.cell(r, 8), s.cell(r, 9), s.cell(r, 10), s.cell(r, 11)}
-		exp := []any{runs, text(want.FirstVerdict), text(want.IssueState), rev, text(want.ReportNumber)}
+		exp := []any{runs, text(string(want.FirstVerdict)), text(string(want.IssueState)), rev, text(want.ReportNumber)}
 		for j := range got {
 			if got[j] != exp[j] {
 				t.Errorf("%s column %d = %v, want %v", u.Serial, 7+j, got[j], exp[j])

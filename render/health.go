@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"net/url"
+	"time"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -124,11 +125,12 @@ func pointRow(p reduce.RangePoint, centre float64) runRow {
 }
 
 // dateOf is the date part of an RFC 3339 time.
-func dateOf(s string) string {
-	if len(s) >= 10 {
-		return s[:10]
+// dateOf is the date of t in UTC, "" for the zero time.
+func dateOf(t time.Time) string {
+	if t.IsZero() {
+		return ""
 	}
-	return s
+	return t.UTC().Format("2006-01-02")
 }
 
 func rangeChartView(id string, c reduce.RangeChart) (rangeView, error) {
@@ -159,8 +161,8 @@ func rangeChartView(id string, c reduce.RangeChart) (rangeView, error) {
 
 // timePoint is a [date, value] pair of a chart on a time axis, named
 // after its unit.
-func timePoint(serial, started string, v float64) opts.LineData {
-	return opts.LineData{Name: serial, Value: []any{started, r3(v)}}
+func timePoint(serial string, started time.Time, v float64) opts.LineData {
+	return opts.LineData{Name: serial, Value: []any{timeText(started), r3(v)}}
 }
 
 // rangeLossChart is the individuals chart of the range loss against the
@@ -240,7 +242,7 @@ func dateChart(y opts.YAxis, top string, zoom bool) *charts.Line {
 // the points (timePoint, in time order, dated first to last), the centre
 // line and control limits when the baseline has two points or more, and
 // the points at the indexes beyond marked.
-func individualsChart(y opts.YAxis, top string, zoom bool, name string, pts []opts.LineData, first, last string, beyond []int, baseline int, centre, lcl, ucl float64) *charts.Line {
+func individualsChart(y opts.YAxis, top string, zoom bool, name string, pts []opts.LineData, first, last time.Time, beyond []int, baseline int, centre, lcl, ucl float64) *charts.Line {
 	ch := dateChart(y, top, zoom)
 	ch.AddSeries(name, pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
 	if baseline >= 2 {
@@ -255,13 +257,13 @@ func individualsChart(y opts.YAxis, top string, zoom bool, name string, pts []op
 }
 
 // flatLine is a horizontal line at v from the date first to last.
-func flatLine(first, last string, v float64) []opts.LineData {
+func flatLine(first, last time.Time, v float64) []opts.LineData {
 	return []opts.LineData{timePoint("", first, v), timePoint("", last, v)}
 }
 
 // addControlLines adds an individuals chart's centre line and control
 // limits from first to last.
-func addControlLines(ch *charts.Line, first, last string, centre, lcl, ucl float64) {
+func addControlLines(ch *charts.Line, first, last time.Time, centre, lcl, ucl float64) {
 	ch.AddSeries("centre", flatLine(first, last, centre), charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
 		charts.WithLineStyleOpts(opts.LineStyle{Color: "#17202a", Width: 1}), charts.WithItemStyleOpts(opts.ItemStyle{Color: "#17202a"}))
 	for _, l := range []struct {

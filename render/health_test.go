@@ -30,20 +30,20 @@ func healthFleet() *reduce.Fleet {
 			drift = 0.4
 		}
 		t := day0.AddDate(0, 0, 7*i)
-		started := t.Format(time.RFC3339)
+		started := t
 		us = append(us, reduce.UnitSummary{Serial: serial, Product: "KU-PANEL-16", Started: started, Verdict: reduce.VerdictPass,
 			RangeChecks: []reduce.RangeCheck{{Run: "runs/" + serial + "/a", Started: started, Station: "range-b", Reference: "horn-0042",
 				FrequencyHz: 11.725e9, RangeLossDB: v, DriftDB: &drift, DriftToleranceDB: 0.25,
-				ReferenceCertificate: "LAB-26-0211", ReferenceCalibrated: "2026-02-10", ReferenceDue: "2027-06-01", PastDue: t.After(due)}}})
+				ReferenceCertificate: "LAB-26-0211", ReferenceCalibrated: mustDate("2026-02-10"), ReferenceDue: mustDate("2027-06-01"), PastDue: t.After(due)}}})
 	}
-	gold := reduce.UnitSummary{Serial: "KP16-GOLD-01", Product: "KU-PANEL-16", Started: "2027-07-01T09:00:00Z", Verdict: reduce.VerdictPass, CheckUnit: true}
+	gold := reduce.UnitSummary{Serial: "KP16-GOLD-01", Product: "KU-PANEL-16", Started: mustTime("2027-07-01T09:00:00Z"), Verdict: reduce.VerdictPass, CheckUnit: true}
 	for k := 0; k < 12; k++ {
 		g := 3.0 + 0.01*float64(k%2)
 		if k == 11 {
 			g = 2.5 // the chain lost half a dB
 		}
 		gold.RangeChecks = append(gold.RangeChecks, reduce.RangeCheck{Run: fmt.Sprintf("runs/KP16-GOLD-01/%02d", k), Station: "range-b", Reference: "horn-0042",
-			Started: day0.AddDate(0, 0, 14*k+3).Format(time.RFC3339), FrequencyHz: 11.725e9, RangeLossDB: 50.05, Beam: "b00", GTdBPerK: &g})
+			Started: day0.AddDate(0, 0, 14*k+3), FrequencyHz: 11.725e9, RangeLossDB: 50.05, Beam: "b00", GTdBPerK: &g})
 	}
 	return reduce.ComputeFleet(append(us, gold))
 }

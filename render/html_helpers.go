@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"html/template"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -60,6 +59,9 @@ func loadPages() (*template.Template, error) {
 			"pct":     func(v float64) string { return fmtFixed(100*v, 1) + " %" },
 			"inc":     func(i int) int { return i + 1 },
 			"noise":   noiseLabel,
+			"time":    timeText,
+			"date":    dateOf,
+			"count":   func(m map[reduce.Verdict]int, v string) int { return m[reduce.Verdict(v)] },
 		})
 		t, err := t.ParseFS(templates.FS, "*.tmpl")
 		if err != nil {
@@ -206,12 +208,7 @@ func csvNumber(v float64, decimals int) string {
 	return string(appendDecimal(nil, v, decimals))
 }
 
-var verdictOrder = []string{
-	reduce.VerdictPass, reduce.VerdictConditionalPass, reduce.VerdictConditionalFail,
-	reduce.VerdictFail, reduce.VerdictIncomplete,
-}
-
-func verdictLabel(v string) string {
+func verdictLabel(v reduce.Verdict) string {
 	switch v {
 	case reduce.VerdictPass:
 		return "PASS"
@@ -226,12 +223,12 @@ func verdictLabel(v string) string {
 	case "":
 		return "–"
 	}
-	return strings.ToUpper(v)
+	return strings.ToUpper(string(v))
 }
 
 // verdictClass is the CSS class of a verdict; unknown verdicts get the
 // neutral class so a stray value cannot pick a style.
-func verdictClass(v string) string {
+func verdictClass(v reduce.Verdict) string {
 	switch v {
 	case reduce.VerdictPass:
 		return "v-pass"
@@ -245,32 +242,8 @@ func verdictClass(v string) string {
 	return "v-none"
 }
 
-// sortedCounts lists a verdict-count map in verdict order, then any other
-// key in byte order, so that the page never depends on map order.
-func sortedCounts(m map[string]int) []countRow {
-	var out []countRow
-	seen := map[string]bool{}
-	for _, v := range verdictOrder {
-		if n, ok := m[v]; ok {
-			out = append(out, countRow{Verdict: v, N: n})
-			seen[v] = true
-		}
-	}
-	var rest []string
-	for k := range m {
-		if !seen[k] {
-			rest = append(rest, k)
-		}
-	}
-	sort.Strings(rest)
-	for _, k := range rest {
-		out = append(out, countRow{Verdict: k, N: m[k]})
-	}
-	return out
-}
-
 type countRow struct {
-	Verdict string
+	Verdict reduce.Verdict
 	N       int
 }
 

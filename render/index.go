@@ -74,7 +74,7 @@ type indexView struct {
 }
 
 type issueCount struct {
-	State string
+	State reduce.IssueState
 	N     int
 }
 
@@ -102,7 +102,7 @@ var reasonOrder = []string{reasonFail, reasonCondFail, reasonIncomp, reasonStale
 type attentionRow struct {
 	Unit    int // index into indexView's units (serial order)
 	Serial  string
-	Verdict string
+	Verdict reduce.Verdict
 	Rank    int
 	Reasons []string
 	// Why is the reasons as a line: the watch list's span and worst
@@ -114,11 +114,11 @@ type attentionRow struct {
 // unit table's verdict sort and the needs-attention list. An incomplete
 // unit comes before the conditional pass: nothing about it is known to
 // pass.
-var severityOrder = []string{reduce.VerdictFail, reduce.VerdictConditionalFail, reduce.VerdictIncomplete, reduce.VerdictConditionalPass, reduce.VerdictPass}
+var severityOrder = []reduce.Verdict{reduce.VerdictFail, reduce.VerdictConditionalFail, reduce.VerdictIncomplete, reduce.VerdictConditionalPass, reduce.VerdictPass}
 
 // severityRank is v's place in severityOrder; any other verdict ranks
 // with incomplete.
-func severityRank(v string) int {
+func severityRank(v reduce.Verdict) int {
 	for i, s := range severityOrder {
 		if s == v {
 			return i
@@ -216,10 +216,11 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 		unitIndex[u.Serial] = i
 	}
 
-	d := indexData{Verdicts: append([]string(nil), severityOrder...), Products: []string{}, Limits: []string{}, Units: make([][]any, 0, len(units)), Attention: [][2]any{}, Fields: unitFields}
+	d := indexData{Verdicts: make([]string, len(severityOrder)), Products: []string{}, Limits: []string{}, Units: make([][]any, 0, len(units)), Attention: [][2]any{}, Fields: unitFields}
 	verdictIdx := map[string]int{}
 	for i, s := range severityOrder {
-		verdictIdx[s] = i
+		d.Verdicts[i] = string(s)
+		verdictIdx[string(s)] = i
 	}
 	lookup := func(list *[]string, idx map[string]int, s string) int {
 		if i, ok := idx[s]; ok {
@@ -231,8 +232,8 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 	}
 	productIdx, limitIdx := map[string]int{}, map[string]int{}
 
-	counts := map[string]int{}
-	issues := map[string]int{}
+	counts := map[reduce.Verdict]int{}
+	issues := map[reduce.IssueState]int{}
 	var margins []float64
 	reasons := make([][]string, len(units))
 	whys := make([][]string, len(units))
@@ -276,7 +277,7 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 		counts[u.Verdict]++
 		first := -1
 		if fi.FirstVerdict != "" {
-			first = lookup(&d.Verdicts, verdictIdx, fi.FirstVerdict)
+			first = lookup(&d.Verdicts, verdictIdx, string(fi.FirstVerdict))
 		}
 		report := fi.ReportNumber
 		if report == "" && fi.Revision > 0 {
@@ -286,8 +287,8 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 		if u.NoReport {
 			noReport = 1
 		}
-		d.Units = append(d.Units, []any{u.Serial, lookup(&d.Products, productIdx, u.Product), lookup(&d.Verdicts, verdictIdx, u.Verdict),
-			marginVal, limitVal, u.Started, fi.Runs, first, fi.State, report, noReport, u.Stale})
+		d.Units = append(d.Units, []any{u.Serial, lookup(&d.Products, productIdx, u.Product), lookup(&d.Verdicts, verdictIdx, string(u.Verdict)),
+			marginVal, limitVal, timeText(u.Started), fi.Runs, first, fi.State, report, noReport, u.Stale})
 		switch u.Verdict {
 		case reduce.VerdictFail:
 			addReason(i, reasonFail, "")
@@ -299,7 +300,7 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 			addReason(i, reasonCondPass, "")
 		case reduce.VerdictPass:
 		default:
-			addReason(i, reasonOtherVerd, "verdict "+u.Verdict)
+			addReason(i, reasonOtherVerd, "verdict "+string(u.Verdict))
 		}
 		if u.Stale != "" {
 			v.Stale++
@@ -311,7 +312,7 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 	}
 	d.Issue = v.ShowIssue
 	v.Counts = severityCounts(counts)
-	for _, st := range []string{stateIssued, stateDraft, stateVoid} {
+	for _, st := range []reduce.IssueState{stateIssued, stateDraft, stateVoid} {
 		if n := issues[st]; n > 0 {
 			v.Issues = append(v.Issues, issueCount{st, n})
 		}
@@ -426,31 +427,32 @@ func indexModel(f *reduce.Fleet, issueOf func(*reduce.FleetUnit) fleetIssue) (*i
 
 // severityCounts lists a verdict-count map in severityOrder, then any
 // other verdict sorted.
-func severityCounts(m map[string]int) []countRow {
+func severityCounts(m map[reduce.Verdict]int) []countRow {
 	var out []countRow
 	for _, v := range severityOrder {
 		if n, ok := m[v]; ok && n > 0 {
 			out = append(out, countRow{Verdict: v, N: n})
 		}
 	}
-	var rest []string
+	var rest []reduce.Verdict
 	for k, n := range m {
 		if severityRank(k) == 2 && k != reduce.VerdictIncomplete && n > 0 {
 			rest = append(rest, k)
 		}
 	}
-	sort.Strings(rest)
+	sort.Slice(rest, func(i, j int) bool { return rest[i] < rest[j] })
 	for _, k := range rest {
 		out = append(out, countRow{Verdict: k, N: m[k]})
 	}
 	return out
 }
 
-func at(xs []string, i int) string {
+func at[T any](xs []T, i int) T {
 	if i >= 0 && i < len(xs) {
 		return xs[i]
 	}
-	return ""
+	var zero T
+	return zero
 }
 
 func reportHref(serial string) string { return "units/" + url.PathEscape(serial) + "/report.html" }
@@ -554,14 +556,13 @@ func histogramChart(ms []float64) (chartSpec, error) {
 		Caption: fmt.Sprintf("Each unit counted once at its worst margin over all limits; bins of %s dB aligned on 0 dB; red bins are below the limit; the number above a bar is its count.", fmtFixed(step, 2))}, err
 }
 
-// epochMS is an RFC 3339 time in milliseconds since 1970 (a time axis's
-// value); ok is false when it does not parse.
-func epochMS(s string) (int64, bool) {
-	t, err := time.Parse(time.RFC3339, s)
-	if err != nil {
+// epochMS is t, to the second as result.json writes it, in milliseconds
+// since 1970 (a time axis's value); ok is false for the zero time.
+func epochMS(t time.Time) (int64, bool) {
+	if t.IsZero() {
 		return 0, false
 	}
-	return t.UnixMilli(), true
+	return t.Truncate(time.Second).UnixMilli(), true
 }
 
 // controlChart is the individuals chart of one limit's worst margins

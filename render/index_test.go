@@ -39,17 +39,17 @@ func indexDataOf(t *testing.T, page string) pageData {
 func TestSeverityOrder(t *testing.T) {
 	// The documented order: fail, conditional fail, incomplete,
 	// conditional pass, pass; an unknown verdict ranks with incomplete.
-	want := map[string]int{reduce.VerdictFail: 0, reduce.VerdictConditionalFail: 1, reduce.VerdictIncomplete: 2,
+	want := map[reduce.Verdict]int{reduce.VerdictFail: 0, reduce.VerdictConditionalFail: 1, reduce.VerdictIncomplete: 2,
 		reduce.VerdictConditionalPass: 3, reduce.VerdictPass: 4, "odd": 2}
 	for v, r := range want {
 		if got := severityRank(v); got != r {
 			t.Errorf("severityRank(%q) = %d, want %d", v, got, r)
 		}
 	}
-	got := severityCounts(map[string]int{reduce.VerdictPass: 3, reduce.VerdictFail: 1, reduce.VerdictConditionalPass: 2, "odd": 1})
+	got := severityCounts(map[reduce.Verdict]int{reduce.VerdictPass: 3, reduce.VerdictFail: 1, reduce.VerdictConditionalPass: 2, "odd": 1})
 	var order []string
 	for _, c := range got {
-		order = append(order, c.Verdict)
+		order = append(order, string(c.Verdict))
 	}
 	if strings.Join(order, ",") != "fail,conditional-pass,pass,odd" {
 		t.Errorf("counts in the order %v", order)
@@ -129,7 +129,7 @@ func TestIndexModel(t *testing.T) {
 		}
 		for i, u := range f.Units {
 			row := d.Units[i]
-			if d.Verdicts[int(row[2].(float64))] != u.Verdict || d.Products[int(row[1].(float64))] != u.Product || row[5] != u.Started {
+			if d.Verdicts[int(row[2].(float64))] != string(u.Verdict) || d.Products[int(row[1].(float64))] != u.Product || row[5] != timeText(u.Started) {
 				t.Errorf("row %d %v for %+v", i, row, u)
 			}
 		}
@@ -144,7 +144,7 @@ func TestIndexModel(t *testing.T) {
 				row, at = r, i
 			}
 		}
-		if row == nil || row[6].(float64) != 2 || d.Verdicts[int(row[7].(float64))] != reduce.VerdictPass || row[8] != "void" || row[9] != "EATL-GT-KP16-00010-R2" {
+		if row == nil || row[6].(float64) != 2 || d.Verdicts[int(row[7].(float64))] != string(reduce.VerdictPass) || row[8] != "void" || row[9] != "EATL-GT-KP16-00010-R2" {
 			t.Errorf("KP16-00010 row %v", row)
 		}
 		if len(d.Attention) != len(v.Attention) || int(d.Attention[0][0].(float64)) != at {
@@ -252,7 +252,7 @@ func TestControlChartAgainstDate(t *testing.T) {
 func TestIndexLeavesCheckUnitsOut(t *testing.T) {
 	f := fixtureFleet(t)
 	n := len(f.Units)
-	f.Units = append(f.Units, reduce.FleetUnit{Serial: "KP16-GOLD-01", Product: f.Units[0].Product, Started: "2026-11-20T08:00:00Z",
+	f.Units = append(f.Units, reduce.FleetUnit{Serial: "KP16-GOLD-01", Product: f.Units[0].Product, Started: mustTime("2026-11-20T08:00:00Z"),
 		Verdict: reduce.VerdictFail, Runs: 12, FirstVerdict: reduce.VerdictFail, CheckUnit: true})
 	page := string(mustIndex(t, f))
 	if !strings.Contains(page, fmt.Sprintf("<h1>%d units</h1>", n)) {

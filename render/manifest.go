@@ -7,7 +7,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"reflect"
 	"sort"
 
 	"gtpack.example/gtpack/ingest"
@@ -86,11 +85,7 @@ func UnitManifestJSON(serial, verdict string, inputs, approvals, outputs []Manif
 	if len(approvals) > 0 {
 		m.Approvals = sortedEntries(approvals)
 	}
-	b, err := appendJSON(nil, reflect.ValueOf(&m), 0)
-	if err != nil {
-		return nil, err
-	}
-	return append(b, '\n'), nil
+	return appendIndented(nil, &m, 0, "\n")
 }
 
 // ManifestWriter writes the site's manifest.json one unit at a time, so
@@ -107,9 +102,13 @@ type ManifestWriter struct {
 func NewManifestWriter(w io.Writer, toolVersion string) (*ManifestWriter, error) {
 	m := &ManifestWriter{w: w}
 	b := fmt.Appendf(nil, "{\n  \"schema\": %d,\n  \"tool_version\": ", manifestSchema)
-	b = appendJSONString(b, toolVersion)
+	v, err := json.Marshal(toolVersion)
+	if err != nil {
+		return nil, err
+	}
+	b = append(b, v...)
 	b = append(b, ",\n  \"units\": ["...)
-	_, err := w.Write(b)
+	_, err = w.Write(b)
 	return m, err
 }
 
@@ -127,7 +126,7 @@ func (m *ManifestWriter) Unit(u ManifestUnit) error {
 		b = append(b, ',')
 	}
 	b = appendNewline(b, 2)
-	b, err := appendJSON(b, reflect.ValueOf(&u), 2)
+	b, err := appendIndented(b, &u, 2, "")
 	if err != nil {
 		return err
 	}
@@ -146,7 +145,7 @@ func (m *ManifestWriter) Close(outputs []ManifestEntry) error {
 		b = appendNewline(b, 1)
 	}
 	b = append(b, "],\n  \"outputs\": "...)
-	b, err := appendJSON(b, reflect.ValueOf(sortedEntries(outputs)), 1)
+	b, err := appendIndented(b, sortedEntries(outputs), 1, "")
 	if err != nil {
 		return err
 	}

@@ -89,8 +89,8 @@ func TestPrintReport(t *testing.T) {
 
 	retest := issueUnit(t, voidR2)
 	m := -0.98
-	retest.History = []reduce.HistoryEntry{{Run: "2026/10/KP16-00017/run-1", Started: "2026-10-28T14:02:00Z",
-		Verdict: reduce.VerdictFail, WorstLimit: "Gain at boresight", WorstBeam: "b00", WorstMarginDB: &m, Notes: hostileNotes}}
+	retest.History = []reduce.HistoryEntry{{Run: "2026/10/KP16-00017/run-1", Started: mustTime("2026-10-28T14:02:00Z"),
+		Verdict: reduce.VerdictFail, WorstLimit: "Gain at boresight", WorstBeam: "b00", WorstMarginDB: m, Notes: hostileNotes}}
 	units := []struct {
 		name string
 		u    *reduce.Unit

@@ -15,7 +15,7 @@ func TestReportRangeCheck(t *testing.T) {
 	u := fixtureUnit(t, 2, 11)
 	drift := 0.041
 	u.RangeCheck = &reduce.RangeCheck{Run: u.Run, Station: "range-b", Reference: "horn-0042", FrequencyHz: 11.725e9,
-		RangeLossDB: 50.8123, DriftDB: &drift, DriftToleranceDB: 0.25, ReferenceDue: "2027-02-10", PastDue: true}
+		RangeLossDB: 50.8123, DriftDB: &drift, DriftToleranceDB: 0.25, ReferenceDue: mustDate("2027-02-10"), PastDue: true}
 	html, err := Report(u)
 	if err != nil {
 		t.Fatal(err)

@@ -417,7 +417,7 @@ func budgetAt(u *reduce.Unit, l reduce.LimitResult) *budgetView {
 		}
 		bud := b.GTBudget
 		q := "G/T"
-		if l.Quantity == "gain" {
+		if l.Quantity == reduce.QuantityGain {
 			bud, q = b.GainBudget, "gain"
 		}
 		if len(b.FrequencyHz) == 0 || len(bud.Terms) == 0 {
@@ -435,7 +435,7 @@ func budgetAt(u *reduce.Unit, l reduce.LimitResult) *budgetView {
 		}
 		bv := &budgetView{Limit: l, Quantity: q, FrequencyH: b.FrequencyHz[k], CombinedDB: at(bud.CombinedDB), ExpandedDB: at(bud.ExpandedDB), K: bud.CoverageK}
 		for _, t := range bud.Terms {
-			bv.Rows = append(bv.Rows, budgetRow{Name: t.Name, Source: t.Source, Distribution: t.Distribution,
+			bv.Rows = append(bv.Rows, budgetRow{Name: t.Name, Source: string(t.Source), Distribution: t.Distribution,
 				Divisor: t.Divisor, ValueDB: at(t.ValueDB), StdDB: at(t.StandardDB)})
 		}
 		return bv

@@ -76,20 +76,20 @@ func (r *ResultsCSVWriter) Unit(u *reduce.UnitSummary) error {
 	}
 	r.last = u.Serial
 	r.units++
-	head := []string{safeCSVText(u.Serial), safeCSVText(u.Product), safeCSVText(u.Started), safeCSVText(u.Verdict)}
+	head := []string{safeCSVText(u.Serial), safeCSVText(u.Product), safeCSVText(timeText(u.Started)), safeCSVText(string(u.Verdict))}
 	revision := ""
 	if u.Revision > 0 {
 		revision = strconv.Itoa(u.Revision)
 	}
-	issue := []string{safeCSVText(u.IssueState), revision, safeCSVText(u.ReportNumber)}
+	issue := []string{safeCSVText(string(u.IssueState)), revision, safeCSVText(u.ReportNumber)}
 	if len(u.Limits) == 0 {
 		return r.w.Write(append(append(append(r.row[:0], head...), make([]string, len(resultsLimitColumns))...), issue...))
 	}
 	for _, l := range u.Limits {
 		row := append(append(r.row[:0], head...),
-			safeCSVText(l.Beam), safeCSVText(l.Name), safeCSVText(l.Quantity), safeCSVText(l.Statistic),
+			safeCSVText(l.Beam), safeCSVText(l.Name), safeCSVText(string(l.Quantity)), safeCSVText(l.Statistic),
 			csvFloat(l.WorstMarginDB), csvGHz(l.AtFrequencyHz), csvFloat(l.ValueDB), csvFloat(l.LimitDB),
-			csvFloat(l.ExpandedUncertaintyDB), safeCSVText(l.Verdict))
+			csvFloat(l.ExpandedUncertaintyDB), safeCSVText(string(l.Verdict)))
 		row = append(row, issue...)
 		if err := r.w.Write(row); err != nil {
 			return err

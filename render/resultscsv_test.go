@@ -89,7 +89,7 @@ func TestSafeCSVText(t *testing.T) {
 // a spreadsheet application, with negative numbers that must stay numbers.
 func formulaSummary() reduce.UnitSummary {
 	return reduce.UnitSummary{
-		Serial: "=cmd|' /C calc'!A0", Product: "+PRODUCT", Started: "-2026-11-03", Verdict: "@pass",
+		Serial: "=cmd|' /C calc'!A0", Product: "+PRODUCT", Started: mustTime("2026-11-03T00:00:00Z"), Verdict: "@pass",
 		Limits: []reduce.LimitResult{{
 			Name: `=HYPERLINK("http://x","y")`, Quantity: "\tgt", Beam: "\rb00", Statistic: "-min",
 			WorstMarginDB: -1.25, AtFrequencyHz: 11.725e9, ValueDB: -0.5, LimitDB: 0.75,
@@ -105,7 +105,7 @@ func formulaSummary() reduce.UnitSummary {
 func TestResultsCSVFormulaText(t *testing.T) {
 	data := ResultsCSV([]reduce.UnitSummary{formulaSummary()})
 	want := []string{
-		"'=cmd|' /C calc'!A0", "'+PRODUCT", "'-2026-11-03", "'@pass", "'\rb00", `'=HYPERLINK("http://x","y")`,
+		"'=cmd|' /C calc'!A0", "'+PRODUCT", "2026-11-03T00:00:00Z", "'@pass", "'\rb00", `'=HYPERLINK("http://x","y")`,
 		"'\tgt", "'-min", "-1.25", "11.725", "-0.5", "0.75", "0.25", "'=fail", "'=issued", "3", "'-R3",
 	}
 	for reader, rows := range map[string][][]string{"encoding/csv": goCSV(t, data), "python csv": pythonCSV(t, data)} {

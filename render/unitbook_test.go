@@ -22,7 +22,7 @@ func TestUnitWorkbookKeptSkeleton(t *testing.T) {
 	first := fixtureUnit(t, 3, 41)
 	// Same shape, other values and text: another unit of the product.
 	second := fixtureUnit(t, 3, 41)
-	second.Serial, second.Product, second.Started = "KP16-00018 <&>", "KU-PANEL-16 & co", "2026-11-04T10:00:00Z"
+	second.Serial, second.Product, second.Started = "KP16-00018 <&>", "KU-PANEL-16 & co", mustTime("2026-11-04T10:00:00Z")
 	second.Verdict = reduce.VerdictFail
 	for i := range second.Beams {
 		for k := range second.Beams[i].GainDBi {
@@ -85,7 +85,7 @@ func TestUnitWorkbookKeptSkeleton(t *testing.T) {
 		t.Errorf("created %q, want 2026-11-04T10:00:00", d.Props.Created)
 	}
 	s := d.sheet(t, "Summary")
-	if s.cell(2, 2) != second.Serial || s.cell(7, 2) != reduce.VerdictFail {
+	if s.cell(2, 2) != second.Serial || s.cell(7, 2) != string(reduce.VerdictFail) {
 		t.Errorf("Summary B2 %v, B7 %v: the second unit's serial and verdict expected", s.cell(2, 2), s.cell(7, 2))
 	}
 	checkZipTimes(t, kept, startedTime(second.Started))

@@ -55,7 +55,7 @@ const (
 
 // Verdict fill colours of our own (light tints, dark text).
 var verdictColours = []struct {
-	verdict    string
+	verdict    reduce.Verdict
 	fill, font string
 }{
 	{reduce.VerdictPass, "CCEBD4", "1D5C2E"},
@@ -431,10 +431,10 @@ func (b *xlBook) setRow(sheet string, row int, values ...any) {
 	}
 }
 
-// setDate writes a date cell (dateCell) with a date format; a text
-// that is not a date is written as text.
-func (b *xlBook) setDate(sheet string, col, row int, s, format string) {
-	d := dateCell(s)
+// setMonth writes a month (monthCell) as a date cell with a date format;
+// a text that is not a month is written as text.
+func (b *xlBook) setMonth(sheet string, col, row int, s, format string) {
+	d := monthCell(s)
 	if !d.ok {
 		b.set(sheet, col, row, d.text)
 		return
@@ -493,7 +493,7 @@ func (b *xlBook) verdictRules(sheet, rangeRef string) {
 	for i, vc := range verdictColours {
 		dxf := b.verdictDXF[i]
 		opts = append(opts, excelize.ConditionalFormatOptions{
-			Type: "cell", Criteria: "==", Value: `"` + vc.verdict + `"`, Format: &dxf,
+			Type: "cell", Criteria: "==", Value: `"` + string(vc.verdict) + `"`, Format: &dxf,
 		})
 	}
 	b.check(b.f.SetConditionalFormat(sheet, rangeRef, opts))
@@ -628,19 +628,14 @@ func valueAt(xs []float64, k int) float64 {
 
 func toGHz(hz float64) float64 { return hz / 1e9 }
 
-// startedTime is the run's start as a time, or the epoch when it does not
-// parse: it dates the workbook, so that the file does not depend on when it
-// was written.
-func startedTime(s string) time.Time {
-	for _, layout := range []string{time.RFC3339Nano, "2006-01-02T15:04:05", "2006-01-02"} {
-		if t, err := time.Parse(layout, s); err == nil {
-			if t.Year() < 1980 || t.Year() > 9999 {
-				break // zip times start in 1980
-			}
-			return t.UTC().Truncate(time.Second)
-		}
+// startedTime is the run's start, or the epoch when it is not known or
+// outside what a zip file can date (1980 on): it dates the workbook, so
+// that the file does not depend on when it was written.
+func startedTime(t time.Time) time.Time {
+	if t.IsZero() || t.Year() < 1980 || t.Year() > 9999 {
+		return workbookEpoch
 	}
-	return workbookEpoch
+	return t.UTC().Truncate(time.Second)
 }
 
 // UnitWorkbook returns the unit workbook: Summary, one sheet per beam with
@@ -689,7 +684,7 @@ func summaryFields(u *reduce.Unit) [][2]any {
 	if ref.Description != "" {
 		refText += " - " + ref.Description
 	}
-	due := ref.Due
+	due := dateOf(ref.Due)
 	if ref.Expired {
 		due += " (expired before the run)"
 	}
@@ -705,7 +700,7 @@ func summaryFields(u *reduce.Unit) [][2]any {
 			if sg.Role != "" {
 				who += ", " + sg.Role
 			}
-			sigs = append(sigs, who+", "+sg.Date)
+			sigs = append(sigs, who+", "+timeText(sg.Date))
 		}
 	}
 	signatures := strings.Join(sigs, "; ")
@@ -736,13 +731,13 @@ func summaryFields(u *reduce.Unit) [][2]any {
 		{"Product", u.Product},
 		{"Specification", u.SpecTitle},
 		{"Run", u.Run},
-		{"Started", u.Started},
-		{"Verdict", u.Verdict},
+		{"Started", timeText(u.Started)},
+		{"Verdict", string(u.Verdict)},
 		{"Decision rule", u.DecisionRule},
 		{"Station", station},
 		{"Reference", refText},
 		{"Reference certificate", ref.Certificate},
-		{"Reference calibrated", ref.Calibrated},
+		{"Reference calibrated", dateOf(ref.Calibrated)},
 		{"Reference due", due},
 		{"Operator", u.Operator},
 		{"Ambient (°C)", u.AmbientC},
@@ -750,7 +745,7 @@ func summaryFields(u *reduce.Unit) [][2]any {
 		{"Tool version", "gtpack " + Version},
 		// The issue state, as the report's first page shows it; after the
 		// rows above, which keep their places.
-		{"Issue state", is.State},
+		{"Issue state", string(is.State)},
 		{"Revision", revision},
 		{"Report number", is.ReportNumber},
 		{"Date of issue", is.IssueDate},
@@ -761,7 +756,7 @@ func summaryFields(u *reduce.Unit) [][2]any {
 		{"Customer", customer},
 		{"Order", order},
 		{"Runs", len(u.History) + 1},
-		{"First run verdict", first},
+		{"First run verdict", string(first)},
 	}
 }
 
@@ -825,6 +820,9 @@ func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) 
 			row[1] = numCell(float64(x), b.numStyle(nfInt))
 		case string:
 			row[1] = textCell(x, 0)
+		case nil:
+		default:
+			panic(fmt.Sprintf("render: summary field %s: a %T is not a cell value", kv[0], kv[1]))
 		}
 		t.rows = append(t.rows, row)
 	}
@@ -840,13 +838,13 @@ func summaryTable(b *xlBook, sheet string, u *reduce.Unit, beamSheets []string) 
 	dB, ghz := b.numStyle(nfDB), b.numStyle(nfGHz)
 	for _, l := range u.Limits {
 		t.rows = append(t.rows, []bulkCell{textCell(l.Name, 0), textCell(l.Beam, 0), numCell(l.WorstMarginDB, dB),
-			freqCell(l.AtFrequencyHz, ghz), numCell(l.ExpandedUncertaintyDB, dB), textCell(l.Verdict, 0)})
+			freqCell(l.AtFrequencyHz, ghz), numCell(l.ExpandedUncertaintyDB, dB), textCell(string(l.Verdict), 0)})
 	}
 	headerRow("Beams", summaryBeamColumns)
 	deg := b.numStyle(nfDeg)
 	for i, bm := range u.Beams {
 		t.rows = append(t.rows, []bulkCell{textCell(bm.ID, 0), textCell(beamSheets[i], 0), numCell(bm.ThetaDeg, deg),
-			numCell(bm.PhiDeg, deg), textCell(bm.Polarization, 0), textCell(bm.GTForm, 0), numCell(float64(len(bm.FrequencyHz)), 0)})
+			numCell(bm.PhiDeg, deg), textCell(bm.Polarization, 0), textCell(string(bm.GTForm), 0), numCell(float64(len(bm.FrequencyHz)), 0)})
 	}
 	b.addBulk(sheet, t)
 }
@@ -961,8 +959,8 @@ func limitsTable(b *xlBook, sheet string, limits []reduce.LimitResult) {
 	styles := b.columnStyles(limitsColumns)
 	t := &bulkSheet{first: 2, width: len(limitsColumns)}
 	for _, l := range limits {
-		t.rows = append(t.rows, bulkRow(styles, l.Name, l.Quantity, l.Beam, l.Statistic, l.WorstMarginDB, frequencyHz(l.AtFrequencyHz),
-			l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB, l.Verdict))
+		t.rows = append(t.rows, bulkRow(styles, l.Name, string(l.Quantity), l.Beam, l.Statistic, l.WorstMarginDB, frequencyHz(l.AtFrequencyHz),
+			l.ValueDB, l.LimitDB, l.ExpandedUncertaintyDB, string(l.Verdict)))
 	}
 	b.addBulk(sheet, t)
 }
@@ -970,7 +968,7 @@ func limitsTable(b *xlBook, sheet string, limits []reduce.LimitResult) {
 // budgetPoint chooses the frequency index at which a beam's budget is
 // shown: the worst-margin frequency of the beam's limits on that quantity,
 // else of any of its limits, else the middle of the grid.
-func budgetPoint(bm *reduce.Beam, limits []reduce.LimitResult, quantity string) (int, string) {
+func budgetPoint(bm *reduce.Beam, limits []reduce.LimitResult, quantity reduce.Quantity) (int, string) {
 	n := len(bm.FrequencyHz)
 	if n == 0 {
 		return -1, ""
@@ -1013,16 +1011,17 @@ func uncertaintyTable(b *xlBook, sheet string, u *reduce.Unit) {
 	for i := range u.Beams {
 		bm := &u.Beams[i]
 		for _, part := range []struct {
-			name, quantity string
-			bud            *reduce.Budget
-		}{{"G/T", "gt", &bm.GTBudget}, {"Gain", "gain", &bm.GainBudget}} {
+			name     string
+			quantity reduce.Quantity
+			bud      *reduce.Budget
+		}{{"G/T", reduce.QuantityGT, &bm.GTBudget}, {"Gain", reduce.QuantityGain, &bm.GainBudget}} {
 			k, basis := budgetPoint(bm, u.Limits, part.quantity)
 			if k < 0 {
 				continue
 			}
 			f := frequencyHz(bm.FrequencyHz[k])
 			for _, tm := range part.bud.Terms {
-				t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis, tm.Name, tm.Source, tm.Distribution, tm.Divisor,
+				t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis, tm.Name, string(tm.Source), tm.Distribution, tm.Divisor,
 					valueAt(tm.ValueDB, k), valueAt(tm.StandardDB, k)))
 			}
 			t.rows = append(t.rows, bulkRow(styles, bm.ID, part.name, f, basis, "Combined standard uncertainty u_c", nil, nil, nil,
@@ -1056,15 +1055,21 @@ type xlDate struct {
 	text   string
 }
 
-// dateCell reads an RFC 3339 time (or a YYYY-MM-DD or YYYY-MM date) for a
-// date cell.
-func dateCell(s string) xlDate {
-	for _, layout := range []string{time.RFC3339, "2006-01-02", "2006-01"} {
-		if t, err := time.Parse(layout, s); err == nil {
-			return xlDate{serial: excelSerial(t), ok: true, text: s}
-		}
+// monthCell reads a month, YYYY-MM (reduce.MonthYield), for a date cell.
+func monthCell(s string) xlDate {
+	if t, err := time.Parse("2006-01", s); err == nil {
+		return xlDate{serial: excelSerial(t), ok: true, text: s}
 	}
 	return xlDate{text: s}
+}
+
+// timeCell is a time as a date cell (to the second, as its text), empty
+// for the zero time.
+func timeCell(t time.Time) xlDate {
+	if t.IsZero() {
+		return xlDate{}
+	}
+	return xlDate{serial: excelSerial(t.Truncate(time.Second)), ok: true, text: timeText(t)}
 }
 
 // excelSerial is t as a spreadsheet's serial day number (the 1900 date
@@ -1101,6 +1106,11 @@ func bulkRow(styles []int, values ...any) []bulkCell {
 			}
 		case string:
 			row[i] = textCell(x, style)
+		case nil:
+		default:
+			// A value of another type (a verdict, a time) would be
+			// left out unseen: the caller converts it.
+			panic(fmt.Sprintf("render: bulkRow: a %T is not a cell value", v))
 		}
 	}
 	return row
@@ -1112,7 +1122,7 @@ func flagsTable(b *xlBook, sheet string, u *reduce.Unit) {
 	styles := b.columnStyles(flagsColumns)
 	t := &bulkSheet{first: 2, width: len(flagsColumns)}
 	for _, f := range u.Flags {
-		t.rows = append(t.rows, bulkRow(styles, f.Kind, f.Beam, nil, nil, f.Message))
+		t.rows = append(t.rows, bulkRow(styles, string(f.Kind), f.Beam, nil, nil, f.Message))
 	}
 	for _, p := range u.Problems {
 		var line any

@@ -81,12 +81,12 @@ func cmdApprove(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	digest := res.Issue.InputsSHA256
 	for _, old := range a.Approvals[serial] {
-		if old.InputsSHA256 == digest && old.Verdict == res.Verdict && old.ApprovedBy == name {
+		if old.InputsSHA256 == digest && reduce.Verdict(old.Verdict) == res.Verdict && old.ApprovedBy == name {
 			return exitRefused, fmt.Errorf("%s: %s already approved this report (%s, inputs %s) on %s; nothing was approved",
 				old.File, name, res.Verdict, digest, old.Date.Format(time.RFC3339))
 		}
 	}
-	ap := &ingest.Approval{Schema: 1, Serial: serial, InputsSHA256: digest, Verdict: res.Verdict,
+	ap := &ingest.Approval{Schema: 1, Serial: serial, InputsSHA256: digest, Verdict: string(res.Verdict),
 		ApprovedBy: name, Role: *role, Date: when, Comment: strings.TrimSpace(*comment)}
 	data := ingest.ApprovalYAML(ap)
 	rel, err := writeApproval(dir, serial, when, name, data)

@@ -452,7 +452,7 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 		Folders:     w.folders,
 		Summary:     res.Summary(),
 	}
-	st.ReportStarted = st.Summary.Started
+	st.ReportStarted = startedText(st.Summary.Started)
 	for _, r := range w.runs {
 		st.Runs = append(st.Runs, r.Dir)
 	}
@@ -471,13 +471,9 @@ func buildUnit(a *ingest.Archive, site *site, u *ingest.Unit, force bool) unitOu
 // older run never takes the refused run's place.
 func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState) unitOutcome {
 	out := unitOutcome{serial: u.Serial, stale: true}
-	started := ""
-	if !r.Started.IsZero() {
-		started = r.Started.UTC().Format(time.RFC3339)
-	}
 	st := &unitState{Serial: u.Serial, ToolVersion: render.Version}
-	sum := reduce.UnitSummary{Serial: u.Serial, Started: started, Verdict: reduce.VerdictIncomplete}
-	builtVerdict := ""
+	sum := reduce.UnitSummary{Serial: u.Serial, Started: r.Started.UTC(), Verdict: reduce.VerdictIncomplete}
+	var builtVerdict reduce.Verdict
 	if old != nil && !old.Summary.NoReport {
 		*st = *old
 		if old.Summary.Stale == "" {
@@ -485,7 +481,7 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 		}
 		was := old.ReportStarted
 		if was == "" {
-			was = old.Summary.Started // a state of 0.2.1
+			was = startedText(old.Summary.Started) // a state of 0.2.1
 		}
 		sum.Product = old.Summary.Product
 		sum.Stale = fmt.Sprintf("acceptance run %s was refused; the report shown is of the run started %s", r.File, was)
@@ -497,7 +493,7 @@ func keepStale(site *site, u *ingest.Unit, r *ingest.RefusedRun, old *unitState)
 		sum.NoReport = true
 	}
 	st.Summary = sum
-	if old != nil && old.Summary.Stale == sum.Stale && old.Summary.Started == sum.Started && old.Summary.Verdict == sum.Verdict {
+	if old != nil && old.Summary.Stale == sum.Stale && old.Summary.Started.Equal(sum.Started) && old.Summary.Verdict == sum.Verdict {
 		out.state = old // already recorded so: nothing to write
 		return out
 	}
@@ -704,4 +700,13 @@ func inside(path, dir string) bool {
 	}
 	rel, err := filepath.Rel(abs(dir), abs(path))
 	return err == nil && rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator))
+}
+
+// startedText is a run's start as the unit record and the pages write it:
+// RFC 3339 in UTC, "" when not known.
+func startedText(t time.Time) string {
+	if t.IsZero() {
+		return ""
+	}
+	return t.UTC().Format(time.RFC3339)
 }

@@ -66,7 +66,7 @@ func (p *progress) unitDone(o unitOutcome) {
 		}
 		verdict := ""
 		if o.state != nil {
-			verdict = " " + o.state.Summary.Verdict
+			verdict = " " + string(o.state.Summary.Verdict)
 		}
 		fmt.Fprintf(p.w, "[%d/%d] %s %s%s\n", p.done, p.total, o.serial, what, verdict)
 	}

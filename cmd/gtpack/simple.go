@@ -168,7 +168,7 @@ func demoApprovals(dir string) (int, error) {
 		}
 		acceptance := p.unit.Runs[len(p.unit.Runs)-1]
 		when := acceptance.Started.UTC().Add(p.after).Truncate(time.Hour)
-		ap := &ingest.Approval{Schema: 1, Serial: p.unit.Serial, InputsSHA256: res.Issue.InputsSHA256, Verdict: res.Verdict,
+		ap := &ingest.Approval{Schema: 1, Serial: p.unit.Serial, InputsSHA256: res.Issue.InputsSHA256, Verdict: string(res.Verdict),
 			ApprovedBy: p.by, Role: p.role, Date: when}
 		if _, err := writeApproval(dir, p.unit.Serial, when, p.by, ingest.ApprovalYAML(ap)); err != nil {
 			return n, err

@@ -122,8 +122,11 @@ type unitState struct {
 	Folders []recordedInput        `json:"folders,omitempty"`
 	Outputs []render.ManifestEntry `json:"outputs"`
 	// Summary is the head of the summary in the record, and the whole
-	// summary once readSummary has read it or a build made it.
-	Summary reduce.UnitSummary `json:"summary"`
+	// summary once readSummary has read it or a build made it; the record
+	// holds it in its wire form (SummaryRecord), which readState and
+	// putState convert.
+	Summary       reduce.UnitSummary   `json:"-"`
+	SummaryRecord render.SummaryRecord `json:"summary"`
 	// Damaged is set by gtpack index for a unit whose files no longer
 	// are the ones recorded: the next build makes it again.
 	Damaged bool `json:"damaged,omitempty"`
@@ -637,6 +640,7 @@ func (s *site) readState(serial string) (*unitState, error) {
 	if err := json.Unmarshal(data, &st); err != nil {
 		return nil, fmt.Errorf("%s: %w", filepath.Join(s.dir, s.statePath(serial)), err)
 	}
+	st.Summary, st.SummaryRecord = st.SummaryRecord.Summary(), render.SummaryRecord{}
 	return &st, nil
 }
 
@@ -651,11 +655,11 @@ func (s *site) readSummary(serial string, head reduce.UnitSummary) (reduce.UnitS
 	if err != nil {
 		return head, err
 	}
-	var sum reduce.UnitSummary
+	var sum render.SummaryRecord
 	if err := json.Unmarshal(data, &sum); err != nil {
 		return head, fmt.Errorf("%s: %w", filepath.Join(s.dir, s.summaryPath(serial)), err)
 	}
-	return sum, nil
+	return sum.Summary(), nil
 }
 
 // writeUnit replaces the unit's files with files (by name within its
@@ -702,7 +706,7 @@ func (s *site) writeUnit(old, st *unitState, files map[string][]byte) error {
 			return err
 		}
 	}
-	man, err := render.UnitManifestJSON(st.Serial, st.Summary.Verdict, manifestEntries(st.Inputs), manifestEntries(st.Approvals), st.Outputs)
+	man, err := render.UnitManifestJSON(st.Serial, string(st.Summary.Verdict), manifestEntries(st.Inputs), manifestEntries(st.Approvals), st.Outputs)
 	if err == nil {
 		err = put(render.UnitManifestName, man)
 	}
@@ -737,11 +741,11 @@ func manifestEntries(inputs []recordedInput) []render.ManifestEntry {
 // 0.3.0 or before has no manifest in its folder: one is written from its
 // record (builtVerdict is the verdict of its files), so that the site's
 // manifest can list it.
-func (s *site) writeStale(st *unitState, builtVerdict string) error {
+func (s *site) writeStale(st *unitState, builtVerdict reduce.Verdict) error {
 	t := s.begin("unit-" + st.Serial)
 	rel := path.Join(unitDir(st.Serial), render.UnitManifestName)
 	if !st.Summary.NoReport && !slices.ContainsFunc(st.Outputs, func(e render.ManifestEntry) bool { return e.Path == rel }) {
-		man, err := render.UnitManifestJSON(st.Serial, builtVerdict, manifestEntries(st.Inputs), manifestEntries(st.Approvals), st.Outputs)
+		man, err := render.UnitManifestJSON(st.Serial, string(builtVerdict), manifestEntries(st.Inputs), manifestEntries(st.Approvals), st.Outputs)
 		if err != nil {
 			return err
 		}
@@ -780,7 +784,7 @@ func (s *site) writeStateOnly(st *unitState, withSummary bool) error {
 // record lists. The record keeps the summary's head only.
 func (t *txn) putState(st *unitState, withSummary bool) error {
 	if withSummary {
-		data, err := json.Marshal(st.Summary)
+		data, err := json.Marshal(render.SummaryRecordOf(st.Summary))
 		if err != nil {
 			return err
 		}
@@ -789,7 +793,9 @@ func (t *txn) putState(st *unitState, withSummary bool) error {
 		}
 	}
 	rec := *st
-	rec.Summary.Limits, rec.Summary.Boresight, rec.Summary.RangeChecks = nil, nil, nil
+	head := st.Summary
+	head.Limits, head.Boresight, head.RangeChecks = nil, nil, nil
+	rec.SummaryRecord = render.SummaryRecordOf(head)
 	data, err := json.Marshal(&rec)
 	if err != nil {
 		return err
@@ -1027,7 +1033,7 @@ func writeFleet(s *site, serials []string, notices []string) (err error) {
 		if err := csvW.Unit(&st.Summary); err != nil {
 			return fmt.Errorf("results.csv: %w", err)
 		}
-		mu := render.ManifestUnit{Serial: st.Serial, Verdict: st.Summary.Verdict,
+		mu := render.ManifestUnit{Serial: st.Serial, Verdict: string(st.Summary.Verdict),
 			InputsSHA256: render.ManifestInputsDigest(manifestEntries(st.Inputs))}
 		rel := path.Join(unitDir(st.Serial), render.UnitManifestName)
 		for _, o := range st.Outputs {
