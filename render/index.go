@@ -617,9 +617,9 @@ func controlChart(id string, l reduce.LimitStats, unitIndex map[string]int) (cha
 	)
 	// The series are written here rather than through go-echarts: the
 	// units' points are a scatter series in ECharts' large mode (one path
-	// for thousands of points, where a symbol each took 250 ms a chart at
-	// 1,000 units), and the points beyond the limits a series of their own
-	// drawn above it, every one of them marked.
+	// for thousands of points instead of a symbol each), and the points
+	// beyond the limits a series of their own drawn above it, every one of
+	// them marked.
 	line := func(name, id, colour, dash string, width, v float64) map[string]any {
 		return map[string]any{"type": "line", "name": name, "id": id, "showSymbol": false, "silent": true,
 			"data":      [][]any{{first, r3(v)}, {last, r3(v)}},

@@ -12,5 +12,8 @@ package render
 // after each comma, the report's U band drawn where it can be seen, and
 // the workbook's frequency charts as XY charts; 0.3.0: the safe site
 // (exit code 3, stale units, fleet.json's optional stale, no_report and
-// notices) and the style rules for them in every page).
-const Version = "0.4.0"
+// notices) and the style rules for them in every page; 0.4.0: content
+// records, unit manifests, SHA256SUMS, issued reports; 0.5.0: MA and DB
+// Touchstone pairs converted by math.Sincos and math.Pow, which moves the
+// last digits of full-precision values in results.csv and fleet.xlsx).
+const Version = "0.5.0"

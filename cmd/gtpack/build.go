@@ -115,7 +115,8 @@ func build(o buildOptions, stdout, stderr io.Writer) (int, error) {
 	// A unit allocates some 40 MB of short-lived buffers (its pages, its
 	// workbook, the parsed inputs) over a live heap of a few tens of MB.
 	// At the default GOGC of 100 the collector ran several times a unit,
-	// and stopping the workers for it took a fifth of the CPU of a build.
+	// and stopping the workers for it took a large share of a build's CPU
+	// (DEVELOPERS.md, Measured).
 	// Unless GOGC is set, a build collects at 400 % growth instead. A soft
 	// memory limit keeps that growth from reaching the machine's memory on
 	// a large archive: near it the collector runs as often as it must.
