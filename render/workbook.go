@@ -646,7 +646,7 @@ func UnitWorkbook(u *reduce.Unit) ([]byte, error) {
 	cols := make([][]beamColumn, len(u.Beams))
 	for i := range u.Beams {
 		bm := &u.Beams[i]
-		cols[i] = beamColumns(bm, u.Limits)
+		cols[i] = beamColumns(bm)
 		bs := beamShape{id: bm.ID, theta: bm.ThetaDeg, phi: bm.PhiDeg, n: len(bm.FrequencyHz),
 			lo: bandEdge(bm.FrequencyHz, false), hi: bandEdge(bm.FrequencyHz, true),
 			firstGrid: slices.Equal(bm.FrequencyHz, u.Beams[0].FrequencyHz), cols: make([]sheetColumn, len(cols[i]))}
@@ -871,7 +871,7 @@ type sheetColumn struct {
 // beam's grid (Beam.LimitCurves): render evaluates no limit itself; the
 // margin is the quantity minus the limit, the definition of method.md
 // section 7.
-func beamColumns(bm *reduce.Beam, limits []reduce.LimitResult) []beamColumn {
+func beamColumns(bm *reduce.Beam) []beamColumn {
 	cols := []beamColumn{{sheetColumn{xlColumn: xlColumn{"Frequency (GHz)", nfGHz, 14}}, bm.FrequencyHz, 0, true}}
 	var onSheet []*beamQuantity
 	for i := range beamQuantities {

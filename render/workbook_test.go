@@ -476,7 +476,7 @@ func TestUnitWorkbookReadBack(t *testing.T) {
 // as result.json holds them (rb, from asResult), and checks that the cells
 // are those values and not the unrounded ones of bm.
 func checkBeamSheet(t *testing.T, s *xlDumpSheet, bm, rb *reduce.Beam) {
-	cols := beamColumns(bm, nil)
+	cols := beamColumns(bm)
 	n := len(bm.FrequencyHz)
 	if len(s.Rows) != n+1 {
 		t.Fatalf("%d rows, want %d", len(s.Rows), n+1)
