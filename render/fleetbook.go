@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"time"
 
@@ -126,9 +127,10 @@ func writeFleetUnits(b *xlBook, sheet string, f *reduce.Fleet, issueOf func(*red
 	}
 	b.addBulk(sheet, t)
 	if len(f.Units) > 0 {
-		b.verdictRules(sheet, fmt.Sprintf("D2:D%d", len(f.Units)+1))
-		first := b.colName(len(cols) - len(fleetIssueColumns) + 2)
-		b.verdictRules(sheet, fmt.Sprintf("%s2:%s%d", first, first, len(f.Units)+1))
+		for _, header := range []string{"Verdict", "First verdict"} {
+			c := b.colName(1 + slices.IndexFunc(cols, func(c xlColumn) bool { return c.header == header }))
+			b.verdictRules(sheet, fmt.Sprintf("%s2:%s%d", c, c, len(f.Units)+1))
+		}
 	}
 }
 
