@@ -205,7 +205,7 @@ func driftChart(id string, c reduce.RangeChart) (chartSpec, bool, error) {
 		return chartSpec{}, false, nil
 	}
 	ch := dateChart(opts.YAxis{Type: "value", Name: "|pre − post| (dB)", Min: 0}, "48", false)
-	ch.AddSeries("drift", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
+	ch.AddSeries("drift", pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(len(pts) <= symbolPoints), SymbolSize: 5}))
 	if c.DriftToleranceDB > 0 {
 		first, last := c.Points[0].Started, c.Points[len(c.Points)-1].Started
 		ch.AddSeries("station tolerance", flatLine(first, last, c.DriftToleranceDB),
@@ -244,7 +244,11 @@ func dateChart(y opts.YAxis, top string, zoom bool) *charts.Line {
 // the points at the indexes beyond marked.
 func individualsChart(y opts.YAxis, top string, zoom bool, name string, pts []opts.LineData, first, last time.Time, beyond []int, baseline int, centre, lcl, ucl float64) *charts.Line {
 	ch := dateChart(y, top, zoom)
-	ch.AddSeries(name, pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 5}))
+	// Up to symbolPoints runs each has its dot; beyond that the runs are
+	// one line (a dot each is an element each in the browser, where a
+	// year's runs of a station took more memory than the whole page
+	// otherwise), and the runs beyond the limits keep their marks.
+	ch.AddSeries(name, pts, charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(len(pts) <= symbolPoints), SymbolSize: 5}))
 	if baseline >= 2 {
 		addControlLines(ch, first, last, centre, lcl, ucl)
 	}
@@ -255,6 +259,11 @@ func individualsChart(y opts.YAxis, top string, zoom bool, name string, pts []op
 	addBeyond(ch, out)
 	return ch
 }
+
+// symbolPoints is the most runs an individuals or drift chart draws a dot
+// for (runs beyond the control limits are marked whatever their number;
+// runs past the drift tolerance are listed in the page's table).
+const symbolPoints = 500
 
 // flatLine is a horizontal line at v from the date first to last.
 func flatLine(first, last time.Time, v float64) []opts.LineData {

@@ -1,12 +1,15 @@
 package render
 
 import (
+	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 	"time"
+
+	"github.com/go-echarts/go-echarts/v2/opts"
 
 	"gtpack.example/gtpack/reduce"
 )
@@ -101,4 +104,44 @@ func TestBrowserHealth(t *testing.T) {
 	ctx, pl := openPage(t, bctx, path)
 	checkPage(t, ctx, pl, []string{"range-0", "range-0-drift", "check-0"})
 	shot(t, ctx, "health.png")
+}
+
+// An individuals chart draws a dot for each run up to symbolPoints runs,
+// and one line beyond that (a year's runs of a station would otherwise be
+// an element each in the browser); the runs beyond the control limits
+// keep their marks either way.
+func TestIndividualsChartSymbols(t *testing.T) {
+	day0 := time.Date(2027, 1, 1, 9, 0, 0, 0, time.UTC)
+	for _, n := range []int{10, symbolPoints, symbolPoints + 1} {
+		var pts []opts.LineData
+		for i := 0; i < n; i++ {
+			pts = append(pts, timePoint("", day0.Add(time.Duration(i)*time.Hour), 50+0.01*float64(i%3)))
+		}
+		last := day0.Add(time.Duration(n) * time.Hour)
+		ch := individualsChart(opts.YAxis{Type: "value"}, "48", true, "range loss", pts, day0, last, []int{n - 1}, 20, 50, 49.9, 50.1)
+		raw, err := json.Marshal(ch.JSON())
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got struct {
+			Series []struct {
+				Name       string `json:"name"`
+				ShowSymbol *bool  `json:"showSymbol"`
+				Data       []any  `json:"data"`
+			} `json:"series"`
+		}
+		if err := json.Unmarshal(raw, &got); err != nil {
+			t.Fatal(err)
+		}
+		if len(got.Series) == 0 || got.Series[0].ShowSymbol == nil || *got.Series[0].ShowSymbol != (n <= symbolPoints) {
+			t.Errorf("%d runs: the runs' series shows symbols %v, want %v", n, got.Series[0].ShowSymbol, n <= symbolPoints)
+		}
+		if len(got.Series[0].Data) != n {
+			t.Errorf("%d runs: the series holds %d points", n, len(got.Series[0].Data))
+		}
+		beyond := got.Series[len(got.Series)-1]
+		if beyond.Name != "beyond the control limits" || len(beyond.Data) != 1 || beyond.ShowSymbol == nil || !*beyond.ShowSymbol {
+			t.Errorf("%d runs: the run beyond the limits is not marked: %+v", n, beyond)
+		}
+	}
 }
